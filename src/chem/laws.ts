@@ -1,0 +1,143 @@
+/**
+ * The rate laws a network file may name, with their parameters. This table
+ * is the single list: the network loader checks reactions against it and the
+ * rate evaluator (src/chem/rates.ts) gives each law its coefficient.
+ *
+ * Phase rules say which phases the reactants and products may have, so the
+ * loader can catch, say, an accretion whose product is not an ice.
+ */
+export type RateLawName =
+  | 'arrhenius'
+  | 'cosmic-ray'
+  | 'cosmic-ray-uv'
+  | 'interstellar-uv'
+  | 'accretion'
+  | 'thermal-desorption'
+  | 'cr-desorption'
+  | 'photodesorption'
+  | 'surface'
+  | 'reactive-desorption'
+  | 'parametric-h2';
+
+export interface LawParameter {
+  name: string;
+  /** Default when the reaction does not give it; undefined means required. */
+  default?: number;
+  /** Lower bound (inclusive) of an acceptable value. */
+  min?: number;
+  description: string;
+}
+
+export interface RateLaw {
+  name: RateLawName;
+  description: string;
+  reactantCount: number;
+  reactantPhase: 'gas' | 'ice';
+  productPhase: 'gas' | 'ice' | 'any';
+  params: readonly LawParameter[];
+}
+
+const alpha = (description: string): LawParameter => ({ name: 'alpha', min: 0, description });
+
+export const RATE_LAWS: Readonly<Record<RateLawName, RateLaw>> = {
+  arrhenius: {
+    name: 'arrhenius',
+    description: 'two-body gas reaction, k = alpha (T/300)^beta exp(-gamma/T) cm^3 s^-1 (modified Arrhenius, Kooij form)',
+    reactantCount: 2,
+    reactantPhase: 'gas',
+    productPhase: 'gas',
+    params: [alpha('cm^3 s^-1 at 300 K'), { name: 'beta', default: 0, description: 'temperature exponent' }, { name: 'gamma', default: 0, description: 'activation temperature, K' }],
+  },
+  'cosmic-ray': {
+    name: 'cosmic-ray',
+    description: 'direct cosmic-ray ionisation or dissociation, k = alpha zeta/zeta_0 s^-1',
+    reactantCount: 1,
+    reactantPhase: 'gas',
+    productPhase: 'gas',
+    params: [alpha('rate at zeta = zeta_0 = 1.3e-17 s^-1, s^-1')],
+  },
+  'cosmic-ray-uv': {
+    name: 'cosmic-ray-uv',
+    description: 'photoreaction by cosmic-ray induced UV (Prasad & Tarafdar 1983), k = alpha zeta/zeta_0 s^-1',
+    reactantCount: 1,
+    reactantPhase: 'gas',
+    productPhase: 'gas',
+    params: [alpha('rate at zeta = zeta_0, s^-1')],
+  },
+  'interstellar-uv': {
+    name: 'interstellar-uv',
+    description: 'photoreaction by the external UV field, k = alpha G0 exp(-gamma A_V) s^-1',
+    reactantCount: 1,
+    reactantPhase: 'gas',
+    productPhase: 'gas',
+    params: [alpha('unshielded rate in a G0 = 1 (Habing) field, s^-1'), { name: 'gamma', default: 0, min: 0, description: 'dust attenuation factor per mag of A_V' }],
+  },
+  accretion: {
+    name: 'accretion',
+    description: 'freeze-out of a gas species onto grains, k = S pi a^2 v n_gr',
+    reactantCount: 1,
+    reactantPhase: 'gas',
+    productPhase: 'ice',
+    params: [{ name: 'sticking', default: 1, min: 0, description: 'sticking probability S' }],
+  },
+  'thermal-desorption': {
+    name: 'thermal-desorption',
+    description: 'thermal evaporation, k = nu_0 exp(-E_D/T_dust)',
+    reactantCount: 1,
+    reactantPhase: 'ice',
+    productPhase: 'gas',
+    params: [],
+  },
+  'cr-desorption': {
+    name: 'cr-desorption',
+    description: 'cosmic-ray induced desorption (Hasegawa & Herbst 1993), k = f k_evap(70 K) zeta/zeta_0',
+    reactantCount: 1,
+    reactantPhase: 'ice',
+    productPhase: 'gas',
+    params: [],
+  },
+  photodesorption: {
+    name: 'photodesorption',
+    description: 'UV photodesorption by the external and cosmic-ray induced fields, with the monolayer treatment',
+    reactantCount: 1,
+    reactantPhase: 'ice',
+    productPhase: 'gas',
+    params: [{ name: 'yield', default: 1e-3, min: 0, description: 'molecules per photon (memory: order of Oberg et al. 2009)' }],
+  },
+  surface: {
+    name: 'surface',
+    description: 'Langmuir-Hinshelwood reaction of two ice species by diffusion (HHL92); products in the ice unless written as gas',
+    reactantCount: 2,
+    reactantPhase: 'ice',
+    productPhase: 'any',
+    params: [
+      { name: 'activation_energy', default: 0, min: 0, description: 'barrier E_A, K' },
+      { name: 'branching', default: 1, min: 0, description: 'branching ratio among the channels of the same reactants' },
+    ],
+  },
+  'reactive-desorption': {
+    name: 'reactive-desorption',
+    description: 'the share of a surface reaction whose products leave to the gas on formation; pairs with the surface reaction of the same reactants',
+    reactantCount: 2,
+    reactantPhase: 'ice',
+    productPhase: 'gas',
+    params: [
+      { name: 'activation_energy', default: 0, min: 0, description: 'barrier E_A, K (as the paired surface reaction)' },
+      { name: 'branching', default: 1, min: 0, description: 'branching ratio' },
+    ],
+  },
+  'parametric-h2': {
+    name: 'parametric-h2',
+    description: 'H2 formation on grains at the classical rate R_f n_H n(H) (Jura 1975), used instead of the surface route when chosen',
+    reactantCount: 2,
+    reactantPhase: 'gas',
+    productPhase: 'gas',
+    params: [{ name: 'alpha', default: 3e-17, min: 0, description: 'R_f, cm^3 s^-1 (Jura 1975)' }],
+  },
+};
+
+export const RATE_LAW_NAMES = Object.keys(RATE_LAWS) as RateLawName[];
+
+export function isRateLawName(s: string): s is RateLawName {
+  return Object.prototype.hasOwnProperty.call(RATE_LAWS, s);
+}

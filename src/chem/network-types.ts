@@ -1,0 +1,48 @@
+/** The in-memory network: what the loaders produce and the compiler consumes. */
+import type { RateLawName } from './laws.ts';
+import type { Species } from './species.ts';
+
+export interface SourceLocation {
+  file: string;
+  /** 1-based line (YAML) or data row (tables). */
+  line?: number;
+  row?: number;
+}
+
+export interface Reaction {
+  /** 0-based index in the network's reaction list. */
+  index: number;
+  reactants: string[];
+  products: string[];
+  law: RateLawName;
+  /** Every parameter of the law, defaults filled in. */
+  params: Readonly<Record<string, number>>;
+  /** Valid temperature range, K; outside it T is clamped to the nearest edge. */
+  tmin: number;
+  tmax: number;
+  origin: string;
+  source: SourceLocation;
+}
+
+export interface SpeciesData {
+  name: string;
+  /** Desorption (binding) energy E_D on the grain surface, K (ice species or their gas form). */
+  bindingEnergy?: number;
+  /** Mass in u where it is not derived from the formula. */
+  mass?: number;
+  origin?: string;
+  source?: SourceLocation;
+}
+
+export interface Network {
+  name: string;
+  file: string;
+  /** Every species appearing in a reaction or the species list, in first-appearance order. */
+  species: Species[];
+  speciesIndex: ReadonlyMap<string, number>;
+  /** Keyed by the gas name: binding energy applies to `X` and `X(s)` alike. */
+  speciesData: ReadonlyMap<string, SpeciesData>;
+  reactions: Reaction[];
+  /** sha256 of the file contents (and mapping file, for tables). */
+  contentHash: string;
+}

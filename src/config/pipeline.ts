@@ -1,0 +1,78 @@
+/**
+ * The pipeline file: one YAML document naming the observations, the network,
+ * the grid of conditions, the output times, the fit and the report. Each
+ * section's schema lives in sections/ beside this file; this file joins them,
+ * resolves paths against the pipeline file's folder, and validates once at
+ * the edge: inside, code trusts the types.
+ */
+import { dirname, resolve } from 'node:path';
+import { z } from 'zod';
+import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
+import { observationsSection } from './sections/observations.ts';
+import { conditionsSection } from './sections/conditions.ts';
+import { fitSection } from './sections/fit.ts';
+import { reportSection } from './sections/report.ts';
+
+export const timesSection = z
+  .object({
+    start_yr: z.number().positive().default(1e3),
+    end_yr: z.number().positive().default(1e7),
+    /** Output times, spaced logarithmically from start to end. */
+    count: z.number().int().min(2).default(41),
+  })
+  .strict();
+
+export const solverSection = z
+  .object({
+    rtol: z.number().positive().lt(1).default(1e-6),
+    atol: z.number().positive().default(1e-25),
+    max_steps: z.number().int().positive().default(50000),
+  })
+  .strict();
+
+export const grainSection = z
+  .object({
+    tunnelling: z.boolean().default(false),
+    diffusion_competition: z.boolean().default(false),
+    h2_formation: z.enum(['surface', 'parametric']).default('surface'),
+  })
+  .strict();
+
+/** Initial composition: a named preset from config/initial/, a file, or explicit abundances. */
+export const initialSection = z.union([z.string(), z.record(z.string(), z.number().min(0))]);
+
+export const pipelineSchema = z
+  .object({
+    name: z.string().default('pipeline'),
+    /** Output folder, relative to the pipeline file. */
+    output: z.string().default('out'),
+    network: z.string(),
+    observations: observationsSection.optional(),
+    conditions: conditionsSection.default({}),
+    grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' }),
+    initial: initialSection.default('low-metal'),
+    times: timesSection.default({ start_yr: 1e3, end_yr: 1e7, count: 41 }),
+    solver: solverSection.default({ rtol: 1e-6, atol: 1e-25, max_steps: 50000 }),
+    fit: fitSection.optional(),
+    report: reportSection.optional(),
+  })
+  .strict();
+
+export type PipelineConfig = z.infer<typeof pipelineSchema>;
+
+export interface Pipeline {
+  file: string;
+  /** Folder of the pipeline file; relative paths resolve against it. */
+  dir: string;
+  config: PipelineConfig;
+  yaml: LoadedYaml;
+  /** Absolute path of a path written in the file. */
+  resolvePath(p: string): string;
+}
+
+export function loadPipeline(file: string): Pipeline {
+  const yaml = loadYamlFile(file, 'pipeline file');
+  const config = validate(pipelineSchema, yaml);
+  const dir = dirname(resolve(file));
+  return { file, dir, config, yaml, resolvePath: (p) => resolve(dir, p) };
+}

@@ -1,0 +1,127 @@
+/**
+ * YAML loading with line numbers kept, and validation through zod schemas
+ * whose failures become UserErrors naming file, line and field.
+ */
+import { readFileSync } from 'node:fs';
+import { isMap, isSeq, isScalar, LineCounter, parseDocument, type Node } from 'yaml';
+import type { z } from 'zod';
+import { UserError, UserErrors } from './errors.ts';
+
+export type PathKey = string | number;
+
+export interface LoadedYaml {
+  file: string;
+  data: unknown;
+  /** 1-based line of the node at a path into the document (nearest existing ancestor). */
+  lineOf(path: readonly PathKey[]): number | undefined;
+  text: string;
+}
+
+export function readTextFile(file: string, what = 'file'): string {
+  try {
+    return readFileSync(file, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT') throw new UserError(`${what} not found. Check the path (relative paths are read from the folder of the file that names them).`, { file });
+    if (code === 'EISDIR') throw new UserError(`expected a ${what}, found a folder.`, { file });
+    throw new UserError(`cannot read ${what}: ${(e as Error).message}`, { file });
+  }
+}
+
+export function parseYamlText(text: string, file: string): LoadedYaml {
+  const lineCounter = new LineCounter();
+  const doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true });
+  if (doc.errors.length > 0) {
+    const problems = doc.errors.map((err) => {
+      const line = err.linePos?.[0]?.line;
+      return new UserError(`malformed YAML: ${err.message.split('\n')[0]}`, { file, line });
+    });
+    if (problems.length === 1) throw problems[0];
+    throw new UserErrors('malformed YAML:', problems, { file });
+  }
+  if (text.trim() === '' || doc.contents === null) {
+    throw new UserError('the file is empty; expected a YAML document.', { file });
+  }
+  const data = doc.toJS({ maxAliasCount: 1000 });
+  const lineOf = (path: readonly PathKey[]): number | undefined => {
+    let node: unknown = doc.contents;
+    let best: number | undefined = rangeLine(node, lineCounter);
+    for (const key of path) {
+      let next: unknown;
+      if (isMap(node)) {
+        const pair = node.items.find((p) => (isScalar(p.key) ? p.key.value : p.key) === key);
+        if (!pair) break;
+        const keyLine = rangeLine(pair.key, lineCounter);
+        if (keyLine !== undefined) best = keyLine;
+        next = pair.value;
+      } else if (isSeq(node) && typeof key === 'number') {
+        next = node.items[key];
+      } else break;
+      if (next === undefined || next === null) break;
+      node = next;
+      const l = rangeLine(node, lineCounter);
+      if (l !== undefined && !(isMap(node) || isSeq(node))) best = l;
+      else if (l !== undefined && typeof key === 'number') best = l;
+    }
+    return best;
+  };
+  return { file, data, lineOf, text };
+}
+
+function rangeLine(node: unknown, lc: LineCounter): number | undefined {
+  const range = (node as Node | undefined)?.range;
+  if (!range) return undefined;
+  return lc.linePos(range[0]).line;
+}
+
+export function loadYamlFile(file: string, what = 'YAML file'): LoadedYaml {
+  return parseYamlText(readTextFile(file, what), file);
+}
+
+/** Validate with a zod schema; every issue becomes a located, readable problem. */
+export function validate<S extends z.ZodType>(schema: S, loaded: LoadedYaml, basePath: readonly PathKey[] = [], data: unknown = loaded.data): z.infer<S> {
+  const result = schema.safeParse(data);
+  if (result.success) return result.data as z.infer<S>;
+  const problems = result.error.issues.map((issue) => issueToError(issue, loaded, basePath));
+  if (problems.length === 1) throw problems[0];
+  throw new UserErrors(`${problems.length} problems in ${loaded.file}:`, problems, { file: loaded.file });
+}
+
+function describeValue(v: unknown): string {
+  if (v === undefined) return 'nothing';
+  if (v === null) return 'null';
+  if (Array.isArray(v)) return 'a list';
+  if (typeof v === 'object') return 'a mapping';
+  if (typeof v === 'string') return `the text '${v.length > 40 ? v.slice(0, 40) + '...' : v}'`;
+  return `${typeof v} ${String(v)}`;
+}
+
+function valueAt(data: unknown, path: readonly PathKey[]): unknown {
+  let v: unknown = data;
+  for (const k of path) {
+    if (v === null || typeof v !== 'object') return undefined;
+    v = (v as Record<string | number, unknown>)[k as string];
+  }
+  return v;
+}
+
+function issueToError(issue: z.core.$ZodIssue, loaded: LoadedYaml, basePath: readonly PathKey[]): UserError {
+  const path = [...basePath, ...(issue.path as PathKey[])];
+  const field = path.map((p) => (typeof p === 'number' ? `[${p}]` : p)).join('.').replace(/\.\[/g, '[');
+  const line = loaded.lineOf(path);
+  const found = valueAt(loaded.data, path);
+  let message: string;
+  switch (issue.code) {
+    case 'unrecognized_keys': {
+      const keys = (issue as { keys: string[] }).keys;
+      const keyLine = loaded.lineOf([...path, keys[0]]);
+      return new UserError(`unknown key${keys.length > 1 ? 's' : ''} ${keys.map((k) => `'${k}'`).join(', ')}. Remove ${keys.length > 1 ? 'them' : 'it'} or check the spelling.`, { file: loaded.file, line: keyLine ?? line, field: field || undefined });
+    }
+    case 'invalid_type':
+      message = found === undefined ? `missing; expected ${(issue as { expected: string }).expected}. Add this field.` : `expected ${(issue as { expected: string }).expected}, found ${describeValue(found)}.`;
+      break;
+    default:
+      message = `${issue.message}${found !== undefined ? ` (found ${describeValue(found)})` : ''}.`;
+  }
+  return new UserError(message, { file: loaded.file, line, field: field || undefined });
+}

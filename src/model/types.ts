@@ -1,0 +1,56 @@
+/** One model run: conditions in, abundance time series out. */
+import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
+import type { Network } from '../chem/network-types.ts';
+
+export interface SolverSettings {
+  rtol: number;
+  /** Absolute tolerance in fractional abundance. */
+  atol: number;
+  maxSteps?: number;
+}
+
+export interface ModelInput {
+  network: Network;
+  conditions: PhysicalConditions;
+  grain: GrainOptions;
+  /** Initial fractional abundances x_i = n_i/n_H, by species name; others start at 0. */
+  initial: Readonly<Record<string, number>>;
+  /** Output times, years (Julian, 3.15576e7 s), increasing, > 0. */
+  timesYr: Float64Array;
+  solver: SolverSettings;
+  /** Leave out the terms that are not mass-action (photodesorption above a monolayer, self-shielding). */
+  massActionOnly?: boolean;
+}
+
+export interface ConservationReport {
+  /** Largest relative drift of any element total or of the charge balance (relative to the total positive charge). */
+  maxRelativeDrift: number;
+  /** What drifted most: an element symbol or 'charge'. */
+  worst: string;
+  perElement: Record<string, number>;
+  chargeDrift: number;
+}
+
+export interface ModelStats {
+  steps: number;
+  failedSteps: number;
+  rhsEvals: number;
+  jacobianEvals: number;
+  factorizations: number;
+  newtonFailures: number;
+}
+
+export interface ModelResult {
+  species: string[];
+  timesYr: Float64Array;
+  /** Row-major [time][species] fractional abundances. */
+  abundances: Float64Array;
+  status: 'ok' | 'failed';
+  /** Reason and time of a failure, as a sentence. */
+  failure?: string;
+  conservation: ConservationReport;
+  stats: ModelStats;
+  /** Temperature-range clamps applied, reported once each (reaction index -> text). */
+  clampNotes: string[];
+  wallMs: number;
+}

@@ -1,0 +1,66 @@
+/** A typed observation set: what every reader produces and the fit stage reads. */
+
+export type MeasurementKind = 'detection' | 'upper' | 'lower';
+
+/** A column density (cm^-2) or a derived quantity in linear units. */
+export interface Measurement {
+  kind: MeasurementKind;
+  value: number;
+  /** Lower and upper 1-sigma errors in the same units (equal for symmetric errors); absent for limits. */
+  errLo?: number;
+  errHi?: number;
+  /** Confidence level of a limit, as a fraction (0.997 for a 3-sigma limit). */
+  confidence?: number;
+}
+
+export interface Sightline {
+  /** Name from the file (a star, a position) or `x,y` for a map pixel. */
+  id: string;
+  /** Observed line-of-sight A_V, mag. */
+  av?: number;
+  avErr?: number;
+  ra?: number;
+  dec?: number;
+  /** Map pixel coordinates, 0-based. */
+  pixel?: { x: number; y: number };
+  /** Species name (network syntax) -> column density, cm^-2. */
+  columns: Record<string, Measurement>;
+  /** Where it came from, for error messages. */
+  source: { file: string; row?: number; line?: number };
+}
+
+export interface MapGeometry {
+  nx: number;
+  ny: number;
+  /** WCS and other header cards to carry to the outputs (keyword -> value). */
+  wcs: Record<string, string | number | boolean>;
+}
+
+export interface ObservationSet {
+  file: string;
+  kind: 'table' | 'map';
+  sightlines: Sightline[];
+  map?: MapGeometry;
+  warnings: string[];
+}
+
+/**
+ * One observed quantity ready for scoring: an abundance relative to H nuclei
+ * (denominator undefined) or a ratio numerator/denominator, in log10 with
+ * errors in dex.
+ */
+export interface ObservedQuantity {
+  sightline: string;
+  /** Display label, e.g. `CO(s)/H2O(s)` or `X(CO)`. */
+  label: string;
+  numerator: string;
+  denominator?: string;
+  kind: MeasurementKind;
+  /** log10 of the value (or of the limit). */
+  log10: number;
+  /** Errors in dex below and above; 0 for limits. */
+  sigmaLoDex: number;
+  sigmaHiDex: number;
+  /** Confidence of a limit, when it was given. */
+  confidence?: number;
+}
