@@ -30,7 +30,7 @@ export function readTextFile(file: string, what = 'file'): string {
 
 export function parseYamlText(text: string, file: string): LoadedYaml {
   const lineCounter = new LineCounter();
-  const doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true });
+  const doc = parseDocument(text, { lineCounter, prettyErrors: true, uniqueKeys: true });
   if (doc.errors.length > 0) {
     const problems = doc.errors.map((err) => {
       const line = err.linePos?.[0]?.line;
