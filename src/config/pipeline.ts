@@ -9,7 +9,7 @@ import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
 import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
 import { observationsSection } from './sections/observations.ts';
-import { conditionsSection } from './sections/conditions.ts';
+import { conditionsSection, excludeSection } from './sections/conditions.ts';
 import { fitSection } from './sections/fit.ts';
 import { reportSection } from './sections/report.ts';
 
@@ -49,6 +49,8 @@ export const pipelineSchema = z
     network: z.string(),
     observations: observationsSection.optional(),
     conditions: conditionsSection.default({}),
+    /** Grid points to leave out (see sections/conditions.ts). */
+    exclude: excludeSection.default([]),
     grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' }),
     initial: initialSection.default('low-metal'),
     times: timesSection.default({ start_yr: 1e3, end_yr: 1e7, count: 41 }),
