@@ -1,0 +1,166 @@
+/**
+ * Runs the stages of a pipeline in order, skipping each one whose inputs
+ * (the pipeline sections it reads, the files it reads, the output hashes of
+ * the stages before it, the tool version) hash the same as at its last
+ * successful run and whose outputs are still there, unchanged.
+ *
+ * `from`: that stage and every later one run even when unchanged; earlier
+ * ones are brought up to date as usual (skipped when unchanged), so a forced
+ * stage never reads stale inputs.
+ * `only`: that stage alone runs, on whatever the earlier stages left; the
+ * runner warns when those are out of date with the pipeline file.
+ */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { UserError } from '../config/errors.ts';
+import type { Pipeline } from '../config/pipeline.ts';
+import { TOOL_VERSION } from '../config/version.ts';
+import { hashFiles, hashValue } from './hash.ts';
+import { STAGE_NAMES, type StageContext, type StageDataMap, type StageName, type StageSet } from './stages.ts';
+import { readState, writeState, type StageState } from './state.ts';
+
+export type StageStatus = 'ran' | 'skipped' | 'not run';
+
+export interface StageReport {
+  name: StageName;
+  status: StageStatus;
+  seconds: number;
+  inputHash?: string;
+  outputHash?: string;
+  summary: string;
+  warnings: string[];
+  outputs: string[];
+}
+
+export interface RunOptions {
+  from?: StageName;
+  only?: StageName;
+  workers?: number;
+  /** Receives one line per stage, as it finishes. */
+  onStage?(report: StageReport): void;
+  /** Progress and warnings that are not a stage's summary. */
+  progress?(line: string): void;
+}
+
+export interface RunResult {
+  outDir: string;
+  stages: StageReport[];
+  state: StageState;
+  startedAt: string;
+  finishedAt: string;
+}
+
+/** Absolute output folder named by the pipeline file. */
+export function outputFolder(pipeline: Pipeline): string {
+  return pipeline.resolvePath(pipeline.config.output);
+}
+
+export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impls: StageSet<M>, options: RunOptions = {}): Promise<RunResult> {
+  const startedAt = new Date().toISOString();
+  const outDir = outputFolder(pipeline);
+  const progress = options.progress ?? (() => undefined);
+  const state = readState(outDir);
+  const outputHashes = new Map<StageName, string>();
+  const data = new Map<StageName, Promise<unknown>>();
+
+  const ctx: StageContext<M> = {
+    pipeline,
+    outDir,
+    workers: options.workers,
+    progress,
+    upstream: <K extends StageName>(name: K): Promise<M[K]> => {
+      let d = data.get(name);
+      if (!d) {
+        if (!state[name]) {
+          return Promise.reject(new UserError(`the ${name} stage has no results in ${outDir} yet. Run the whole pipeline first (without --only).`));
+        }
+        d = impls[name].load(ctx);
+        data.set(name, d);
+      }
+      return d as Promise<M[K]>;
+    },
+  };
+
+  const outputHashOf = async (name: StageName, outputs: readonly string[]): Promise<string | undefined> => {
+    if (!outputs.every((o) => existsSync(join(outDir, o)))) return undefined;
+    const impl = impls[name];
+    if (impl.outputHash) return impl.outputHash(ctx, outputs);
+    const files: Record<string, string> = {};
+    for (const o of outputs) files[o] = join(outDir, o);
+    return hashFiles(files);
+  };
+
+  const reports: StageReport[] = [];
+  const fromIndex = options.from ? STAGE_NAMES.indexOf(options.from) : Infinity;
+  for (const [index, name] of STAGE_NAMES.entries()) {
+    const impl = impls[name];
+    const inputs = impl.inputs(ctx);
+    const upstreamHashes: Record<string, string> = {};
+    for (const u of inputs.after) {
+      const h = outputHashes.get(u) ?? state[u]?.outputHash;
+      if (h === undefined) {
+        if (options.only) throw new UserError(`--only ${name} needs the results of the ${u} stage, and there are none in ${outDir}. Run the whole pipeline first.`);
+        throw new Error(`stage ${name} reads ${u}, which has not run before it`);
+      }
+      upstreamHashes[u] = h;
+    }
+    const inputHash = hashValue({ stage: name, tool: TOOL_VERSION, config: inputs.config, files: hashFiles(inputs.files), upstream: upstreamHashes });
+    const record = state[name];
+    const selected = options.only === undefined || options.only === name;
+    const forced = options.only === name || index >= fromIndex;
+
+    if (!selected) {
+      if (record) outputHashes.set(name, record.outputHash);
+      const stale = !record || record.inputHash !== inputHash;
+      const report: StageReport = { name, status: 'not run', seconds: 0, inputHash: record?.inputHash, outputHash: record?.outputHash, summary: record ? `left as it was${stale ? ' (out of date with the pipeline file)' : ''}` : 'never run', warnings: [], outputs: record?.outputs ?? [] };
+      if (stale && index < STAGE_NAMES.indexOf(options.only as StageName)) {
+        report.warnings.push(`the ${name} stage is out of date with the pipeline file; --only ${options.only} uses its old results.`);
+      }
+      reports.push(report);
+      options.onStage?.(report);
+      continue;
+    }
+
+    const t0 = performance.now();
+    if (!forced && record && record.inputHash === inputHash) {
+      const current = await outputHashOf(name, record.outputs);
+      if (current === record.outputHash) {
+        outputHashes.set(name, record.outputHash);
+        const report: StageReport = { name, status: 'skipped', seconds: (performance.now() - t0) / 1000, inputHash, outputHash: record.outputHash, summary: record.summary, warnings: [], outputs: record.outputs };
+        reports.push(report);
+        options.onStage?.(report);
+        continue;
+      }
+    }
+
+    delete state[name];
+    writeState(outDir, state);
+    const outcome = await impl.run(ctx);
+    data.set(name, Promise.resolve(outcome.data));
+    const outputHash = await outputHashOf(name, outcome.outputs);
+    if (outputHash === undefined) {
+      const missing = outcome.outputs.filter((o) => !existsSync(join(outDir, o)));
+      throw new Error(`stage ${name} reported outputs it did not write: ${missing.join(', ')}`);
+    }
+    const seconds = (performance.now() - t0) / 1000;
+    state[name] = { inputHash, outputHash, outputs: outcome.outputs, summary: outcome.summary, finishedAt: new Date().toISOString(), seconds };
+    writeState(outDir, state);
+    outputHashes.set(name, outputHash);
+    const report: StageReport = { name, status: 'ran', seconds, inputHash, outputHash, summary: outcome.summary, warnings: outcome.warnings ?? [], outputs: outcome.outputs };
+    reports.push(report);
+    options.onStage?.(report);
+  }
+  return { outDir, stages: reports, state, startedAt, finishedAt: new Date().toISOString() };
+}
+
+/** The terminal line of one stage: name, what happened, the time it took, the summary. */
+export function formatStageLine(r: StageReport): string {
+  const status = r.status === 'skipped' ? 'unchanged' : r.status;
+  return `${r.name.padEnd(8)} ${status.padEnd(10)} ${formatSeconds(r.seconds).padStart(8)}  ${r.summary}`;
+}
+
+function formatSeconds(s: number): string {
+  if (s < 60) return `${s.toFixed(s < 10 ? 2 : 1)} s`;
+  const m = Math.floor(s / 60);
+  return `${m} min ${Math.round(s - 60 * m)} s`;
+}
