@@ -1,0 +1,86 @@
+/**
+ * What the report stage reads and writes. The pipeline stage builds a
+ * ReportInput from the fit stage's outputs (OUT/fit/*.json), the observation
+ * set, the observed quantities, model tracks of the best fits (read from the
+ * model store) and the run's provenance, then calls
+ * `writeReport(input, outDir)` (src/report/index.ts).
+ */
+import type { ReportSection } from '../config/sections/report.ts';
+import type { FitStageResult, MapFitJson, ProfilesJson } from '../fit/types.ts';
+import type { ObservationSet, ObservedQuantity } from '../obs/types.ts';
+
+/**
+ * One model quantity against time for one sightline's fit: the abundance
+ * (relative to H nuclei) or ratio named by `label`, as the fit compared it.
+ */
+export interface ModelTrack {
+  sightline: string;
+  /** Same label as the ObservedQuantity and the fit's QuantityScore (e.g. `CO(s)/H2O(s)`). */
+  label: string;
+  modelId: string;
+  /** The best fit's model, or a runner-up drawn fainter. */
+  role: 'best' | 'runner-up';
+  timesYr: number[];
+  /** log10 of the abundance or ratio at each time; null where the model has none (zero abundance). */
+  log10: (number | null)[];
+}
+
+/** How the run was made, shown in the HTML report so a figure can be reproduced. */
+export interface ReportProvenance {
+  toolVersion: string;
+  nodeVersion: string;
+  commandLine: string[];
+  pipelineFile?: string;
+  /** Content hashes by what they hash: `pipeline`, `network`, `store`, `observations`, ... */
+  hashes: Record<string, string>;
+  /** Anything else worth recording (platform, start time), shown as given. */
+  extra?: Record<string, string>;
+}
+
+export interface ReportInput {
+  /** Title of the report (the pipeline's name). */
+  title: string;
+  /** The pipeline's `report:` section, validated (defaults applied). */
+  config: ReportSection;
+  /** Where `config` came from, for error messages (the pipeline file). */
+  configFile?: string;
+  fit: FitStageResult;
+  /** Profiles (OUT/fit/profiles.json); without them the chi^2 map and profile figures cannot be drawn. */
+  profiles?: ProfilesJson;
+  /** Map images (OUT/fit/map.json) when the observations are a map. */
+  map?: MapFitJson;
+  observations: ObservationSet;
+  quantities: ObservedQuantity[];
+  /** Tracks of the best-fit models (and any runner-ups), per sightline and quantity. */
+  tracks: ModelTrack[];
+  provenance: ReportProvenance;
+  /** Model cautions to print; defaults to the fit stage's cautions, else the report's own. */
+  cautions?: string[];
+}
+
+export type FigureFormat = 'svg' | 'png' | 'pdf';
+
+export interface FigureFile {
+  /** File name stem (NAME of NAME.vl.json, NAME.svg, ...). */
+  name: string;
+  kind: string;
+  title: string;
+  sightline?: string;
+  /** Absolute paths: the Vega-Lite spec and each rendered format. */
+  spec: string;
+  rendered: Partial<Record<FigureFormat, string>>;
+}
+
+/** Every file the report wrote (absolute paths). */
+export interface ReportFiles {
+  dir: string;
+  html: string;
+  figures: FigureFile[];
+  tables: { csv: string; json: string; latex: string };
+  /** FITS images of map results (empty for a table of sightlines). */
+  maps: string[];
+  /** Every file written, sorted. */
+  all: string[];
+  /** Figures that could not be drawn and why (no A_V, no profiles, ...). */
+  warnings: string[];
+}
