@@ -1,0 +1,253 @@
+/**
+ * Rate coefficients of every reaction of a network for given physical
+ * conditions (physics.md sections 1-3). Coefficients are in number-density
+ * units: s^-1 for one reactant, cm^3 s^-1 for two (the event rate per volume
+ * is k n_i n_j); src/chem/system.ts folds them with n_H for fractional
+ * abundances.
+ */
+import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
+import { UserError } from '../config/errors.ts';
+import { CR_REFERENCE_RATE } from './constants.ts';
+import { RATE_LAWS } from './laws.ts';
+import { accretionRate } from './grain-accretion.ts';
+import { crDesorptionRate, photodesorptionFlux, photodesorptionRate, thermalDesorptionRate, vibrationFrequency } from './grain-desorption.ts';
+import { grainProperties, type GrainProperties } from './grain-properties.ts';
+import {
+  competingProbability,
+  diffusionRate,
+  hoppingRate,
+  reactionProbability,
+  reducedMass,
+  surfaceReactionCoefficient,
+} from './grain-surface.ts';
+import type { Network, Reaction } from './network-types.ts';
+import type { Species } from './species.ts';
+
+/**
+ * How a reaction enters the system. 'mass-action': event rate k times the
+ * product of its reactants' densities. 'monolayer-photodesorption': the
+ * first-order rate k below one monolayer, saturating to a fixed rate per grain
+ * above it. 'parametric-h2': event rate k n_H n(H), using both listed H atoms.
+ */
+export type RateForm = 'mass-action' | 'monolayer-photodesorption' | 'parametric-h2';
+
+export interface ReactionRate {
+  reaction: Reaction;
+  /** s^-1 (one reactant, and photodesorption below a monolayer) or cm^3 s^-1 (two reactants, and the parametric H2 R_f). */
+  k: number;
+  form: RateForm;
+}
+
+export interface SkippedReaction {
+  reaction: Reaction;
+  reason: string;
+}
+
+export interface RateSet {
+  rates: ReactionRate[];
+  /** Reactions left out for these options (the other H2 route, helium accretion), each with why. */
+  skipped: SkippedReaction[];
+  /** One note per reaction whose gas temperature was clamped to its valid range. */
+  clampNotes: string[];
+  grain: GrainProperties;
+}
+
+/** Gas species that do not stay on a grain: helium binds at about 100 K (physics.md section 3). */
+const NON_STICKING = new Set(['He']);
+
+/**
+ * The law's default yield. The condition `photodesorption_yield` is the yield
+ * of a reaction that gives none; a reaction giving its own yield keeps its
+ * ratio to the default, so the condition scales all photodesorption alike.
+ */
+const DEFAULT_PHOTODESORPTION_YIELD = RATE_LAWS.photodesorption.params.find((q) => q.name === 'yield')?.default ?? 1e-3;
+
+/** Species whose surface hopping may tunnel (HHL92: H and H2). */
+const TUNNELLING_SPECIES = new Set(['H', 'H2']);
+
+function describe(r: Reaction): string {
+  return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
+}
+
+function where(r: Reaction): { file: string; line?: number; row?: number } {
+  return { file: r.source.file, line: r.source.line, row: r.source.row };
+}
+
+/** Modified Arrhenius (Kooij) k = alpha (T/300)^beta exp(-gamma/T), T clamped to [tmin, tmax] (common practice). */
+export function arrheniusRate(alpha: number, beta: number, gamma: number, temperature: number): number {
+  return alpha * Math.pow(temperature / 300, beta) * Math.exp(-gamma / temperature);
+}
+
+/** Direct cosmic-ray process and cosmic-ray induced UV (Prasad & Tarafdar 1983): k = alpha zeta / zeta_0. */
+export function cosmicRayRate(alpha: number, crIonisationRate: number): number {
+  return alpha * (crIonisationRate / CR_REFERENCE_RATE);
+}
+
+/** External UV photoreaction k = alpha G0 exp(-gamma A_V) (common practice). */
+export function interstellarUvRate(alpha: number, gamma: number, uvField: number, visualExtinction: number): number {
+  return alpha * uvField * Math.exp(-gamma * visualExtinction);
+}
+
+/** Per-species grain quantities, computed once per species on demand. */
+class SurfaceData {
+  private readonly nu0 = new Map<string, number>();
+  constructor(
+    private readonly network: Network,
+    private readonly c: PhysicalConditions,
+  ) {}
+
+  species(name: string): Species {
+    const i = this.network.speciesIndex.get(name);
+    if (i === undefined) throw new Error(`species ${name} is not in network ${this.network.name}`);
+    return this.network.species[i];
+  }
+
+  mass(name: string): number {
+    const s = this.species(name);
+    return this.network.speciesData.get(s.gasName)?.mass ?? s.mass;
+  }
+
+  bindingEnergy(name: string, r: Reaction): number {
+    const s = this.species(name);
+    const e = this.network.speciesData.get(s.gasName)?.bindingEnergy;
+    if (e === undefined) {
+      throw new UserError(
+        `reaction ${describe(r)} (${r.law}) needs the binding energy of ${s.gasName}, which the network does not give. Add binding_energy for ${s.gasName} to the species data of ${this.network.file}.`,
+        where(r),
+      );
+    }
+    return e;
+  }
+
+  vibrationFrequency(name: string, r: Reaction): number {
+    let v = this.nu0.get(name);
+    if (v === undefined) {
+      v = vibrationFrequency(this.c.site_density, this.bindingEnergy(name, r), this.mass(name));
+      this.nu0.set(name, v);
+    }
+    return v;
+  }
+
+  hop(name: string, r: Reaction, tunnelling: boolean): number {
+    const s = this.species(name);
+    const barrier = this.c.diffusion_ratio * this.bindingEnergy(name, r);
+    const tunnelMass = tunnelling && TUNNELLING_SPECIES.has(s.gasName) ? this.mass(name) : undefined;
+    return hoppingRate(this.vibrationFrequency(name, r), barrier, this.c.dust_temperature, tunnelMass);
+  }
+}
+
+function gasNameKey(names: readonly string[], data: SurfaceData): string {
+  return names
+    .map((n) => data.species(n).gasName)
+    .sort()
+    .join(' ');
+}
+
+function isHPlusH(r: Reaction, data: SurfaceData): boolean {
+  return r.reactants.length === 2 && r.reactants.every((n) => data.species(n).gasName === 'H');
+}
+
+/** Evaluate every reaction's coefficient (physics.md sections 1-3). */
+export function computeRates(network: Network, c: PhysicalConditions, grain: GrainOptions): RateSet {
+  const props = grainProperties(c);
+  const grainDensity = props.abundance * c.density;
+  const data = new SurfaceData(network, c);
+  const rates: ReactionRate[] = [];
+  const skipped: SkippedReaction[] = [];
+  const clampNotes: string[] = [];
+  const flux = photodesorptionFlux(c.uv_field, c.visual_extinction, c.cr_ionisation_rate);
+  const f = c.reactive_desorption;
+
+  // Surface channels that have a reactive-desorption partner give up the share f to the gas.
+  const desorbingChannels = new Set<string>();
+  for (const r of network.reactions) {
+    if (r.law === 'reactive-desorption') desorbingChannels.add(`${[...r.reactants].sort().join(' ')} > ${gasNameKey(r.products, data)}`);
+  }
+
+  const surfaceCoefficient = (r: Reaction): number => {
+    const [a, b] = r.reactants;
+    const same = a === b;
+    const hopA = data.hop(a, r, grain.tunnelling);
+    const hopB = same ? hopA : data.hop(b, r, grain.tunnelling);
+    let kappa = reactionProbability(r.params.activation_energy, c.dust_temperature, reducedMass(data.mass(a), data.mass(b)));
+    if (grain.diffusionCompetition) {
+      const nu = Math.max(data.vibrationFrequency(a, r), data.vibrationFrequency(b, r));
+      kappa = competingProbability(kappa, nu, hopA, same ? 0 : hopB);
+    }
+    const k = surfaceReactionCoefficient(kappa, diffusionRate(hopA, props.sitesPerGrain), diffusionRate(hopB, props.sitesPerGrain), same, grainDensity);
+    return k * r.params.branching;
+  };
+
+  for (const r of network.reactions) {
+    const p = r.params;
+    switch (r.law) {
+      case 'arrhenius': {
+        let t = c.gas_temperature;
+        if (t < r.tmin || t > r.tmax) {
+          const clamped = Math.min(Math.max(t, r.tmin), r.tmax);
+          clampNotes.push(
+            `reaction ${r.index + 1} (${describe(r)}): gas temperature ${t} K is outside its valid range ${r.tmin}-${r.tmax} K; evaluated at ${clamped} K`,
+          );
+          t = clamped;
+        }
+        rates.push({ reaction: r, k: arrheniusRate(p.alpha, p.beta, p.gamma, t), form: 'mass-action' });
+        break;
+      }
+      case 'cosmic-ray':
+      case 'cosmic-ray-uv':
+        rates.push({ reaction: r, k: cosmicRayRate(p.alpha, c.cr_ionisation_rate), form: 'mass-action' });
+        break;
+      case 'interstellar-uv':
+        rates.push({ reaction: r, k: interstellarUvRate(p.alpha, p.gamma, c.uv_field, c.visual_extinction), form: 'mass-action' });
+        break;
+      case 'accretion': {
+        const s = data.species(r.reactants[0]);
+        if (NON_STICKING.has(s.gasName)) {
+          skipped.push({ reaction: r, reason: `${s.gasName} does not stay on grains (binding about 100 K, physics.md section 3): accretion left out` });
+          break;
+        }
+        rates.push({ reaction: r, k: accretionRate(p.sticking, props.crossSection, c.gas_temperature, data.mass(r.reactants[0]), grainDensity), form: 'mass-action' });
+        break;
+      }
+      case 'thermal-desorption': {
+        const name = r.reactants[0];
+        rates.push({ reaction: r, k: thermalDesorptionRate(data.vibrationFrequency(name, r), data.bindingEnergy(name, r), c.dust_temperature), form: 'mass-action' });
+        break;
+      }
+      case 'cr-desorption': {
+        const name = r.reactants[0];
+        rates.push({ reaction: r, k: crDesorptionRate(data.vibrationFrequency(name, r), data.bindingEnergy(name, r), c.cr_ionisation_rate), form: 'mass-action' });
+        break;
+      }
+      case 'photodesorption': {
+        const y = p.yield * (c.photodesorption_yield / DEFAULT_PHOTODESORPTION_YIELD);
+        rates.push({ reaction: r, k: photodesorptionRate(y, flux, props.crossSection, props.sitesPerGrain), form: 'monolayer-photodesorption' });
+        break;
+      }
+      case 'surface':
+      case 'reactive-desorption': {
+        if (grain.h2Formation === 'parametric' && isHPlusH(r, data)) {
+          skipped.push({ reaction: r, reason: 'H2 forms at the parametric rate (grain.h2_formation: parametric): the surface H + H route is left out' });
+          break;
+        }
+        let k = surfaceCoefficient(r);
+        if (r.law === 'reactive-desorption') k *= f;
+        else if (desorbingChannels.has(`${[...r.reactants].sort().join(' ')} > ${gasNameKey(r.products, data)}`)) k *= 1 - f;
+        rates.push({ reaction: r, k, form: 'mass-action' });
+        break;
+      }
+      case 'parametric-h2':
+        if (grain.h2Formation !== 'parametric') {
+          skipped.push({ reaction: r, reason: 'H2 forms on the surface (grain.h2_formation: surface): the parametric rate is left out' });
+          break;
+        }
+        rates.push({ reaction: r, k: p.alpha, form: 'parametric-h2' });
+        break;
+      default: {
+        const never: never = r.law;
+        throw new Error(`no rate for law ${String(never)}`);
+      }
+    }
+  }
+  return { rates, skipped, clampNotes, grain: props };
+}

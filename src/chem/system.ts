@@ -1,0 +1,345 @@
+/**
+ * A network compiled for fixed physical conditions into one system of rate
+ * equations over fractional abundances x_i = n_i / n_H:
+ *
+ *   dx_s/dt = sum over terms of (products - reactants)_s * k_eff prod_r x_r
+ *
+ * with k_eff = k for one reactant and k n_H for two (so the event rate per H
+ * nucleus is k_eff times the product of the reactants' abundances; for a
+ * surface reaction k n_H = kappa (k_diff,i + k_diff,j) / x_gr, HHL92 with
+ * n_gr = x_gr n_H). Reactant and product indices sit in compressed Int32Arrays;
+ * rhs and Jacobian run over typed arrays with no allocation per call. The
+ * Jacobian's CSR pattern (sorted columns, diagonal included) is fixed at compile
+ * time together with the position of every contribution in it.
+ *
+ * Processes that are not mass-action are terms of their own (NonMassActionTerm):
+ * photodesorption above one monolayer and the parametric H2 formation rate.
+ */
+import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
+import type { Network, Reaction } from './network-types.ts';
+import { computeRates, type RateSet, type SkippedReaction } from './rates.ts';
+
+export interface CsrPattern {
+  rowPtr: Int32Array;
+  colIdx: Int32Array;
+}
+
+/** A term the mass-action arrays cannot express; evaluated by its own code. */
+export interface NonMassActionTerm {
+  readonly name: string;
+  /** (row, column) pairs of the Jacobian it touches. */
+  readonly entries: ReadonlyArray<readonly [number, number]>;
+  /** Called once after the pattern is fixed: the value positions of `entries`, in order. */
+  bind(positions: Int32Array): void;
+  addRhs(y: Float64Array, dydt: Float64Array): void;
+  addJacobian(y: Float64Array, values: Float64Array): void;
+}
+
+export interface MassActionTerms {
+  /** Term t's reactants are reactants[reactantStart[t] .. reactantStart[t+1]). */
+  reactantStart: Int32Array;
+  reactants: Int32Array;
+  productStart: Int32Array;
+  products: Int32Array;
+  /** Effective coefficient: event rate per H nucleus = k prod x_reactants, s^-1. */
+  k: Float64Array;
+  /** Network reaction index of each term. */
+  reaction: Int32Array;
+}
+
+export interface EmittedSystem {
+  species: string[];
+  y0: number[];
+  times_s: number[];
+  terms: { reactants: number[]; products: number[]; k: number }[];
+  omitted: string[];
+}
+
+export interface CompileOptions {
+  /** Leave out every non-mass-action term (they are still named in `omitted`). */
+  massActionOnly?: boolean;
+}
+
+export interface CompiledSystem {
+  n: number;
+  species: string[];
+  terms: MassActionTerms;
+  nonMassAction: NonMassActionTerm[];
+  /** Names of the non-mass-action terms of this model: left out of emitted JSON, and of the run with massActionOnly. */
+  omitted: string[];
+  skipped: SkippedReaction[];
+  clampNotes: string[];
+  rateSet: RateSet;
+  pattern: CsrPattern;
+  rhs(t: number, y: Float64Array, dydt: Float64Array): void;
+  jacobian(t: number, y: Float64Array, values: Float64Array): void;
+  /** The mass-action part as JSON (the --emit-system contract of issue 4). */
+  emit(y0: Float64Array, timesS: Float64Array): EmittedSystem;
+}
+
+function describe(r: Reaction): string {
+  return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
+}
+
+/**
+ * Photodesorption with the monolayer treatment (physics.md section 3): a grain
+ * loses Y F pi a^2 times the share of its outer layer held by species i. Below
+ * one monolayer of ice that share is N_i / N_sites (first order, rate k x_i);
+ * above it, for a well-mixed ice, x_i / x_ice of a full layer, so the rate is
+ * k x_i x_ML / x_ice: the total per grain no longer grows with the ice.
+ */
+class MonolayerPhotodesorption implements NonMassActionTerm {
+  readonly entries: [number, number][] = [];
+  private readonly rows: Int32Array;
+  private readonly rowSign: Float64Array;
+  private positions: Int32Array = new Int32Array(0);
+
+  constructor(
+    readonly name: string,
+    private readonly ice: number,
+    products: Int32Array,
+    private readonly k: number,
+    private readonly monolayer: number,
+    private readonly iceSpecies: Int32Array,
+  ) {
+    this.rows = Int32Array.from([ice, ...products]);
+    this.rowSign = Float64Array.from([-1, ...Array.from(products, () => 1)]);
+    for (const row of this.rows) for (const col of iceSpecies) this.entries.push([row, col]);
+  }
+
+  bind(positions: Int32Array): void {
+    this.positions = positions;
+  }
+
+  private iceTotal(y: Float64Array): number {
+    let s = 0;
+    const idx = this.iceSpecies;
+    for (let q = 0; q < idx.length; q++) s += y[idx[q]];
+    return s;
+  }
+
+  addRhs(y: Float64Array, dydt: Float64Array): void {
+    const xIce = this.iceTotal(y);
+    const rate = xIce <= this.monolayer ? this.k * y[this.ice] : (this.k * this.monolayer * y[this.ice]) / xIce;
+    for (let q = 0; q < this.rows.length; q++) dydt[this.rows[q]] += this.rowSign[q] * rate;
+  }
+
+  addJacobian(y: Float64Array, values: Float64Array): void {
+    const xIce = this.iceTotal(y);
+    const nIce = this.iceSpecies.length;
+    const below = xIce <= this.monolayer;
+    const scale = below ? 0 : (this.k * this.monolayer) / xIce;
+    const cross = below ? 0 : -(scale * y[this.ice]) / xIce;
+    for (let q = 0; q < this.rows.length; q++) {
+      const sign = this.rowSign[q];
+      for (let c = 0; c < nIce; c++) {
+        const col = this.iceSpecies[c];
+        const d = col === this.ice ? (below ? this.k : scale + cross) : cross;
+        values[this.positions[q * nIce + c]] += sign * d;
+      }
+    }
+  }
+}
+
+/**
+ * H2 formation at the parametric rate R_f n_H n(H) (Jura 1975): the event rate
+ * per H nucleus is R_f n_H x_H while each event uses the two H atoms listed, so
+ * the rate's order differs from the stoichiometry: not mass-action.
+ */
+class ParametricH2 implements NonMassActionTerm {
+  readonly entries: [number, number][] = [];
+  private readonly rows: Int32Array;
+  private readonly rowSign: Float64Array;
+  private positions: Int32Array = new Int32Array(0);
+
+  constructor(
+    readonly name: string,
+    private readonly hydrogen: number,
+    reactants: Int32Array,
+    products: Int32Array,
+    private readonly k: number,
+  ) {
+    this.rows = Int32Array.from([...reactants, ...products]);
+    this.rowSign = Float64Array.from([...Array.from(reactants, () => -1), ...Array.from(products, () => 1)]);
+    for (const row of this.rows) this.entries.push([row, hydrogen]);
+  }
+
+  bind(positions: Int32Array): void {
+    this.positions = positions;
+  }
+
+  addRhs(y: Float64Array, dydt: Float64Array): void {
+    const rate = this.k * y[this.hydrogen];
+    for (let q = 0; q < this.rows.length; q++) dydt[this.rows[q]] += this.rowSign[q] * rate;
+  }
+
+  addJacobian(_y: Float64Array, values: Float64Array): void {
+    for (let q = 0; q < this.rows.length; q++) values[this.positions[q]] += this.rowSign[q] * this.k;
+  }
+}
+
+/** Compile a network for fixed conditions (see the module comment). */
+export function compile(network: Network, conditions: PhysicalConditions, grain: GrainOptions, options: CompileOptions = {}): CompiledSystem {
+  const rateSet = computeRates(network, conditions, grain);
+  const n = network.species.length;
+  const species = network.species.map((s) => s.name);
+  const index = (name: string): number => {
+    const i = network.speciesIndex.get(name);
+    if (i === undefined) throw new Error(`species ${name} missing from the species index of ${network.name}`);
+    return i;
+  };
+  const iceSpecies = Int32Array.from(network.species.flatMap((s, i) => (s.phase === 'ice' ? [i] : [])));
+  const nH = conditions.density;
+
+  const massAction = rateSet.rates.filter((r) => r.form === 'mass-action');
+  const special = rateSet.rates.filter((r) => r.form !== 'mass-action');
+  const omitted = special.map((r) => `${r.form} (reaction ${r.reaction.index + 1}: ${describe(r.reaction)})`);
+
+  const m = massAction.length;
+  const reactantStart = new Int32Array(m + 1);
+  const productStart = new Int32Array(m + 1);
+  for (let t = 0; t < m; t++) {
+    reactantStart[t + 1] = reactantStart[t] + massAction[t].reaction.reactants.length;
+    productStart[t + 1] = productStart[t] + massAction[t].reaction.products.length;
+  }
+  const reactants = new Int32Array(reactantStart[m]);
+  const products = new Int32Array(productStart[m]);
+  const k = new Float64Array(m);
+  const reaction = new Int32Array(m);
+  massAction.forEach((rate, t) => {
+    const r = rate.reaction;
+    r.reactants.forEach((name, q) => (reactants[reactantStart[t] + q] = index(name)));
+    r.products.forEach((name, q) => (products[productStart[t] + q] = index(name)));
+    k[t] = r.reactants.length >= 2 ? rate.k * nH ** (r.reactants.length - 1) : rate.k;
+    reaction[t] = r.index;
+  });
+
+  const nonMassAction: NonMassActionTerm[] = [];
+  if (!options.massActionOnly) {
+    for (const rate of special) {
+      const r = rate.reaction;
+      const name = omitted[special.indexOf(rate)];
+      const prod = Int32Array.from(r.products.map(index));
+      if (rate.form === 'monolayer-photodesorption') {
+        nonMassAction.push(new MonolayerPhotodesorption(name, index(r.reactants[0]), prod, rate.k, rateSet.grain.monolayerAbundance, iceSpecies));
+      } else {
+        nonMassAction.push(new ParametricH2(name, index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), prod, rate.k * nH));
+      }
+    }
+  }
+
+  // Sparsity: a term's rate depends on each reactant and changes every reactant and product.
+  const rowsCols: Set<number>[] = Array.from({ length: n }, (_, i) => new Set([i]));
+  for (let t = 0; t < m; t++) {
+    for (let a = reactantStart[t]; a < reactantStart[t + 1]; a++) {
+      const col = reactants[a];
+      for (let b = reactantStart[t]; b < reactantStart[t + 1]; b++) rowsCols[reactants[b]].add(col);
+      for (let b = productStart[t]; b < productStart[t + 1]; b++) rowsCols[products[b]].add(col);
+    }
+  }
+  for (const term of nonMassAction) for (const [row, col] of term.entries) rowsCols[row].add(col);
+  const rowPtr = new Int32Array(n + 1);
+  for (let i = 0; i < n; i++) rowPtr[i + 1] = rowPtr[i] + rowsCols[i].size;
+  const colIdx = new Int32Array(rowPtr[n]);
+  const position = new Map<number, number>();
+  for (let i = 0; i < n; i++) {
+    const cols = [...rowsCols[i]].sort((a, b) => a - b);
+    cols.forEach((col, q) => {
+      colIdx[rowPtr[i] + q] = col;
+      position.set(i * n + col, rowPtr[i] + q);
+    });
+  }
+  const at = (row: number, col: number): number => position.get(row * n + col) as number;
+
+  // For each reactant slot (term t, reactant a): where d(rate)/dx_a lands, with the net stoichiometric sign.
+  const slotStart = new Int32Array(reactants.length + 1);
+  const slotPos: number[] = [];
+  const slotCoef: number[] = [];
+  for (let t = 0; t < m; t++) {
+    for (let a = reactantStart[t]; a < reactantStart[t + 1]; a++) {
+      const col = reactants[a];
+      const net = new Map<number, number>();
+      for (let b = reactantStart[t]; b < reactantStart[t + 1]; b++) net.set(reactants[b], (net.get(reactants[b]) ?? 0) - 1);
+      for (let b = productStart[t]; b < productStart[t + 1]; b++) net.set(products[b], (net.get(products[b]) ?? 0) + 1);
+      for (const [row, coef] of net) {
+        if (coef === 0) continue;
+        slotPos.push(at(row, col));
+        slotCoef.push(coef);
+      }
+      slotStart[a + 1] = slotPos.length;
+    }
+  }
+  const jacPos = Int32Array.from(slotPos);
+  const jacCoef = Float64Array.from(slotCoef);
+  for (const term of nonMassAction) term.bind(Int32Array.from(term.entries.map(([row, col]) => at(row, col))));
+
+  // Net stoichiometry of each term for the rhs, cancelling species that appear on both sides.
+  const netStart = new Int32Array(m + 1);
+  const netSpecies: number[] = [];
+  const netCoef: number[] = [];
+  for (let t = 0; t < m; t++) {
+    const net = new Map<number, number>();
+    for (let b = reactantStart[t]; b < reactantStart[t + 1]; b++) net.set(reactants[b], (net.get(reactants[b]) ?? 0) - 1);
+    for (let b = productStart[t]; b < productStart[t + 1]; b++) net.set(products[b], (net.get(products[b]) ?? 0) + 1);
+    for (const [s, coef] of net) {
+      if (coef === 0) continue;
+      netSpecies.push(s);
+      netCoef.push(coef);
+    }
+    netStart[t + 1] = netSpecies.length;
+  }
+  const rhsSpecies = Int32Array.from(netSpecies);
+  const rhsCoef = Float64Array.from(netCoef);
+
+  const rhs = (_t: number, y: Float64Array, dydt: Float64Array): void => {
+    dydt.fill(0);
+    for (let t = 0; t < m; t++) {
+      let rate = k[t];
+      for (let a = reactantStart[t]; a < reactantStart[t + 1]; a++) rate *= y[reactants[a]];
+      for (let q = netStart[t]; q < netStart[t + 1]; q++) dydt[rhsSpecies[q]] += rhsCoef[q] * rate;
+    }
+    for (let q = 0; q < nonMassAction.length; q++) nonMassAction[q].addRhs(y, dydt);
+  };
+
+  const jacobian = (_t: number, y: Float64Array, values: Float64Array): void => {
+    values.fill(0);
+    for (let t = 0; t < m; t++) {
+      const first = reactantStart[t];
+      const last = reactantStart[t + 1];
+      for (let a = first; a < last; a++) {
+        let partial = k[t];
+        for (let b = first; b < last; b++) if (b !== a) partial *= y[reactants[b]];
+        for (let q = slotStart[a]; q < slotStart[a + 1]; q++) values[jacPos[q]] += jacCoef[q] * partial;
+      }
+    }
+    for (let q = 0; q < nonMassAction.length; q++) nonMassAction[q].addJacobian(y, values);
+  };
+
+  const terms: MassActionTerms = { reactantStart, reactants, productStart, products, k, reaction };
+  const emit = (y0: Float64Array, timesS: Float64Array): EmittedSystem => ({
+    species,
+    y0: Array.from(y0),
+    times_s: Array.from(timesS),
+    terms: Array.from({ length: m }, (_, t) => ({
+      reactants: Array.from(reactants.subarray(reactantStart[t], reactantStart[t + 1])),
+      products: Array.from(products.subarray(productStart[t], productStart[t + 1])),
+      k: k[t],
+    })),
+    omitted,
+  });
+
+  return {
+    n,
+    species,
+    terms,
+    nonMassAction,
+    omitted,
+    skipped: rateSet.skipped,
+    clampNotes: rateSet.clampNotes,
+    rateSet,
+    pattern: { rowPtr, colIdx },
+    rhs,
+    jacobian,
+    emit,
+  };
+}
