@@ -37,6 +37,8 @@ export interface SpeciesData {
 export interface Network {
   name: string;
   file: string;
+  /** Free text from the network file, if it gives one. */
+  description?: string;
   /** Every species appearing in a reaction or the species list, in first-appearance order. */
   species: Species[];
   speciesIndex: ReadonlyMap<string, number>;
