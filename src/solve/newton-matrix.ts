@@ -1,0 +1,56 @@
+/**
+ * The Newton matrix M = I - c J of a BDF step, formed from the Jacobian values
+ * (in the problem's sparsity order), factored, and solved against. A dense
+ * path serves small systems; larger ones use the sparse LU, whose symbolic
+ * analysis is done once, here, per pattern.
+ */
+import { DenseLU } from './dense-lu.ts';
+import type { SparsityPattern } from './types.ts';
+
+/** Systems up to this size use the dense LU (measured with bench/solver.ts). */
+export const DENSE_MAX_N = 24;
+
+export interface NewtonMatrix {
+  /** Forms I - c J from `jacobianValues` and factors it; false if it is singular. */
+  factor(jacobianValues: Float64Array, c: number): boolean;
+  /** Solves (I - c J) x = b in place, with the last factorisation. */
+  solve(b: Float64Array): void;
+}
+
+/** I - c J stored and factored densely. */
+export class DenseNewtonMatrix implements NewtonMatrix {
+  private readonly n: number;
+  private readonly lu: DenseLU;
+  /** Position in the row-major matrix of each pattern entry. */
+  private readonly denseIndex: Int32Array;
+
+  constructor(n: number, pattern: SparsityPattern) {
+    this.n = n;
+    this.lu = new DenseLU(n);
+    const nnz = pattern.rowPtr[n];
+    this.denseIndex = new Int32Array(nnz);
+    for (let i = 0; i < n; i++) {
+      for (let p = pattern.rowPtr[i]; p < pattern.rowPtr[i + 1]; p++) {
+        this.denseIndex[p] = i * n + pattern.colIdx[p];
+      }
+    }
+  }
+
+  factor(jacobianValues: Float64Array, c: number): boolean {
+    const { n, denseIndex } = this;
+    const a = this.lu.lu;
+    a.fill(0);
+    for (let i = 0; i < n; i++) a[i * n + i] = 1;
+    for (let p = 0; p < denseIndex.length; p++) a[denseIndex[p]] -= c * jacobianValues[p];
+    return this.lu.factor();
+  }
+
+  solve(b: Float64Array): void {
+    this.lu.solve(b);
+  }
+}
+
+/** Picks the dense or the sparse Newton matrix for a pattern. */
+export function createNewtonMatrix(n: number, pattern: SparsityPattern): NewtonMatrix {
+  return new DenseNewtonMatrix(n, pattern);
+}
