@@ -11,6 +11,8 @@ export interface Measurement {
   errHi?: number;
   /** Confidence level of a limit, as a fraction (0.997 for a 3-sigma limit). */
   confidence?: number;
+  /** Set when the column came from an integrated optical depth: N = tau_int / A. */
+  fromTau?: { tauInt: number; tauIntErr?: number; band: string; bandStrength: number };
 }
 
 export interface Sightline {
@@ -19,6 +21,9 @@ export interface Sightline {
   /** Observed line-of-sight A_V, mag. */
   av?: number;
   avErr?: number;
+  /** Set when A_V was derived from a K-band extinction (A_V = A_K / (A_K/A_V)). */
+  ak?: number;
+  akErr?: number;
   ra?: number;
   dec?: number;
   /** Map pixel coordinates, 0-based. */
@@ -42,6 +47,10 @@ export interface ObservationSet {
   sightlines: Sightline[];
   map?: MapGeometry;
   warnings: string[];
+  /** Reader that produced the set. */
+  format?: 'csv' | 'tsv' | 'yaml' | 'votable' | 'fits';
+  /** Every species with a column in the file, in file order. */
+  species?: string[];
 }
 
 /**
