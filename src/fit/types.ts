@@ -39,7 +39,9 @@ export interface CandidateTable {
  *   density_lo, density_hi, age_lo_yr, age_hi_yr`, then `<param>` and
  *   `<param>_lo, <param>_hi` for every other grid parameter, then
  *   `density_at_edge, age_at_edge` flags; the bounds are the 68.3% level.
- * - intervals.csv: one row per sightline x parameter x level.
+ * - intervals.csv: one row per sightline (or joint group) x parameter x level.
+ * - residuals.csv: one row per sightline x quantity at the best fit.
+ * - joint_fits.csv: one row per joint group member at the group's shared best values.
  * - fit.json: FitStageResult without the profiles (best fits, residuals,
  *   runner-ups, intervals, joint fits, warnings, cautions).
  * - profiles.json: ProfilesJson (1-D and 2-D profiles per sightline and joint group).
@@ -49,6 +51,8 @@ export const FIT_OUTPUT_FILES = {
   folder: 'fit',
   bestFitsCsv: 'fit/best_fits.csv',
   intervalsCsv: 'fit/intervals.csv',
+  residualsCsv: 'fit/residuals.csv',
+  jointFitsCsv: 'fit/joint_fits.csv',
   fitJson: 'fit/fit.json',
   profilesJson: 'fit/profiles.json',
   mapJson: 'fit/map.json',
@@ -114,9 +118,10 @@ export interface Profile1D {
   parameter: string;
   /** Distinct grid values, ascending. */
   values: number[];
-  chi2Min: number[];
-  /** chi2Min - global chi2 minimum. */
-  deltaChi2: number[];
+  /** null where no candidate open to this sightline has that value (grid exclusions, held parameters). */
+  chi2Min: (number | null)[];
+  /** chi2Min - global chi2 minimum, null where chi2Min is null. */
+  deltaChi2: (number | null)[];
 }
 
 /** A 2-D profile over a pair of parameters: chi^2 minimised over the rest at each pair of grid values. */
@@ -162,6 +167,8 @@ export interface ParameterInterval {
   disjoint: boolean;
   /** The grid has one value of this parameter: it was not fitted. */
   fixed: boolean;
+  /** Only the best grid value lies inside: the region is narrower than the grid spacing there, which the bounds cannot show. */
+  unresolved: boolean;
 }
 
 /** Everything known about the fit of one sightline. */
@@ -175,8 +182,14 @@ export interface SightlineFit {
   /** Share of the used quantities the best fit matches within a factor of 10 (limits satisfied count as agreeing). */
   agreementFraction: number;
   counts: QuantityCounts;
-  /** Number of fitted parameters counted in dof: grid parameters with more than one value, plus age when there are several times. */
+  /** Number of fitted parameters counted in dof: independent grid parameters with more than one value (ties and held parameters excluded), plus age when there are several times. */
   fittedParameters: number;
+  /**
+   * Grid parameters held at one value for this sightline (model A_V tied to
+   * the sightline's own A_V): only candidates with these values were scored,
+   * and these parameters have no profile or interval here.
+   */
+  heldParameters: Record<string, number>;
   residuals: QuantityScore[];
   /** Candidates other than the best within the first level's threshold, by ascending chi2 (at most fit.runner_ups). */
   runnerUps: CandidateRef[];

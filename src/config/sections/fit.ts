@@ -3,18 +3,56 @@ import { z } from 'zod';
 
 export const fitQuantity = z
   .object({
-    species: z.string(),
+    species: z.string().min(1),
     /** `abundance`: X = N/N_H; `ratio`: N/N(reference). */
     as: z.enum(['abundance', 'ratio']).default('ratio'),
+    /** Reference species of a ratio; defaults to observations.reference. */
+    reference: z.string().min(1).optional(),
   })
   .strict();
+export type FitQuantity = z.infer<typeof fitQuantity>;
+
+/** Parameter names a fit can profile or share: any grid condition, or `age_yr` (the output time). */
+const parameterName = z.string().min(1);
+
+export const jointGroup = z
+  .object({
+    name: z.string().min(1),
+    /** Sightline ids of the group, or `all`. */
+    sightlines: z.union([z.literal('all'), z.array(z.string().min(1)).min(2)]),
+    /** Parameters the members share (one value for the whole group): `age_yr`, `density`, ... */
+    share: z.union([parameterName, z.array(parameterName).min(1)]).transform((s) => (typeof s === 'string' ? [s] : s)),
+  })
+  .strict();
+export type JointGroup = z.infer<typeof jointGroup>;
 
 export const fitSection = z
   .object({
     quantities: z.array(fitQuantity).min(1),
-    /** Model-uncertainty floor, dex (common practice: a factor of 2). */
+    /** Model-uncertainty floor added in quadrature to every quantity's error, dex (common practice: rate-coefficient uncertainties of a factor of a few; 0.3 dex is a factor of 2). */
     model_sigma_dex: z.number().min(0).default(0.3),
-    levels: z.array(z.number().gt(0).lt(1)).default([0.683, 0.954]),
+    /** Width of a limit in dex, added in quadrature to the model floor in the censored likelihood (0: the floor alone). */
+    limit_sigma_dex: z.number().min(0).default(0),
+    /** Confidence levels of the Delta chi^2 regions (68.3% and 95.4%: the 1 and 2 sigma of a Gaussian, common practice). */
+    levels: z.array(z.number().gt(0).lt(1)).min(1).default([0.683, 0.954]),
+    /** Parameters of interest p of the Delta chi^2 thresholds (Avni 1976): 2 for density and age jointly. */
+    parameters_of_interest: z.number().int().min(1).max(10).default(2),
+    /** Pairs of parameters whose 2-D profiles are computed. */
+    pairs: z.array(z.tuple([parameterName, parameterName])).default([['density', 'age_yr']]),
+    /** A model agrees with a quantity when within this factor (common practice: 10, |d| < 1 dex). */
+    agreement_factor: z.number().gt(1).default(10),
+    /** Runner-up candidates listed per sightline (those within the smallest level's region). */
+    runner_ups: z.number().int().min(0).default(10),
+    /**
+     * Count limits in the degrees of freedom. Off by default: a satisfied
+     * limit adds almost nothing to chi^2, so counting it would make a fit
+     * look better than its detections support.
+     */
+    limits_in_dof: z.boolean().default(false),
+    /** A fit with a p-value below this is reported as poor. */
+    poor_fit_p: z.number().gt(0).lt(1).default(0.01),
+    /** Groups of sightlines fitted jointly with shared parameters. */
+    joint: z.array(jointGroup).default([]),
   })
   .strict();
 export type FitSection = z.infer<typeof fitSection>;

@@ -1,0 +1,221 @@
+/**
+ * The fit of every pixel of a map, streaming over candidates: candidates are
+ * taken in blocks small enough to stay in cache, and each block is scored
+ * against every pixel, keeping per pixel only the running best and the
+ * running chi^2 minimum per density value and per age (the two 1-D profiles
+ * the interval images need). Memory grows as pixels x (density values +
+ * times), never as pixels x candidates. The inner loops run on typed arrays
+ * and allocate nothing.
+ */
+import { UserError } from '../config/errors.ts';
+import type { Axis } from './axes.ts';
+import { chiSquarePValue } from './chi-square.ts';
+import type { FitContext } from './context.ts';
+import { lowerLimitCost, upperLimitCost } from './censored.ts';
+import { degreesOfFreedom } from './dof.ts';
+import { usedCount, type ObservationVector } from './observation-vector.ts';
+import { AGE_PARAMETER, MAP_IMAGE_NAMES, type MapFitImages, type MapImageName, type RegionLevel } from './types.ts';
+
+/** Candidates scored per block: their model values (block x terms doubles) stay in the L1/L2 cache while every pixel is visited. */
+const CANDIDATE_BLOCK = 256;
+const DENSITY_PARAMETER = 'density';
+
+export interface MapPixel {
+  x: number;
+  y: number;
+  obs: ObservationVector;
+}
+
+/** Flat per-pixel copies of the observation vectors: entries of pixel p are offsets[p] .. offsets[p + 1]. */
+interface PackedEntries {
+  offsets: Int32Array;
+  term: Int32Array;
+  log10: Float64Array;
+  /** Detections: 1/sigma^2 below and above; limits: sigma in weightLo, kind code in weightHi (1 upper, -1 lower). */
+  weightLo: Float64Array;
+  weightHi: Float64Array;
+}
+
+function pack(pixels: readonly MapPixel[], which: 'detections' | 'limits'): PackedEntries {
+  const offsets = new Int32Array(pixels.length + 1);
+  pixels.forEach((px, i) => {
+    const n = which === 'detections' ? px.obs.detections.length : px.obs.upperLimits.length + px.obs.lowerLimits.length;
+    offsets[i + 1] = offsets[i] + n;
+  });
+  const total = offsets[pixels.length];
+  const packed: PackedEntries = { offsets, term: new Int32Array(total), log10: new Float64Array(total), weightLo: new Float64Array(total), weightHi: new Float64Array(total) };
+  pixels.forEach((px, i) => {
+    let k = offsets[i];
+    const o = px.obs;
+    if (which === 'detections') {
+      for (const j of o.detections) {
+        packed.term[k] = j;
+        packed.log10[k] = o.log10[j];
+        packed.weightLo[k] = o.inverseVarianceLo[j];
+        packed.weightHi[k] = o.inverseVarianceHi[j];
+        k++;
+      }
+    } else {
+      for (const [list, code] of [[o.upperLimits, 1], [o.lowerLimits, -1]] as const) {
+        for (const j of list) {
+          packed.term[k] = j;
+          packed.log10[k] = o.log10[j];
+          packed.weightLo[k] = 1 / o.inverseSigmaLimit[j];
+          packed.weightHi[k] = code;
+          k++;
+        }
+      }
+    }
+  });
+  return packed;
+}
+
+/**
+ * Pixels whose model A_V is tied to their own A_V see only the candidates of
+ * that A_V: each pixel gets the key of its held values (-1 when none) and
+ * each candidate the key of its values on the same axes.
+ */
+function heldKeys(ctx: FitContext, pixels: readonly MapPixel[]): { pixelKey: Int32Array; candidateKey: Int32Array } {
+  const names = [...new Set(pixels.flatMap((p) => Object.keys(p.obs.held)))].sort();
+  const nC = ctx.model.nCandidates;
+  const pixelKey = new Int32Array(pixels.length).fill(-1);
+  const candidateKey = new Int32Array(nC);
+  if (names.length === 0) return { pixelKey, candidateKey };
+  const axes = names.map((n) => ctx.axes.byName.get(n)!);
+  let stride = 1;
+  for (const axis of axes) {
+    for (let c = 0; c < nC; c++) candidateKey[c] += axis.binOfCandidate[c] * stride;
+    pixels.forEach((px, i) => {
+      const v = px.obs.held[axis.name];
+      if (v === undefined) throw new RangeError(`pixel ${px.obs.sightline} does not hold ${axis.name} while others do`);
+      pixelKey[i] = (pixelKey[i] < 0 ? 0 : pixelKey[i]) + axis.values.indexOf(v) * stride;
+    });
+    stride *= axis.values.length;
+  }
+  return { pixelKey, candidateKey };
+}
+
+/** Lowest and highest grid value whose profile lies within the threshold. */
+function regionBounds(mins: Float64Array, offset: number, n: number, bound: number, values: Float64Array): { lo: number; hi: number; atEdge: boolean } {
+  let first = -1;
+  let last = -1;
+  for (let i = 0; i < n; i++) {
+    if (mins[offset + i] <= bound) {
+      if (first < 0) first = i;
+      last = i;
+    }
+  }
+  return { lo: values[first], hi: values[last], atEdge: n > 1 && (first === 0 || last === n - 1) };
+}
+
+export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly MapPixel[], level: RegionLevel, where: { file?: string } = {}): MapFitImages {
+  const usable = pixels.filter((p) => usedCount(p.obs) > 0);
+  if (usable.length === 0) {
+    throw new UserError(
+      `no pixel of the ${nx} x ${ny} map has a usable value of any fitted quantity (${ctx.model.terms.map((t) => t.label).join(', ')}): every pixel is blank (NaN) or missing. ` +
+        'Check that the map planes hold the species named in fit.quantities and that blank pixels are not the whole image.',
+      { file: where.file, field: 'fit.quantities' },
+    );
+  }
+  const density = ctx.axes.byName.get(DENSITY_PARAMETER);
+  const age = ctx.axes.byName.get(AGE_PARAMETER)!;
+  if (density === undefined) throw new UserError(`the model store has no '${DENSITY_PARAMETER}' parameter, which the map images need.`, { file: where.file });
+
+  const nPix = usable.length;
+  const { pixelKey, candidateKey } = heldKeys(ctx, usable);
+  const nD = density.values.length;
+  const nA = age.values.length;
+  const det = pack(usable, 'detections');
+  const lim = pack(usable, 'limits');
+  const bestChi2 = new Float64Array(nPix).fill(Infinity);
+  const bestCandidate = new Int32Array(nPix).fill(-1);
+  const densityMin = new Float64Array(nPix * nD).fill(Infinity);
+  const ageMin = new Float64Array(nPix * nA).fill(Infinity);
+  const values = ctx.model.values;
+  const nTerms = ctx.model.terms.length;
+  const nC = ctx.model.nCandidates;
+  const dBin = density.binOfCandidate;
+  const aBin = age.binOfCandidate;
+  const dOff = det.offsets;
+  const dTerm = det.term;
+  const dObs = det.log10;
+  const dWLo = det.weightLo;
+  const dWHi = det.weightHi;
+  const lOff = lim.offsets;
+  const lTerm = lim.term;
+  const lObs = lim.log10;
+  const lSigma = lim.weightLo;
+  const lKind = lim.weightHi;
+
+  for (let c0 = 0; c0 < nC; c0 += CANDIDATE_BLOCK) {
+    const c1 = Math.min(nC, c0 + CANDIDATE_BLOCK);
+    for (let p = 0; p < nPix; p++) {
+      const k0 = dOff[p];
+      const k1 = dOff[p + 1];
+      const l0 = lOff[p];
+      const l1 = lOff[p + 1];
+      const dRow = p * nD;
+      const aRow = p * nA;
+      let best = bestChi2[p];
+      let bestC = bestCandidate[p];
+      const key = pixelKey[p];
+      for (let c = c0; c < c1; c++) {
+        if (key >= 0 && candidateKey[c] !== key) continue;
+        const base = c * nTerms;
+        let chi2 = 0;
+        for (let k = k0; k < k1; k++) {
+          const d = values[base + dTerm[k]] - dObs[k];
+          chi2 += d * d * (d > 0 ? dWHi[k] : dWLo[k]);
+        }
+        for (let k = l0; k < l1; k++) {
+          const m = values[base + lTerm[k]];
+          chi2 += lKind[k] > 0 ? upperLimitCost(lObs[k], m, lSigma[k]) : lowerLimitCost(lObs[k], m, lSigma[k]);
+        }
+        if (chi2 < best) {
+          best = chi2;
+          bestC = c;
+        }
+        const di = dRow + dBin[c];
+        if (chi2 < densityMin[di]) densityMin[di] = chi2;
+        const ai = aRow + aBin[c];
+        if (chi2 < ageMin[ai]) ageMin[ai] = chi2;
+      }
+      bestChi2[p] = best;
+      bestCandidate[p] = bestC;
+    }
+  }
+
+  const nTotal = nx * ny;
+  const images = {} as Record<MapImageName, Float64Array>;
+  for (const name of MAP_IMAGE_NAMES) images[name] = new Float64Array(nTotal).fill(NaN);
+  const fitted = ctx.axes.independent.filter((n) => !(n in usable[0].obs.held)).length;
+  const warnings: string[] = [];
+  let poor = 0;
+  let atEdge = 0;
+  usable.forEach((px, p) => {
+    const i = px.y * nx + px.x;
+    const c = bestCandidate[p];
+    const chi2 = bestChi2[p];
+    const counts = { detections: px.obs.detections.length, upperLimits: px.obs.upperLimits.length, lowerLimits: px.obs.lowerLimits.length, skipped: px.obs.skipped.length };
+    const { dof } = degreesOfFreedom(counts, fitted, ctx.options.limitsInDof);
+    const bound = chi2 + level.deltaChi2;
+    const dr = regionBounds(densityMin, p * nD, nD, bound, density.values);
+    const ar = regionBounds(ageMin, p * nA, nA, bound, age.values);
+    const pValue = chiSquarePValue(chi2, dof);
+    images.best_density[i] = density.values[dBin[c]];
+    images.best_age_yr[i] = age.values[aBin[c]];
+    images.best_chi2[i] = chi2;
+    images.reduced_chi2[i] = chi2 / dof;
+    images.p_value[i] = pValue;
+    images.density_width_dex[i] = Math.log10(dr.hi / dr.lo);
+    images.age_width_dex[i] = Math.log10(ar.hi / ar.lo);
+    images.at_edge[i] = dr.atEdge || ar.atEdge ? 1 : 0;
+    images.used_quantities[i] = usedCount(px.obs);
+    if (pValue < ctx.options.poorFitP) poor++;
+    if (dr.atEdge || ar.atEdge) atEdge++;
+  });
+  if (usable.length < pixels.length) warnings.push(`${pixels.length - usable.length} of ${pixels.length} map pixels have no usable quantity and are left blank (NaN) in every image.`);
+  if (poor > 0) warnings.push(`${poor} of ${nPix} fitted pixels are poor fits (p < ${ctx.options.poorFitP}): see the p_value image.`);
+  if (atEdge > 0) warnings.push(`${atEdge} of ${nPix} fitted pixels have a ${(level.level * 100).toFixed(1)}% density or age interval reaching the grid's edge (the at_edge image): the truth may lie outside the grid there.`);
+  return { nx, ny, images, fittedPixels: nPix, level, warnings };
+}

@@ -1,0 +1,93 @@
+/**
+ * One sightline's (or pixel's) observed quantities aligned to the fit's
+ * quantity terms, with the widths of physics.md section 6 folded in:
+ * sigma^2 = sigma_obs^2 + sigma_model^2 for detections (the lower or upper
+ * observational error chosen later by the sign of d), and
+ * sigma^2 = sigma_limit^2 + sigma_model^2 for limits.
+ */
+import type { ObservedQuantity } from '../obs/types.ts';
+import { termKey, type QuantityTerm } from './model-quantities.ts';
+
+export interface ScoringWidths {
+  /** Model-uncertainty floor, dex. */
+  modelSigmaDex: number;
+  /** Width of a limit, dex (added in quadrature to the floor). */
+  limitSigmaDex: number;
+}
+
+export interface ObservationVector {
+  sightline: string;
+  /** Term indices of detections, of upper limits and of lower limits. */
+  detections: Int32Array;
+  upperLimits: Int32Array;
+  lowerLimits: Int32Array;
+  /** Per term: observed log10 value (or limit), 1/sigma^2 below and above (detections), 1/sigma (limits). */
+  log10: Float64Array;
+  inverseVarianceLo: Float64Array;
+  inverseVarianceHi: Float64Array;
+  inverseSigmaLimit: Float64Array;
+  /** The quantity behind each used term, for residual tables. */
+  quantities: (ObservedQuantity | undefined)[];
+  /** Labels of terms without a measurement for this sightline. */
+  skipped: string[];
+  /** Models open to this sightline (1) or not (0); undefined: every model. Set by holdParameters. */
+  modelMask?: Uint8Array;
+  /** Parameters held at one value for this sightline, by name. */
+  held: Record<string, number>;
+}
+
+/**
+ * Aligns quantities to terms. Throws a RangeError on a zero total width (the
+ * caller validates the options first, so a user never meets it).
+ */
+export function buildObservationVector(sightline: string, quantities: readonly ObservedQuantity[], terms: readonly QuantityTerm[], widths: ScoringWidths): ObservationVector {
+  const index = new Map(terms.map((t, i) => [t.key, i]));
+  const n = terms.length;
+  const v: ObservationVector = {
+    sightline,
+    detections: new Int32Array(0),
+    upperLimits: new Int32Array(0),
+    lowerLimits: new Int32Array(0),
+    log10: new Float64Array(n),
+    inverseVarianceLo: new Float64Array(n),
+    inverseVarianceHi: new Float64Array(n),
+    inverseSigmaLimit: new Float64Array(n),
+    quantities: new Array(n).fill(undefined),
+    skipped: [],
+    held: {},
+  };
+  const det: number[] = [];
+  const up: number[] = [];
+  const low: number[] = [];
+  const floor2 = widths.modelSigmaDex ** 2;
+  for (const q of quantities) {
+    const j = index.get(termKey(q.numerator, q.denominator));
+    if (j === undefined) throw new RangeError(`quantity ${q.label} of ${sightline} has no model term`);
+    if (v.quantities[j] !== undefined) throw new RangeError(`quantity ${q.label} of ${sightline} is given twice`);
+    if (!Number.isFinite(q.log10)) continue;
+    v.quantities[j] = q;
+    v.log10[j] = q.log10;
+    if (q.kind === 'detection') {
+      const lo2 = q.sigmaLoDex ** 2 + floor2;
+      const hi2 = q.sigmaHiDex ** 2 + floor2;
+      if (!(lo2 > 0 && hi2 > 0)) throw new RangeError(`quantity ${q.label} of ${sightline} has zero width`);
+      v.inverseVarianceLo[j] = 1 / lo2;
+      v.inverseVarianceHi[j] = 1 / hi2;
+      det.push(j);
+    } else {
+      const s = Math.sqrt(widths.limitSigmaDex ** 2 + floor2);
+      if (!(s > 0)) throw new RangeError(`limit ${q.label} of ${sightline} has zero width`);
+      v.inverseSigmaLimit[j] = 1 / s;
+      (q.kind === 'upper' ? up : low).push(j);
+    }
+  }
+  for (let j = 0; j < n; j++) if (v.quantities[j] === undefined) v.skipped.push(terms[j].label);
+  v.detections = Int32Array.from(det);
+  v.upperLimits = Int32Array.from(up);
+  v.lowerLimits = Int32Array.from(low);
+  return v;
+}
+
+export function usedCount(v: ObservationVector): number {
+  return v.detections.length + v.upperLimits.length + v.lowerLimits.length;
+}
