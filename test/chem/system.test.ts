@@ -1,0 +1,171 @@
+/** The compiled system: folding with n_H, rhs, analytic Jacobian against finite differences (common practice), pattern, emission. */
+import { describe, expect, it } from 'vitest';
+import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
+import { compile, type CompiledSystem } from '../../src/chem/system.ts';
+import { makeNetwork } from '../model/fixtures.ts';
+
+const c = defaultConditions();
+const data = { CO: { bindingEnergy: 1150 }, H: { bindingEnergy: 450 }, O: { bindingEnergy: 800 }, OH: { bindingEnergy: 2850 }, H2O: { bindingEnergy: 5700 }, H2: { bindingEnergy: 430 } };
+const net = makeNetwork(
+  [
+    { reactants: ['H3+', 'CO'], products: ['HCO+', 'H2'], law: 'arrhenius', params: { alpha: 1.6e-9 } },
+    { reactants: ['HCO+', 'e-'], products: ['CO', 'H'], law: 'arrhenius', params: { alpha: 2.4e-7, beta: -0.69 } },
+    { reactants: ['H2'], products: ['H2+', 'e-'], law: 'cosmic-ray', params: { alpha: 1 } },
+    { reactants: ['H2+', 'H2'], products: ['H3+', 'H'], law: 'arrhenius', params: { alpha: 2e-9 } },
+    { reactants: ['CO'], products: ['CO(s)'], law: 'accretion' },
+    { reactants: ['O'], products: ['O(s)'], law: 'accretion' },
+    { reactants: ['H'], products: ['H(s)'], law: 'accretion' },
+    { reactants: ['CO(s)'], products: ['CO'], law: 'photodesorption' },
+    { reactants: ['H2O(s)'], products: ['H2O'], law: 'photodesorption' },
+    { reactants: ['H(s)'], products: ['H'], law: 'thermal-desorption' },
+    { reactants: ['H(s)', 'O(s)'], products: ['OH(s)'], law: 'surface' },
+    { reactants: ['H(s)', 'OH(s)'], products: ['H2O(s)'], law: 'surface' },
+    { reactants: ['H(s)', 'H(s)'], products: ['H2'], law: 'surface' },
+    { reactants: ['H', 'H'], products: ['H2'], law: 'parametric-h2' },
+  ],
+  data,
+);
+
+function randomState(sys: CompiledSystem, scale: number, seed: number): Float64Array {
+  let s = seed;
+  const rand = () => ((s = (s * 16807) % 2147483647) / 2147483647);
+  return Float64Array.from({ length: sys.n }, () => scale * (0.1 + rand()));
+}
+
+function fdCheck(sys: CompiledSystem, y: Float64Array): number {
+  const values = new Float64Array(sys.pattern.colIdx.length);
+  sys.jacobian(0, y, values);
+  const f0 = new Float64Array(sys.n);
+  const f1 = new Float64Array(sys.n);
+  const dense = new Float64Array(sys.n * sys.n);
+  for (let i = 0; i < sys.n; i++) for (let p = sys.pattern.rowPtr[i]; p < sys.pattern.rowPtr[i + 1]; p++) dense[i * sys.n + sys.pattern.colIdx[p]] = values[p];
+  let worst = 0;
+  const rowMax = new Float64Array(sys.n);
+  for (let i = 0; i < sys.n; i++) for (let j = 0; j < sys.n; j++) rowMax[i] = Math.max(rowMax[i], Math.abs(dense[i * sys.n + j]));
+  for (let j = 0; j < sys.n; j++) {
+    const h = 1e-7 * y[j];
+    const yp = Float64Array.from(y);
+    const ym = Float64Array.from(y);
+    yp[j] += h;
+    ym[j] -= h;
+    sys.rhs(0, yp, f1);
+    sys.rhs(0, ym, f0);
+    for (let i = 0; i < sys.n; i++) {
+      const fd = (f1[i] - f0[i]) / (2 * h);
+      const an = dense[i * sys.n + j];
+      const scale = Math.max(Math.abs(fd), Math.abs(an), 1e-30);
+      if (Math.abs(fd - an) > 1e-7 * rowMax[i] && Math.abs(fd - an) / scale > worst) {
+        worst = Math.abs(fd - an) / scale;
+        if (process.env.DEBUG_FD) console.log(i, j, fd, an);
+      }
+    }
+  }
+  return worst;
+}
+
+describe('compile', () => {
+  const sys = compile(net, c, DEFAULT_GRAIN_OPTIONS);
+  it('folds two-body coefficients with n_H and keeps one-body ones', () => {
+    const rates = sys.rateSet.rates;
+    const t0 = Array.from(sys.terms.reaction).indexOf(0);
+    expect(sys.terms.k[t0] / (rates[0].k * c.density)).toBeCloseTo(1, 12);
+    const t4 = Array.from(sys.terms.reaction).indexOf(4);
+    expect(sys.terms.k[t4]).toBe(rates.find((r) => r.reaction.index === 4)!.k);
+  });
+  it('has sorted CSR columns with every diagonal entry', () => {
+    const { rowPtr, colIdx } = sys.pattern;
+    for (let i = 0; i < sys.n; i++) {
+      const cols = Array.from(colIdx.subarray(rowPtr[i], rowPtr[i + 1]));
+      expect(cols).toContain(i);
+      expect(cols).toEqual([...cols].sort((a, b) => a - b));
+      expect(new Set(cols).size).toBe(cols.length);
+    }
+  });
+  it('has an analytic Jacobian equal to central differences of the rhs, below and above a monolayer', () => {
+    const mono = sys.rateSet.grain.monolayerAbundance;
+    expect(fdCheck(sys, randomState(sys, 1e-3 * mono, 7))).toBeLessThan(1e-5);
+    expect(fdCheck(sys, randomState(sys, 10 * mono, 11))).toBeLessThan(1e-5);
+  });
+  it('conserves every element and the charge in the rhs', () => {
+    const y = randomState(sys, 1e-6, 3);
+    const f = new Float64Array(sys.n);
+    sys.rhs(0, y, f);
+    for (const el of ['H', 'C', 'O']) {
+      let total = 0;
+      let scale = 0;
+      net.species.forEach((s, i) => {
+        total += (s.elements[el] ?? 0) * f[i];
+        scale += Math.abs((s.elements[el] ?? 0) * f[i]);
+      });
+      expect(Math.abs(total)).toBeLessThan(1e-12 * scale);
+    }
+    let q = 0;
+    net.species.forEach((s, i) => (q += s.charge * f[i]));
+    expect(Math.abs(q)).toBeLessThan(1e-20);
+  });
+  it('uses two H atoms per H(s) + H(s) event', () => {
+    const y = new Float64Array(sys.n);
+    const iH = net.speciesIndex.get('H(s)')!;
+    y[iH] = 1e-8;
+    const f = new Float64Array(sys.n);
+    sys.rhs(0, y, f);
+    const t = Array.from(sys.terms.reaction).indexOf(12);
+    const event = sys.terms.k[t] * 1e-8 * 1e-8;
+    expect(f[net.speciesIndex.get('H2')!] / event).toBeCloseTo(1, 12);
+    const desorb = sys.rateSet.rates.find((r) => r.reaction.index === 9)!.k * 1e-8;
+    expect((f[iH] + desorb) / (-2 * event)).toBeCloseTo(1, 10);
+  });
+  it('photodesorbs first order below a monolayer and at a fixed rate per grain above it (physics.md section 3)', () => {
+    const mono = sys.rateSet.grain.monolayerAbundance;
+    const k1 = sys.rateSet.rates.find((r) => r.reaction.index === 7)!.k;
+    const iCO = net.speciesIndex.get('CO(s)')!;
+    const iW = net.speciesIndex.get('H2O(s)')!;
+    const photoOnly = compile(makeNetwork([net.reactions[7], net.reactions[8]].map((r) => ({ reactants: r.reactants, products: r.products, law: r.law })), data), c, DEFAULT_GRAIN_OPTIONS);
+    const f = new Float64Array(photoOnly.n);
+    const y = new Float64Array(photoOnly.n);
+    const jCO = photoOnly.species.indexOf('CO(s)');
+    const jW = photoOnly.species.indexOf('H2O(s)');
+    y[jCO] = 0.1 * mono;
+    photoOnly.rhs(0, y, f);
+    expect(-f[jCO] / (k1 * 0.1 * mono)).toBeCloseTo(1, 12);
+    y[jCO] = 30 * mono;
+    y[jW] = 70 * mono;
+    photoOnly.rhs(0, y, f);
+    expect(-(f[jCO] + f[jW]) / (k1 * mono)).toBeCloseTo(1, 12);
+    expect(f[jCO] / f[jW]).toBeCloseTo(30 / 70, 12);
+    expect(fdCheck(photoOnly, y)).toBeLessThan(1e-5);
+    expect(iCO).not.toBe(iW);
+  });
+  it('names the non-mass-action terms and leaves them out on request', () => {
+    expect(sys.omitted).toHaveLength(2);
+    expect(sys.omitted[0]).toMatch(/monolayer-photodesorption .*CO\(s\) -> CO/);
+    expect(sys.nonMassAction).toHaveLength(2);
+    const only = compile(net, c, DEFAULT_GRAIN_OPTIONS, { massActionOnly: true });
+    expect(only.nonMassAction).toHaveLength(0);
+    expect(only.omitted).toEqual(sys.omitted);
+  });
+  it('emits every mass-action term with its reactants, products and effective k', () => {
+    const json = sys.emit(new Float64Array(sys.n), Float64Array.of(1, 2));
+    expect(json.species).toEqual(net.species.map((s) => s.name));
+    expect(json.terms).toHaveLength(sys.terms.k.length);
+    const hh = json.terms[Array.from(sys.terms.reaction).indexOf(12)];
+    const iH = net.speciesIndex.get('H(s)')!;
+    expect(hh.reactants).toEqual([iH, iH]);
+    expect(hh.products).toEqual([net.speciesIndex.get('H2')]);
+    expect(json.times_s).toEqual([1, 2]);
+    expect(JSON.parse(JSON.stringify(json))).toEqual(json);
+  });
+  it('uses the parametric H2 rate R_f n_H x_H with two H atoms per molecule (Jura 1975)', () => {
+    const para = compile(net, c, { ...DEFAULT_GRAIN_OPTIONS, h2Formation: 'parametric' }, {});
+    expect(Array.from(para.terms.reaction)).not.toContain(12);
+    const photo = new Float64Array(para.n);
+    const y = new Float64Array(para.n);
+    y[net.speciesIndex.get('H')!] = 1e-4;
+    para.rhs(0, y, photo);
+    const accretion = para.rateSet.rates.find((r) => r.reaction.index === 6)!.k * 1e-4;
+    const formation = 3e-17 * c.density * 1e-4;
+    expect(photo[net.speciesIndex.get('H2')!] / formation).toBeCloseTo(1, 12);
+    expect((photo[net.speciesIndex.get('H')!] + accretion) / (-2 * formation)).toBeCloseTo(1, 10);
+    expect(fdCheck(para, randomState(para, 1e-6, 5))).toBeLessThan(1e-5);
+  });
+});
