@@ -1,0 +1,81 @@
+/**
+ * Where a grid stands: for the points of the current plan (or one shard),
+ * how many models are done, failed (by reason), missing, and stale (stored
+ * with a different content hash: an input changed since).
+ */
+import { createHash } from 'node:crypto';
+import { existsSync } from 'node:fs';
+import type { GridPlan, PlannedPoint } from './plan.ts';
+import { ModelStore } from './store.ts';
+
+export interface GridStatus {
+  storeFile: string;
+  storeExists: boolean;
+  points: number;
+  done: number;
+  failed: number;
+  failedByReason: Record<string, number>;
+  missing: number;
+  stale: number;
+  /** Rows of the store for points that are not in the grid any more. */
+  outsideGrid: number;
+}
+
+const NUMBER_PATTERN = /[-+]?\d+(\.\d+)?([eE][-+]?\d+)?/g;
+
+/** A failure sentence with its numbers replaced, so that "at t = 1.2e5 yr" and "at t = 3e6 yr" count as one reason. */
+export function failureReason(failure: string): string {
+  return failure.replace(NUMBER_PATTERN, '#').trim() || 'no reason given';
+}
+
+export function gridStatus(storeFile: string, points: readonly PlannedPoint[]): GridStatus {
+  const status: GridStatus = { storeFile, storeExists: existsSync(storeFile), points: points.length, done: 0, failed: 0, failedByReason: {}, missing: 0, stale: 0, outsideGrid: 0 };
+  if (!status.storeExists) {
+    status.missing = points.length;
+    return status;
+  }
+  const store = ModelStore.open(storeFile, { readonly: true });
+  try {
+    const existing = store.existing();
+    const ids = new Set<string>();
+    for (const p of points) {
+      ids.add(p.id);
+      const e = existing.get(p.id);
+      if (!e) status.missing++;
+      else if (e.hash !== p.hash) status.stale++;
+      else if (e.status === 'ok') status.done++;
+      else {
+        status.failed++;
+        const reason = failureReason(e.failure ?? '');
+        status.failedByReason[reason] = (status.failedByReason[reason] ?? 0) + 1;
+      }
+    }
+    for (const id of existing.keys()) if (!ids.has(id)) status.outsideGrid++;
+  } finally {
+    store.close();
+  }
+  return status;
+}
+
+/**
+ * A hash of what a store holds for its current grid: every point's id, model
+ * hash and status, and every stored abundance value, in grid order. Two
+ * stores with the same results hash alike whatever order they were written in.
+ */
+export function storeContentHash(storeFile: string): string {
+  const store = ModelStore.open(storeFile, { readonly: true });
+  try {
+    const h = createHash('sha256').update(store.meta()?.gridHash ?? '');
+    const rows = store.db
+      .prepare(`SELECT g.id, m.hash, m.status, m.failure, m.abundances FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx`)
+      .raw(true);
+    for (const r of rows.iterate() as Iterable<[string, string | null, string | null, string | null, Buffer | null]>) {
+      h.update(`\n${r[0]} ${r[1] ?? '-'} ${r[2] ?? 'missing'} ${r[3] ?? ''}\n`);
+      if (r[4]) h.update(r[4]);
+    }
+    return h.digest('hex');
+  } finally {
+    store.close();
+  }
+}
+

@@ -1,0 +1,25 @@
+/** A model worker thread: loads the network once, then runs the grid's models with runModel. */
+import { UserError } from '../config/errors.ts';
+import { loadNetwork } from '../chem/network.ts';
+import { runModel } from '../model/run.ts';
+import { serveModelTasks } from './worker-protocol.ts';
+
+serveModelTasks((init) => {
+  const network = loadNetwork(init.networkFile);
+  if (network.contentHash !== init.networkHash) {
+    throw new UserError('the network file changed while the grid was starting; rerun the grid.', { file: init.networkFile });
+  }
+  return {
+    species: network.species.map((s) => s.name),
+    run: (conditions) =>
+      runModel({
+        network,
+        conditions,
+        grain: init.grain,
+        initial: init.initial,
+        timesYr: init.timesYr,
+        solver: init.solver,
+        massActionOnly: init.massActionOnly,
+      }),
+  };
+});
