@@ -36,6 +36,7 @@ export interface RunOptions {
   from?: StageName;
   only?: StageName;
   workers?: number;
+  commandLine?: readonly string[];
   /** Receives one line per stage, as it finishes. */
   onStage?(report: StageReport): void;
   /** Progress and warnings that are not a stage's summary. */
@@ -68,6 +69,8 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
     outDir,
     workers: options.workers,
     progress,
+    commandLine: options.commandLine ?? [],
+    outputHashOf: (name) => outputHashes.get(name) ?? state[name]?.outputHash,
     upstream: <K extends StageName>(name: K): Promise<M[K]> => {
       let d = data.get(name);
       if (!d) {

@@ -49,6 +49,10 @@ export interface StageContext<M extends StageDataMap> {
   workers?: number;
   /** Print a progress line (to stderr, so stdout stays the summary). */
   progress(line: string): void;
+  /** The command as typed, for a record of how the outputs were made. */
+  commandLine: readonly string[];
+  /** Output hash of an earlier stage (this run's, or the recorded one). */
+  outputHashOf(name: StageName): string | undefined;
   /** Data of an earlier stage: from this run, or reloaded from its outputs when it was skipped. */
   upstream<K extends StageName>(name: K): Promise<M[K]>;
 }

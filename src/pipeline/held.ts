@@ -1,0 +1,22 @@
+/**
+ * Grid parameters a sightline is held at: with `visual_extinction: { tie:
+ * sightlines }` the grid holds models at each sightline's own (binned) model
+ * A_V, and a sightline may only be compared with the models of its bin.
+ */
+import type { Pipeline } from '../config/pipeline.ts';
+import { DEFAULT_SIGHTLINE_AV_STEP, sightlineModelAv } from '../grid/sightlines.ts';
+import type { ObservationSet } from '../obs/types.ts';
+
+const DEFAULT_MODEL_AV_FRACTION = 0.5;
+
+export function heldParameters(pipeline: Pipeline, observations: ObservationSet): Record<string, Record<string, number>> | undefined {
+  const axis = pipeline.config.conditions.visual_extinction;
+  if (typeof axis !== 'object' || Array.isArray(axis) || !('tie' in axis) || axis.tie !== 'sightlines') return undefined;
+  const fraction = pipeline.config.observations?.model_av_fraction ?? DEFAULT_MODEL_AV_FRACTION;
+  const step = axis.step ?? DEFAULT_SIGHTLINE_AV_STEP;
+  const held: Record<string, Record<string, number>> = {};
+  for (const s of observations.sightlines) {
+    if (s.av !== undefined) held[s.id] = { visual_extinction: sightlineModelAv(Math.max(0, s.av), fraction, step) };
+  }
+  return held;
+}

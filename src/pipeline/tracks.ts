@@ -1,0 +1,57 @@
+/**
+ * Model tracks for the report: the fitted quantities (abundances or ratios)
+ * of each sightline's best-fit model, and of its runner-ups, against time,
+ * read from the model store.
+ */
+import { loadCandidates } from '../grid/candidates.ts';
+import type { FitStageResult, QuantityScore } from '../fit/types.ts';
+import type { ModelTrack } from '../report/types.ts';
+
+interface TrackRequest {
+  sightline: string;
+  modelId: string;
+  role: ModelTrack['role'];
+  residuals: readonly QuantityScore[];
+}
+
+export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: number): ModelTrack[] {
+  const requests: TrackRequest[] = [];
+  for (const f of fit.fits) {
+    requests.push({ sightline: f.sightline, modelId: f.best.modelId, role: 'best', residuals: f.residuals });
+    // Runner-ups can share the best fit's model at another time; a track is per model.
+    const seen = new Set([f.best.modelId]);
+    for (const r of f.runnerUps) {
+      if (seen.size > runnerUps) break;
+      if (seen.has(r.modelId)) continue;
+      seen.add(r.modelId);
+      requests.push({ sightline: f.sightline, modelId: r.modelId, role: 'runner-up', residuals: f.residuals });
+    }
+  }
+  if (requests.length === 0) return [];
+  const species = new Set<string>();
+  for (const q of requests.flatMap((r) => r.residuals)) {
+    species.add(q.numerator);
+    if (q.denominator) species.add(q.denominator);
+  }
+  const table = loadCandidates(storeFile, [...species].sort());
+  const rowOf = new Map(table.modelIds.map((id, i) => [id, i]));
+  const column = new Map(table.species.map((s, i) => [s, i]));
+  const timesYr = Array.from(table.timesYr);
+  const tracks: ModelTrack[] = [];
+  for (const r of requests) {
+    const m = rowOf.get(r.modelId);
+    if (m === undefined) continue;
+    for (const q of r.residuals) {
+      const num = column.get(q.numerator)!;
+      const den = q.denominator === undefined ? undefined : column.get(q.denominator)!;
+      const log10 = timesYr.map((_, t) => {
+        const base = (m * table.nTimes + t) * table.nSpecies;
+        const x = table.abundances[base + num];
+        const value = den === undefined ? x : x / table.abundances[base + den];
+        return value > 0 && Number.isFinite(value) ? Math.log10(value) : null;
+      });
+      tracks.push({ sightline: r.sightline, label: q.label, modelId: r.modelId, role: r.role, timesYr, log10 });
+    }
+  }
+  return tracks;
+}
