@@ -87,6 +87,7 @@ export function runModel(input: ModelInput): ModelResult {
     conservation: conservation.report(),
     stats,
     clampNotes: system.clampNotes,
+    skippedNotes: system.skipped.map((s) => `reaction ${s.reaction.index + 1} (${s.reaction.reactants.join(' + ')} -> ${s.reaction.products.join(' + ')}): ${s.reason}`),
     wallMs: performance.now() - started,
   };
 }

@@ -52,5 +52,7 @@ export interface ModelResult {
   stats: ModelStats;
   /** Temperature-range clamps applied, reported once each (reaction index -> text). */
   clampNotes: string[];
+  /** Reactions of the network left out for these options (the other H2 route, helium accretion), each with why. */
+  skippedNotes?: string[];
   wallMs: number;
 }

@@ -1,0 +1,259 @@
+/**
+ * `hoarfrost model PIPELINE.yaml [--set key=value ...] [--out DIR] [--species LIST]
+ * [--emit-system FILE] [--mass-action-only]`: run one gas-grain model for the
+ * fixed conditions of a pipeline file and write abundances against time
+ * (CSV, JSON), a figure of chosen species (SVG and its Vega-Lite spec), and a
+ * summary on the terminal.
+ */
+import type { Command } from 'commander';
+import type { TopLevelSpec } from 'vega-lite';
+import type { CommandContext } from '../main.ts';
+import type { PhysicalConditions } from '../../config/conditions.ts';
+import type { Pipeline } from '../../config/pipeline.ts';
+import type { ModelResult } from '../../model/types.ts';
+import { logAxis } from '../../report/figures/axes.ts';
+import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig } from '../../report/theme.ts';
+
+/** Species drawn when --species is not given, those of them the network has (the ices and gas a dark-cloud study looks at first). */
+const DEFAULT_FIGURE_SPECIES = ['CO', 'CO(s)', 'H2O(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)', 'HCO+', 'e-'];
+/** Abundances below this are not drawn on the log axis (they are all in the CSV). */
+const FIGURE_FLOOR = 1e-14;
+/** Species listed in the terminal summary. */
+const SUMMARY_COUNT = 8;
+
+interface ModelOptions {
+  set?: string[];
+  out?: string;
+  species?: string;
+  emitSystem?: string;
+  massActionOnly?: boolean;
+}
+
+export function register(program: Command, ctx: CommandContext): void {
+  program
+    .command('model')
+    .description('run one gas-grain model for the fixed conditions of a pipeline file and write its abundances against time')
+    .argument('<pipeline>', 'pipeline YAML file (its network, conditions, grain, initial, times and solver sections are used)')
+    .option('--set <key=value...>', 'override physical conditions, e.g. --set density=2e4 gas_temperature=10')
+    .option('--out <dir>', 'output folder (default: <output of the pipeline>/model)')
+    .option('--species <list>', `comma-separated species for the figure (default: those of ${DEFAULT_FIGURE_SPECIES.join(', ')} in the network)`)
+    .option('--emit-system <file>', 'also write the compiled mass-action system as JSON (species, y0, times_s, terms, omitted)')
+    .option('--mass-action-only', 'leave out the terms that are not mass-action (photodesorption above a monolayer, parametric H2)')
+    .action(async (file: string, opts: ModelOptions) => {
+      await runModelCommand(file, opts, ctx);
+    });
+}
+
+async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandContext): Promise<void> {
+  const { mkdirSync, writeFileSync } = await import('node:fs');
+  const { join, resolve } = await import('node:path');
+  const { loadPipeline } = await import('../../config/pipeline.ts');
+  const { loadNetwork } = await import('../../chem/network.ts');
+  const { compile } = await import('../../chem/system.ts');
+  const { YEAR_SECONDS } = await import('../../chem/constants.ts');
+  const { loadInitialComposition, outputTimesYr, runModel, initialState } = await import('../../model/run.ts');
+  const { UserError } = await import('../../config/errors.ts');
+
+  const pipeline = loadPipeline(file);
+  const cfg = pipeline.config;
+  const conditions = await resolveConditions(pipeline, opts.set ?? []);
+  const network = loadNetwork(pipeline.resolvePath(cfg.network));
+  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network);
+  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
+  const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation };
+  const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name), UserError);
+  const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
+
+  const input = {
+    network,
+    conditions,
+    grain,
+    initial,
+    timesYr,
+    solver: { rtol: cfg.solver.rtol, atol: cfg.solver.atol, maxSteps: cfg.solver.max_steps },
+    massActionOnly: opts.massActionOnly ?? false,
+  };
+  if (opts.emitSystem) {
+    const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly });
+    const emitted = system.emit(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
+    writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n', writeFileSync, UserError);
+  }
+  const result = runModel(input);
+
+  mkdirSync(outDir, { recursive: true });
+  const reached = reachedRows(result);
+  writeOutput(join(outDir, 'abundances.csv'), abundanceCsv(result, reached), writeFileSync, UserError);
+  const json = {
+    network: { name: network.name, file: network.file, content_hash: network.contentHash },
+    conditions,
+    grain: cfg.grain,
+    mass_action_only: input.massActionOnly,
+    status: result.status,
+    failure: result.failure ?? null,
+    species: result.species,
+    times_yr: Array.from(result.timesYr.subarray(0, reached)),
+    abundances: Object.fromEntries(result.species.map((s, i) => [s, Array.from({ length: reached }, (_, k) => result.abundances[k * result.species.length + i])])),
+    conservation: result.conservation,
+    solver: result.stats,
+    temperature_clamps: result.clampNotes,
+    wall_ms: result.wallMs,
+  };
+  writeOutput(join(outDir, 'abundances.json'), JSON.stringify(json, null, 1) + '\n', writeFileSync, UserError);
+
+  const spec = figureSpec(result, reached, figureSpecies, `${network.name}: n_H = ${conditions.density} cm⁻³, T = ${conditions.gas_temperature} K, A_V = ${conditions.visual_extinction} mag`);
+  const { renderSvg } = await import('../../report/render.ts');
+  const rendered = await renderSvg(spec);
+  writeOutput(join(outDir, 'abundances.vl.json'), JSON.stringify(spec, null, 1) + '\n', writeFileSync, UserError);
+  writeOutput(join(outDir, 'abundances.svg'), rendered.svg, writeFileSync, UserError);
+
+  ctx.stdout.write(summary(result, reached, network.name, outDir, opts.emitSystem));
+  ctx.setExitCode(result.status === 'ok' ? 0 : 1);
+}
+
+/** Conditions: defaults, then the pipeline's fixed values, then --set; every value checked. */
+async function resolveConditions(pipeline: Pipeline, sets: string[]): Promise<PhysicalConditions> {
+  const { CONDITION_NAMES, checkConditionValue, defaultConditions, isConditionName } = await import('../../config/conditions.ts');
+  const { UserError, UserErrors } = await import('../../config/errors.ts');
+  const conditions = defaultConditions();
+  const problems: InstanceType<typeof UserError>[] = [];
+  const known = `Known conditions: ${CONDITION_NAMES.join(', ')}.`;
+  for (const [name, value] of Object.entries(pipeline.config.conditions)) {
+    const where = { file: pipeline.file, line: pipeline.yaml.lineOf(['conditions', name]), field: `conditions.${name}` };
+    if (!isConditionName(name)) {
+      problems.push(new UserError(`unknown physical condition '${name}'. ${known}`, where));
+      continue;
+    }
+    if (typeof value !== 'number') {
+      problems.push(new UserError(`'hoarfrost model' runs one model, so each condition must be a single number; found ${Array.isArray(value) ? 'a list' : 'a range or tie'}. Give one value (or override it with --set ${name}=VALUE), or run the grid with 'hoarfrost grid'.`, where));
+      continue;
+    }
+    const bad = checkConditionValue(name, value);
+    if (bad) problems.push(new UserError(`${bad}.`, where));
+    else conditions[name] = value;
+  }
+  for (const assignment of sets) {
+    const m = /^([^=]+)=(.*)$/.exec(assignment);
+    const where = { field: `--set ${assignment}` };
+    if (!m) {
+      problems.push(new UserError(`expected key=value, e.g. --set density=2e4.`, where));
+      continue;
+    }
+    const name = m[1].trim();
+    const text = m[2].trim();
+    if (!isConditionName(name)) {
+      problems.push(new UserError(`unknown physical condition '${name}'. ${known}`, where));
+      continue;
+    }
+    const value = text === '' ? Number.NaN : Number(text);
+    const bad = Number.isNaN(value) ? `${name} must be a number, found '${text}'` : checkConditionValue(name, value);
+    if (bad) problems.push(new UserError(`${bad}.`, where));
+    else conditions[name] = value;
+  }
+  if (problems.length === 1) throw problems[0];
+  if (problems.length > 1) throw new UserErrors(`${problems.length} problems with the physical conditions:`, problems);
+  return conditions;
+}
+
+function chooseSpecies(list: string | undefined, names: string[], UserErrorClass: typeof import('../../config/errors.ts').UserError): string[] {
+  if (list === undefined) {
+    const present = DEFAULT_FIGURE_SPECIES.filter((s) => names.includes(s));
+    return present.length > 0 ? present : names.slice(0, SUMMARY_COUNT);
+  }
+  const wanted = list
+    .split(',')
+    .map((s) => s.trim())
+    .filter((s) => s !== '');
+  const missing = wanted.filter((s) => !names.includes(s));
+  if (wanted.length === 0) throw new UserErrorClass('--species needs at least one species name, e.g. --species CO,H2O(s).', { field: '--species' });
+  if (missing.length > 0) {
+    throw new UserErrorClass(`the network has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s)).`, { field: '--species' });
+  }
+  return wanted;
+}
+
+function writeOutput(path: string, text: string, write: typeof import('node:fs').writeFileSync, UserErrorClass: typeof import('../../config/errors.ts').UserError): void {
+  try {
+    write(path, text);
+  } catch (e) {
+    throw new UserErrorClass(`cannot write output: ${(e as Error).message}. Check that the folder exists and is writable.`, { file: path });
+  }
+}
+
+/** Output rows the solver reached (all of them unless it failed). */
+function reachedRows(result: ModelResult): number {
+  const n = result.species.length;
+  let k = 0;
+  while (k < result.timesYr.length && !Number.isNaN(result.abundances[k * n])) k++;
+  return k;
+}
+
+function csvField(name: string): string {
+  return /[",\n]/.test(name) ? `"${name.replace(/"/g, '""')}"` : name;
+}
+
+function formatAbundance(x: number): string {
+  return x === 0 ? '0' : x.toExponential(5);
+}
+
+function abundanceCsv(result: ModelResult, rows: number): string {
+  const n = result.species.length;
+  const lines = [['time_yr', ...result.species].map(csvField).join(',')];
+  for (let k = 0; k < rows; k++) {
+    const row = [result.timesYr[k].toPrecision(6)];
+    for (let i = 0; i < n; i++) row.push(formatAbundance(result.abundances[k * n + i]));
+    lines.push(row.join(','));
+  }
+  return lines.join('\n') + '\n';
+}
+
+function figureSpec(result: ModelResult, rows: number, species: string[], title: string): TopLevelSpec {
+  const n = result.species.length;
+  const values: { time_yr: number; abundance: number; species: string }[] = [];
+  for (const s of species) {
+    const i = result.species.indexOf(s);
+    for (let k = 0; k < rows; k++) {
+      const x = result.abundances[k * n + i];
+      if (x >= FIGURE_FLOOR) values.push({ time_yr: result.timesYr[k], abundance: x, species: s });
+    }
+  }
+  const tLo = result.timesYr[0];
+  const tHi = result.timesYr[Math.max(0, rows - 1)];
+  const yHi = values.reduce((m, v) => Math.max(m, v.abundance), FIGURE_FLOOR * 10);
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: title, subtitle: `abundances below ${FIGURE_FLOOR} relative to H not drawn` },
+    width: 300,
+    height: 220,
+    data: { values },
+    mark: { type: 'line', strokeWidth: 1.2, clip: true },
+    encoding: {
+      x: { field: 'time_yr', type: 'quantitative', title: 'Time (yr)', scale: { type: 'log', domain: [tLo, tHi], nice: false }, axis: logAxis(tLo, tHi) },
+      y: { field: 'abundance', type: 'quantitative', title: 'Abundance relative to H', scale: { type: 'log', domain: [FIGURE_FLOOR, yHi], nice: false }, axis: logAxis(FIGURE_FLOOR, yHi) },
+      color: { field: 'species', type: 'nominal', title: 'Species', sort: species, scale: { domain: species, range: CATEGORY_COLOURS } },
+      strokeDash: { field: 'species', type: 'nominal', sort: species, scale: { domain: species, range: CATEGORY_DASHES } },
+    },
+    config: figureConfig(),
+  };
+}
+
+function summary(result: ModelResult, rows: number, networkName: string, outDir: string, emitted: string | undefined): string {
+  const n = result.species.length;
+  const lines: string[] = [];
+  lines.push(`model of network ${networkName}: ${n} species, ${result.timesYr.length} output times`);
+  if (result.status !== 'ok') lines.push(`FAILED: ${result.failure}`);
+  if (rows > 0) {
+    const k = rows - 1;
+    const last = result.species.map((s, i) => ({ s, x: result.abundances[k * n + i] })).sort((a, b) => b.x - a.x);
+    lines.push(`most abundant at ${result.timesYr[k].toPrecision(4)} yr (relative to H):`);
+    for (const { s, x } of last.slice(0, SUMMARY_COUNT)) lines.push(`  ${s.padEnd(12)} ${x.toExponential(3)}`);
+  }
+  const c = result.conservation;
+  lines.push(`conservation: largest relative drift ${c.maxRelativeDrift.toExponential(2)} (${c.worst})`);
+  const st = result.stats;
+  lines.push(`solver: ${st.steps} steps (${st.failedSteps} rejected), ${st.rhsEvals} rhs, ${st.jacobianEvals} Jacobians, ${st.factorizations} LU factorisations, ${st.newtonFailures} Newton failures`);
+  lines.push(`time taken: ${result.wallMs.toFixed(0)} ms`);
+  for (const note of result.clampNotes) lines.push(`note: ${note}`);
+  for (const note of result.skippedNotes ?? []) lines.push(`left out: ${note}`);
+  lines.push(`wrote ${outDir}/abundances.csv, abundances.json, abundances.svg, abundances.vl.json${emitted ? `; system: ${emitted}` : ''}`);
+  return lines.join('\n') + '\n';
+}
