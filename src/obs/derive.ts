@@ -1,0 +1,175 @@
+/**
+ * From column densities to what the fit compares with models: abundances
+ * relative to H nuclei and ratios to a reference species, in log10 with
+ * errors in dex, limits carried through (physics.md section 5).
+ *
+ * - N_H = (N_H/A_V) A_V, N_H/A_V = 1.87e21 cm^-2 mag^-1 by default (Bohlin,
+ *   Savage & Drake 1978). Abundances use the observed line-of-sight A_V:
+ *   X = N / N_H. For ice species an extinction threshold can be taken off
+ *   first, A_V - A_th (ice forms only above A_th, about 3 mag for water ice:
+ *   Whittet and co-workers, memory); gas species use the whole A_V.
+ * - The model cloud's A_V is a fraction of the observed one (about half
+ *   toward a background star: common practice); see `modelAv`. That is what
+ *   a grid axis of visual extinction is tied to, not what N_H uses.
+ * - Errors: first-order propagation of independent errors. For X = N / N_H,
+ *   (sigma_X / X)^2 = (sigma_N / N)^2 + (sigma_AV / A_V)^2; for R = N1 / N2,
+ *   (sigma_R / R)^2 = (sigma_1 / N1)^2 + (sigma_2 / N2)^2, taking the lower
+ *   error of N1 with the upper error of N2 for the lower side of R and the
+ *   other way round for the upper side. In dex: sigma_log10 = (sigma / X) /
+ *   ln 10 (Bevington & Robinson, Data Reduction and Error Analysis, ch. 3).
+ *   The uncertainty of N_H/A_V itself is systematic and common to every
+ *   sightline; it is not added, and it cancels in ratios.
+ * - Limits: X of an upper (lower) limit is an upper (lower) limit. A ratio
+ *   of a limit to a detection is a limit of the same kind; a detection over
+ *   an upper limit is a lower limit and over a lower limit an upper limit;
+ *   an upper limit over a lower limit is an upper limit (and the reverse a
+ *   lower limit); two limits of the same kind bound nothing and are reported
+ *   as unusable.
+ */
+import { UserError } from '../config/errors.ts';
+import type { ObservationsSection } from '../config/sections/observations.ts';
+import { isIceName } from '../chem/species.ts';
+import { collect } from './table.ts';
+import type { Measurement, MeasurementKind, ObservationSet, ObservedQuantity, Sightline } from './types.ts';
+
+export interface WantedQuantity {
+  species: string;
+  as: 'abundance' | 'ratio';
+}
+
+/** How many sightline names a warning lists before counting the rest. */
+const MAX_NAMED = 8;
+
+function placeOf(s: Sightline): string {
+  if (s.pixel) return `pixel (${s.pixel.x}, ${s.pixel.y})`;
+  if (s.source.line !== undefined) return `line ${s.source.line} ('${s.id}')`;
+  if (s.source.row !== undefined) return `row ${s.source.row} ('${s.id}')`;
+  return `sightline '${s.id}'`;
+}
+
+function names(ids: string[]): string {
+  return ids.length > MAX_NAMED ? `${ids.slice(0, MAX_NAMED).join(', ')} and ${ids.length - MAX_NAMED} more` : ids.join(', ');
+}
+
+/** N_H = (N_H/A_V) * A_V, cm^-2 (Bohlin, Savage & Drake 1978 for the default ratio). */
+export function hydrogenColumn(av: number, section: Pick<ObservationsSection, 'nh_per_av'>): number {
+  return section.nh_per_av * av;
+}
+
+/** Extinction that N_H is taken from for a species: A_V, less the ice threshold for ice species. */
+export function effectiveAv(av: number, species: string, section: Pick<ObservationsSection, 'ice_threshold_av'>): number {
+  return isIceName(species) ? av - section.ice_threshold_av : av;
+}
+
+/** The model cloud's A_V for a sightline: model_av_fraction * observed A_V (0.5 toward background stars: common practice). */
+export function modelAv(sightline: Sightline, section: Pick<ObservationsSection, 'model_av_fraction'>): number {
+  if (sightline.av === undefined) {
+    throw new UserError(`${placeOf(sightline)} has no A_V (nor A_K), so its model-cloud A_V cannot be set. Add an A_V column or give the extinction as a fixed condition.`, { file: sightline.source.file, line: sightline.source.line, row: sightline.source.row });
+  }
+  return section.model_av_fraction * sightline.av;
+}
+
+function log10Quantity(value: number, relLo: number, relHi: number): { log10: number; sigmaLoDex: number; sigmaHiDex: number } {
+  return { log10: Math.log10(value), sigmaLoDex: relLo / Math.LN10, sigmaHiDex: relHi / Math.LN10 };
+}
+
+/** Kind of N1/N2 from the kinds of N1 and N2; undefined when the ratio is not bounded. */
+export function ratioKind(num: MeasurementKind, den: MeasurementKind): MeasurementKind | undefined {
+  if (den === 'detection') return num;
+  const flipped: MeasurementKind = den === 'upper' ? 'lower' : 'upper';
+  if (num === 'detection') return flipped;
+  return num === flipped ? num : undefined;
+}
+
+function limitConfidence(a: Measurement, b?: Measurement): number | undefined {
+  const ca = a.kind !== 'detection' ? a.confidence : undefined;
+  const cb = b && b.kind !== 'detection' ? b.confidence : undefined;
+  // Both bounds hold together with probability ca * cb for independent measurements.
+  if (ca !== undefined && cb !== undefined) return ca * cb;
+  return ca ?? cb;
+}
+
+export function deriveQuantities(set: ObservationSet, section: ObservationsSection, wanted: readonly WantedQuantity[]): { quantities: ObservedQuantity[]; warnings: string[] } {
+  const quantities: ObservedQuantity[] = [];
+  const warnings: string[] = [];
+  const problems: UserError[] = [];
+  const ref = section.reference;
+  const done = new Set<string>();
+  for (const w of wanted) {
+    const key = `${w.as}:${w.species}`;
+    if (done.has(key)) continue;
+    done.add(key);
+    if (!set.sightlines.some((s) => s.columns[w.species])) {
+      warnings.push(`${set.file}: '${w.species}' is not observed toward any sightline; no ${w.as === 'ratio' ? 'ratio' : 'abundance'} derived.`);
+      continue;
+    }
+    if (w.as === 'abundance') {
+      const noIce: string[] = [];
+      for (const s of set.sightlines) {
+        const m = s.columns[w.species];
+        if (!m) continue;
+        if (s.av === undefined) {
+          problems.push(new UserError(`${s.pixel ? `${placeOf(s)}: ` : ''}the abundance of '${w.species}' is asked for, but this sightline has no A_V (nor A_K). Give its extinction, or fit ratios to ${ref} instead (they need no A_V).`, { file: s.source.file, line: s.source.line, row: s.source.row, field: 'A_V' }));
+          continue;
+        }
+        const avEff = effectiveAv(s.av, w.species, section);
+        if (!(avEff > 0)) {
+          noIce.push(s.id);
+          continue;
+        }
+        const x = m.value / hydrogenColumn(avEff, section);
+        const base = { sightline: s.id, label: `X(${w.species})`, numerator: w.species, kind: m.kind };
+        if (m.kind === 'detection') {
+          const relAv = s.avErr !== undefined ? s.avErr / avEff : 0;
+          const lo = Math.hypot(m.errLo! / m.value, relAv);
+          const hi = Math.hypot(m.errHi! / m.value, relAv);
+          quantities.push({ ...base, ...log10Quantity(x, lo, hi) });
+        } else {
+          const q: ObservedQuantity = { ...base, log10: Math.log10(x), sigmaLoDex: 0, sigmaHiDex: 0 };
+          if (m.confidence !== undefined) q.confidence = m.confidence;
+          quantities.push(q);
+        }
+      }
+      if (noIce.length > 0) {
+        warnings.push(`${set.file}: A_V is at or below the ice threshold (${section.ice_threshold_av} mag) toward ${names(noIce)}; no abundance of '${w.species}' derived there (no ice is expected below the threshold).`);
+      }
+      continue;
+    }
+    if (w.species === ref) {
+      warnings.push(`${set.file}: '${w.species}' is the reference species; its ratio to itself is 1 and is not derived.`);
+      continue;
+    }
+    const noRef: string[] = [];
+    const unbounded: string[] = [];
+    for (const s of set.sightlines) {
+      const n = s.columns[w.species];
+      if (!n) continue;
+      const d = s.columns[ref];
+      if (!d) {
+        noRef.push(s.id);
+        continue;
+      }
+      const kind = ratioKind(n.kind, d.kind);
+      if (!kind) {
+        unbounded.push(`${s.id} (${n.kind} / ${d.kind} limit)`);
+        continue;
+      }
+      const r = n.value / d.value;
+      const base = { sightline: s.id, label: `${w.species}/${ref}`, numerator: w.species, denominator: ref, kind };
+      if (kind === 'detection') {
+        const lo = Math.hypot(n.errLo! / n.value, d.errHi! / d.value);
+        const hi = Math.hypot(n.errHi! / n.value, d.errLo! / d.value);
+        quantities.push({ ...base, ...log10Quantity(r, lo, hi) });
+      } else {
+        const q: ObservedQuantity = { ...base, log10: Math.log10(r), sigmaLoDex: 0, sigmaHiDex: 0 };
+        const c = limitConfidence(n, d);
+        if (c !== undefined) q.confidence = c;
+        quantities.push(q);
+      }
+    }
+    if (noRef.length > 0) warnings.push(`${set.file}: the reference '${ref}' is not observed toward ${names(noRef)}; no ratio ${w.species}/${ref} there.`);
+    if (unbounded.length > 0) warnings.push(`${set.file}: ${w.species}/${ref} is unusable toward ${names(unbounded)}: two limits of the same kind bound nothing.`);
+  }
+  if (problems.length > 0) throw collect(set.file, problems);
+  return { quantities, warnings };
+}

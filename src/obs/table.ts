@@ -1,0 +1,471 @@
+/**
+ * From a table of cells (CSV, TSV, VOTable, FITS binary table, a YAML list
+ * flattened, or the pixels of a FITS map) and a column mapping to sightlines:
+ * units converted, limits read, every value checked. All problems of a file
+ * are collected and reported together; nothing is dropped without a word.
+ */
+import { erf } from 'simple-statistics';
+import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
+import type { ColumnMapping, ObservationFormat, SpeciesColumns } from '../config/sections/observations.ts';
+import { parseSpecies } from '../chem/species.ts';
+import { parseCell, parseFlag, describeCell, type Cell } from './cells.ts';
+import { parseUnit, CANONICAL_UNIT, type Dimension } from './units.ts';
+import type { BandTable } from './bands.ts';
+import type { Measurement, Sightline, MapGeometry, ObservationSet } from './types.ts';
+
+export interface RawColumn {
+  name: string;
+  /** Unit declared in the file (VOTable `unit`, FITS TUNIT/BUNIT). */
+  unit?: string;
+  values: ArrayLike<Cell>;
+  /** Set for FITS vector columns, which cannot hold one value per sightline. */
+  vectorForm?: string;
+}
+
+export interface RowPlace {
+  /** `line 12`, `row 3` or `pixel (4, 7)`, for messages. */
+  text: string;
+  loc: ErrorLocation;
+  source: Sightline['source'];
+  pixel?: { x: number; y: number };
+}
+
+export interface RawTable {
+  file: string;
+  format: ObservationFormat;
+  columns: RawColumn[];
+  nrows: number;
+  /** True when the file declares its units (VOTable, FITS); a mapping's `unit` then only fills gaps. */
+  declaredUnits: boolean;
+  place(row: number): RowPlace;
+  /** Pixels of a map: rows with nothing observed are not sightlines. */
+  map?: MapGeometry;
+  /** Problems the reader found before the mapping (kept in order). */
+  warnings?: string[];
+}
+
+export interface TableOptions {
+  mapping?: ColumnMapping;
+  /** Where the mapping was written, for messages. */
+  mappingSource?: string;
+  knownSpecies?: ReadonlySet<string>;
+  bands: () => BandTable;
+  akPerAv: number;
+  maxErrorRatio: number;
+}
+
+/** At most this many problems are listed one by one; the rest are counted. */
+const MAX_LISTED_PROBLEMS = 40;
+
+const DEFAULT_NAMES = {
+  id: ['id', 'name', 'sightline', 'source', 'star', 'object', 'target'],
+  av: ['av', 'a_v', 'a(v)'],
+  av_error: ['av_err', 'e_av', 'av_error', 'a_v_err', 'e_a_v', 'sigma_av', 'av_sigma'],
+  ak: ['ak', 'a_k', 'a(k)'],
+  ak_error: ['ak_err', 'e_ak', 'ak_error', 'a_k_err', 'e_a_k', 'sigma_ak'],
+  ra: ['ra', 'raj2000', 'ra_deg', '_ra'],
+  dec: ['dec', 'de', 'dej2000', 'dec_deg', '_de'],
+} as const;
+
+/** Naming convention for tables without a mapping: `N(H2O(s))` with `N(H2O(s))_err` (or `e_N(H2O(s))`), `_errlo`/`_errhi`, a flag `l_N(H2O(s))`; `tau(X)` for optical depths. */
+const VALUE_COLUMN = /^N\((.+)\)$/i;
+const TAU_COLUMN = /^tau\((.+)\)$/i;
+
+function companions(base: string): { error: string[]; lo: string[]; hi: string[]; limit: string[]; conf: string[] } {
+  return {
+    error: [`${base}_err`, `e_${base}`, `${base}_error`, `${base}_sigma`],
+    lo: [`${base}_errlo`, `${base}_err_lo`, `${base}_lo`],
+    hi: [`${base}_errhi`, `${base}_err_hi`, `${base}_hi`],
+    limit: [`l_${base}`, `${base}_flag`, `${base}_limit`],
+    conf: [`${base}_conf`, `${base}_confidence`],
+  };
+}
+
+interface SpeciesPlan {
+  name: string;
+  value?: number;
+  error?: number;
+  errorLo?: number;
+  errorHi?: number;
+  limit?: number;
+  confidence?: number;
+  limitConfidence?: number;
+  tau?: number;
+  tauError?: number;
+  band?: { name: string; strength: number };
+  /** Multipliers into cm^-2 (or cm^-1 for tau) of each column. */
+  factors: Map<number, number>;
+}
+
+interface Plan {
+  id?: number;
+  av?: number;
+  avError?: number;
+  ak?: number;
+  akError?: number;
+  ra?: number;
+  dec?: number;
+  extinctionFactors: Map<number, number>;
+  species: SpeciesPlan[];
+  used: Set<number>;
+}
+
+function findColumn(table: RawTable, candidates: readonly string[], exact: boolean): number | undefined {
+  for (const c of candidates) {
+    const i = table.columns.findIndex((col) => col.name === c);
+    if (i >= 0) return i;
+  }
+  if (exact) {
+    for (const c of candidates) {
+      const hits = table.columns.flatMap((col, i) => (col.name.toLowerCase() === c.toLowerCase() ? [i] : []));
+      if (hits.length === 1) return hits[0];
+    }
+    return undefined;
+  }
+  const lower = candidates.map((c) => c.toLowerCase());
+  const i = table.columns.findIndex((col) => lower.includes(col.name.toLowerCase()));
+  return i >= 0 ? i : undefined;
+}
+
+function columnList(table: RawTable): string {
+  const names = table.columns.map((c) => `'${c.name}'`);
+  return names.length > 12 ? `${names.slice(0, 12).join(', ')} and ${names.length - 12} more` : names.join(', ');
+}
+
+function buildPlan(table: RawTable, opts: TableOptions, problems: UserError[], warnings: string[]): Plan {
+  const m = opts.mapping ?? {};
+  const mapSrc = opts.mappingSource ?? 'the column mapping';
+  const what = table.map ? 'image (EXTNAME)' : 'column';
+  const plan: Plan = { extinctionFactors: new Map(), species: [], used: new Set() };
+  const file = table.file;
+
+  const explicit = (key: string, name: string | undefined): number | undefined => {
+    if (name === undefined) return undefined;
+    const i = findColumn(table, [name], true);
+    if (i === undefined) problems.push(new UserError(`${mapSrc} names ${what} '${name}' for '${key}', but the file has no such ${what}. The file has: ${columnList(table)}.`, { file, field: key }));
+    else plan.used.add(i);
+    return i;
+  };
+  const pick = (key: keyof typeof DEFAULT_NAMES): number | undefined => {
+    const name = (m as Record<string, string | undefined>)[key];
+    if (name !== undefined) return explicit(key, name);
+    const i = findColumn(table, DEFAULT_NAMES[key], false);
+    if (i !== undefined) plan.used.add(i);
+    return i;
+  };
+  plan.id = pick('id');
+  plan.av = pick('av');
+  plan.avError = pick('av_error');
+  plan.ak = pick('ak');
+  plan.akError = pick('ak_error');
+  plan.ra = pick('ra');
+  plan.dec = pick('dec');
+
+  const unitFactor = (col: number, fallback: string | undefined, dim: Dimension, field: string): number => {
+    const c = table.columns[col];
+    let unit = table.declaredUnits ? c.unit : undefined;
+    if (unit === undefined) unit = fallback;
+    if (unit === undefined) {
+      if (table.declaredUnits && dim !== 'none') warnings.push(`${file}: ${what} '${c.name}' declares no unit; read as ${CANONICAL_UNIT[dim]}.`);
+      return 1;
+    }
+    const u = parseUnit(unit);
+    if (!u || u.dim !== dim) {
+      problems.push(new UserError(`${what} '${c.name}' has unit '${unit}', but ${field} needs ${CANONICAL_UNIT[dim]}${dim === 'column' ? " (or m-2, or a scaled unit such as '1e17 cm-2')" : dim === 'tau' ? ' (integrated optical depth over wavenumber)' : ''}. Correct the unit${table.declaredUnits ? ' in the file' : " ('unit' in the mapping)"} or map another ${what}.`, { file, field: c.name }));
+      return NaN;
+    }
+    return u.factor;
+  };
+  for (const col of [plan.av, plan.avError, plan.ak, plan.akError]) {
+    if (col !== undefined) plan.extinctionFactors.set(col, unitFactor(col, m.extinction_unit, 'extinction', 'an extinction'));
+  }
+
+  // Species: the mapping's, or every column following the naming convention.
+  const entries: [string, SpeciesColumns, boolean][] = [];
+  if (m.species) {
+    for (const [name, cols] of Object.entries(m.species)) entries.push([name, cols, true]);
+  } else {
+    for (const col of table.columns) {
+      const v = VALUE_COLUMN.exec(col.name);
+      const t = TAU_COLUMN.exec(col.name);
+      const sp = v?.[1] ?? t?.[1];
+      if (!sp) continue;
+      const base = col.name;
+      const find = (names: string[]) => {
+        const i = findColumn(table, names, false);
+        return i === undefined ? undefined : table.columns[i].name;
+      };
+      const c = companions(base);
+      const prev = entries.find((e) => e[0] === sp);
+      const cols: SpeciesColumns = prev ? prev[1] : {};
+      if (v) Object.assign(cols, { value: base, error: find(c.error), error_lo: find(c.lo), error_hi: find(c.hi), limit: find(c.limit), confidence: find(c.conf) });
+      else Object.assign(cols, { tau_int: base, tau_int_error: find(c.error) });
+      if (!prev) entries.push([sp, cols, false]);
+    }
+  }
+
+  for (const [name, cols, fromMapping] of entries) {
+    const field = fromMapping ? `species.${name}` : `N(${name})`;
+    try {
+      parseSpecies(name);
+    } catch (e) {
+      problems.push(new UserError(`${(e as Error).message}`, { file, field }));
+      continue;
+    }
+    if (opts.knownSpecies && !opts.knownSpecies.has(name)) {
+      problems.push(new UserError(`species '${name}' (${what} '${cols.value ?? cols.tau_int}') is not in the network. Check the spelling (ices end in '(s)', e.g. CO(s)) or add the species to the network.`, { file, field: cols.value ?? cols.tau_int ?? field }));
+      continue;
+    }
+    if (cols.value !== undefined && cols.tau_int !== undefined) {
+      problems.push(new UserError(`species '${name}' has both a column density ('${cols.value}') and an optical depth ('${cols.tau_int}'); map one of them.`, { file, field }));
+      continue;
+    }
+    if (cols.value === undefined && cols.tau_int === undefined) {
+      problems.push(new UserError(`species '${name}' has neither 'value' nor 'tau_int'; name the ${what} holding its column density.`, { file, field }));
+      continue;
+    }
+    if (cols.error !== undefined && (cols.error_lo !== undefined || cols.error_hi !== undefined)) {
+      problems.push(new UserError(`species '${name}' has both a symmetric error and error_lo/error_hi; give one kind.`, { file, field }));
+      continue;
+    }
+    if ((cols.error_lo === undefined) !== (cols.error_hi === undefined)) {
+      problems.push(new UserError(`species '${name}' has only one of error_lo and error_hi; give both, or a symmetric 'error'.`, { file, field }));
+      continue;
+    }
+    const get = (key: string, col: string | undefined) => (fromMapping ? explicit(`${field}.${key}`, col) : col === undefined ? undefined : explicit(key, col));
+    const sp: SpeciesPlan = {
+      name,
+      value: get('value', cols.value),
+      error: get('error', cols.error),
+      errorLo: get('error_lo', cols.error_lo),
+      errorHi: get('error_hi', cols.error_hi),
+      limit: get('limit', cols.limit),
+      confidence: get('confidence', cols.confidence),
+      limitConfidence: cols.limit_confidence,
+      tau: get('tau_int', cols.tau_int),
+      tauError: get('tau_int_error', cols.tau_int_error),
+      factors: new Map(),
+    };
+    if (sp.tau !== undefined) {
+      let band;
+      try {
+        band = opts.bands().find(name, cols.band);
+      } catch (e) {
+        problems.push(e as UserError);
+        continue;
+      }
+      if (!band) {
+        problems.push(new UserError(`no band strength for '${name}'${cols.band ? ` in band '${cols.band}'` : ''} in ${opts.bands().file}; add one there (or point 'band_strengths' at your own table), or give the column density instead.`, { file, field }));
+        continue;
+      }
+      sp.band = { name: band.name, strength: band.strengthCm };
+      for (const c of [sp.tau, sp.tauError]) if (c !== undefined) sp.factors.set(c, unitFactor(c, cols.unit, 'tau', 'an integrated optical depth'));
+    }
+    for (const c of [sp.value, sp.error, sp.errorLo, sp.errorHi]) if (c !== undefined) sp.factors.set(c, unitFactor(c, cols.unit, 'column', 'a column density'));
+    for (const c of [sp.value, sp.tau, sp.error, sp.errorLo, sp.errorHi, sp.tauError, sp.limit, sp.confidence]) {
+      if (c !== undefined && table.columns[c].vectorForm) problems.push(new UserError(`${what} '${table.columns[c].name}' holds a vector per row (TFORM ${table.columns[c].vectorForm}); a sightline needs one value.`, { file, field: table.columns[c].name }));
+    }
+    plan.species.push(sp);
+  }
+
+  if (m.species) {
+    const ignored = table.columns.filter((c, i) => !plan.used.has(i) && (VALUE_COLUMN.test(c.name) || TAU_COLUMN.test(c.name))).map((c) => `'${c.name}'`);
+    if (ignored.length > 0) warnings.push(`${file}: ${what}${ignored.length > 1 ? 's' : ''} ${ignored.join(', ')} look${ignored.length > 1 ? '' : 's'} like column densities but ${ignored.length > 1 ? 'are' : 'is'} not in ${mapSrc}; not read.`);
+  } else if (plan.species.length === 0 && problems.length === 0) {
+    problems.push(new UserError(`no species ${what}s found. Name them N(species) (for example 'N(H2O(s))', with errors in 'N(H2O(s))_err'), or give a column mapping ('columns:' in the pipeline or a .columns.yaml file beside the data). The file has: ${columnList(table)}.`, { file }));
+  }
+  return plan;
+}
+
+/** Confidence from a cell: a fraction in (0, 1), or a number of sigma (>= 1), two-sided Gaussian (erf(n / sqrt 2)). */
+function confidenceOf(v: number): number | undefined {
+  if (v > 0 && v < 1) return v;
+  if (v >= 1) return erf(v / Math.SQRT2);
+  return undefined;
+}
+
+export function tableToObservations(table: RawTable, opts: TableOptions): ObservationSet {
+  const problems: UserError[] = [];
+  const warnings: string[] = [...(table.warnings ?? [])];
+  const plan = buildPlan(table, opts, problems, warnings);
+  if (problems.length > 0) throw collect(table.file, problems);
+  const cellAt = (col: number | undefined, row: number): Cell => (col === undefined ? undefined : table.columns[col].values[row]);
+  const colName = (col: number) => table.columns[col].name;
+  const sightlines: Sightline[] = [];
+  const seen = new Map<string, string>();
+
+  for (let r = 0; r < table.nrows; r++) {
+    const cells = [...plan.used].map((c) => parseCell(cellAt(c, r)));
+    if (cells.every((c) => c.kind === 'blank')) continue;
+    const place = table.place(r);
+    const fail = (col: number | undefined, msg: string) => {
+      problems.push(new UserError(table.map ? `${place.text}: ${msg}` : msg, { ...place.loc, field: col === undefined ? undefined : colName(col) }));
+    };
+    const warn = (col: number, msg: string) => warnings.push(`${table.file}, ${place.text}, ${table.map ? 'image' : 'column'} '${colName(col)}': ${msg}`);
+
+    // A plain number or blank; anything else is a problem at (row, column).
+    const plainNumber = (col: number | undefined, what: string): number | undefined => {
+      if (col === undefined) return undefined;
+      const raw = cellAt(col, r);
+      const p = parseCell(raw);
+      if (p.kind === 'blank') return undefined;
+      if (p.kind === 'bad') return fail(col, `cannot read ${describeCell(raw)} as ${what}; expected a number such as 1.2e17, or a blank cell.`), undefined;
+      if (p.kind !== 'detection') return fail(col, `${what} cannot be a limit (found ${describeCell(raw)}).`), undefined;
+      return p.value;
+    };
+
+    let id: string;
+    const idCell = cellAt(plan.id, r);
+    if (place.pixel) id = `${place.pixel.x},${place.pixel.y}`;
+    else if (idCell === undefined || idCell === null || String(idCell).trim() === '') id = place.text.replace(/\s+/g, '-');
+    else id = String(idCell).trim();
+    const prev = seen.get(id);
+    if (prev !== undefined) fail(plan.id, `sightline '${id}' appears twice (also at ${prev}); give every sightline its own name.`);
+    seen.set(id, place.text);
+
+    const s: Sightline = { id, columns: {}, source: place.source };
+    if (place.pixel) s.pixel = place.pixel;
+    const ext = (col: number | undefined, what: string) => {
+      const v = plainNumber(col, what);
+      return v === undefined || col === undefined ? v : v * (plan.extinctionFactors.get(col) ?? 1);
+    };
+    const av = ext(plan.av, 'A_V');
+    const avErr = ext(plan.avError, 'the A_V error');
+    const ak = ext(plan.ak, 'A_K');
+    const akErr = ext(plan.akError, 'the A_K error');
+    if (av !== undefined) {
+      if (av <= 0) fail(plan.av, `A_V must be positive, found ${av} mag.`);
+      s.av = av;
+      if (avErr !== undefined) {
+        if (avErr < 0) fail(plan.avError, `the A_V error must not be negative, found ${avErr}.`);
+        s.avErr = avErr;
+      }
+    }
+    if (ak !== undefined) {
+      if (ak <= 0) fail(plan.ak, `A_K must be positive, found ${ak} mag.`);
+      s.ak = ak;
+      if (akErr !== undefined) {
+        if (akErr < 0) fail(plan.akError, `the A_K error must not be negative, found ${akErr}.`);
+        s.akErr = akErr;
+      }
+      if (av !== undefined) warn(plan.ak, `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
+      else {
+        // A_V = A_K / (A_K/A_V), A_K/A_V = 0.112 by default (Rieke & Lebofsky 1985).
+        s.av = ak / opts.akPerAv;
+        if (akErr !== undefined) s.avErr = akErr / opts.akPerAv;
+      }
+    }
+    const ra = plainNumber(plan.ra, 'a right ascension');
+    const dec = plainNumber(plan.dec, 'a declination');
+    if (ra !== undefined) s.ra = ra;
+    if (dec !== undefined) s.dec = dec;
+
+    for (const sp of plan.species) {
+      const valueCol = (sp.value ?? sp.tau)!;
+      const raw = cellAt(valueCol, r);
+      const p = parseCell(raw);
+      if (p.kind === 'blank') {
+        for (const c of [sp.error, sp.errorLo, sp.errorHi, sp.tauError]) {
+          if (c !== undefined && parseCell(cellAt(c, r)).kind !== 'blank') warn(c, `an error is given but the value ('${colName(valueCol)}') is blank; read as not observed.`);
+        }
+        continue;
+      }
+      if (p.kind === 'bad') {
+        fail(valueCol, `cannot read ${describeCell(raw)} as a ${sp.tau !== undefined ? 'optical depth' : 'column density'}; expected a number (1.2e17), an upper limit (<1.2e17), a lower limit (>1.2e17), or a blank cell for not observed.`);
+        continue;
+      }
+      let kind = p.kind;
+      if (sp.limit !== undefined) {
+        const flagCell = cellAt(sp.limit, r);
+        const f = parseFlag(flagCell);
+        if (f === 'bad') {
+          fail(sp.limit, `cannot read the limit flag ${describeCell(flagCell)}; expected '<' (upper limit), '>' (lower limit) or blank (detection).`);
+          continue;
+        }
+        if (f !== 'detection') {
+          if (kind !== 'detection' && kind !== f) {
+            fail(valueCol, `the value ${describeCell(raw)} and the limit flag ${describeCell(flagCell)} ('${colName(sp.limit)}') disagree.`);
+            continue;
+          }
+          kind = f;
+        }
+      }
+      const factor = sp.factors.get(valueCol) ?? 1;
+      const scale = sp.band ? factor / sp.band.strength : factor;
+      const value = p.value * scale;
+      if (!(p.value > 0)) {
+        fail(valueCol, `a ${sp.tau !== undefined ? 'optical depth' : 'column density'} must be positive, found ${describeCell(raw)}. Leave the cell blank if '${sp.name}' was not observed, or give an upper limit (<value).`);
+        continue;
+      }
+      const errCols = sp.tau !== undefined ? [sp.tauError] : [sp.error, sp.errorLo, sp.errorHi];
+      const errs = errCols.map((c) => {
+        const v = plainNumber(c, 'an error');
+        return v === undefined || c === undefined ? undefined : v * (sp.factors.get(c) ?? 1) * (sp.band ? 1 / sp.band.strength : 1);
+      });
+      const given = errCols.filter((c, i) => c !== undefined && errs[i] !== undefined) as number[];
+      const meas: Measurement = { kind, value };
+      if (kind !== 'detection') {
+        if (given.length > 0) {
+          fail(given[0], `'${sp.name}' is ${kind === 'upper' ? 'an upper' : 'a lower'} limit (${describeCell(raw)}) but has an error (${describeCell(cellAt(given[0], r))}). A limit carries no error: blank the error cell, or give the value as a detection.`);
+          continue;
+        }
+        let conf = sp.limitConfidence;
+        if (sp.confidence !== undefined) {
+          const c = plainNumber(sp.confidence, 'a confidence level');
+          if (c !== undefined) {
+            conf = confidenceOf(c);
+            if (conf === undefined) fail(sp.confidence, `a confidence level must be a fraction in (0, 1) or a number of sigma (>= 1), found ${c}.`);
+          }
+        }
+        if (conf !== undefined) meas.confidence = conf;
+      } else {
+        let lo: number | undefined;
+        let hi: number | undefined;
+        if (sp.tau !== undefined || sp.error !== undefined) lo = hi = errs[0];
+        else {
+          lo = errs[1];
+          hi = errs[2];
+        }
+        if (lo === undefined || hi === undefined) {
+          const col = errCols.find((c) => c !== undefined);
+          fail(col ?? valueCol, `the detection ${describeCell(raw)} of '${sp.name}' has no error. Give its 1-sigma error${col === undefined ? ` (map an error ${table.map ? 'image' : 'column'} for '${sp.name}')` : ''}, or mark the value as a limit (<value).`);
+          continue;
+        }
+        if (!(lo > 0) || !(hi > 0)) {
+          fail(errCols.find((c, i) => c !== undefined && !((errs[i] ?? 0) > 0)) ?? valueCol, `errors must be positive, found ${lo === hi ? lo : `${lo} below and ${hi} above`}.`);
+          continue;
+        }
+        const biggest = Math.max(lo, hi);
+        if (biggest > opts.maxErrorRatio * value) warn(given[given.length - 1], `the error (${biggest.toPrecision(3)}) is more than ${opts.maxErrorRatio} times the value (${value.toPrecision(3)}) of '${sp.name}'; check the units or the exponent.`);
+        meas.errLo = lo;
+        meas.errHi = hi;
+      }
+      if (sp.band) {
+        const tauErr = errs[0];
+        meas.fromTau = { tauInt: p.value * factor, band: sp.band.name, bandStrength: sp.band.strength };
+        if (tauErr !== undefined) meas.fromTau.tauIntErr = tauErr * sp.band.strength;
+      }
+      s.columns[sp.name] = meas;
+    }
+    sightlines.push(s);
+  }
+  if (problems.length > 0) throw collect(table.file, problems);
+  const set: ObservationSet = {
+    file: table.file,
+    kind: table.map ? 'map' : 'table',
+    sightlines,
+    warnings,
+    format: table.format,
+    species: plan.species.map((s) => s.name),
+  };
+  if (table.map) set.map = table.map;
+  return set;
+}
+
+/** All problems of one file in one error; long lists are cut with a count of the rest. */
+export function collect(file: string, problems: UserError[]): UserError {
+  if (problems.length === 1) return problems[0];
+  const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
+  if (problems.length > MAX_LISTED_PROBLEMS) listed.push(new UserError(`... and ${problems.length - MAX_LISTED_PROBLEMS} more problems`));
+  return new UserErrors(`${problems.length} problems in ${file}:`, listed, { file });
+}
