@@ -348,7 +348,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
         if (akErr < 0) fail(plan.akError, `the A_K error must not be negative, found ${akErr}.`);
         s.akErr = akErr;
       }
-      if (av !== undefined) warn(plan.ak, `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
+      if (av !== undefined) warn(plan.ak!, `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
       else {
         // A_V = A_K / (A_K/A_V), A_K/A_V = 0.112 by default (Rieke & Lebofsky 1985).
         s.av = ak / opts.akPerAv;
