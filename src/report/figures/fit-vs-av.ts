@@ -1,0 +1,117 @@
+/**
+ * Best-fit density and age of every sightline against its observed A_V,
+ * with the confidence interval of each as an error bar; sightlines whose
+ * interval reaches the grid's edge are drawn as open symbols (the truth may
+ * lie outside the grid).
+ */
+import type { TopLevelSpec } from 'vega-lite';
+import { figureConfig, figureSize } from '../theme.ts';
+import { AV_TITLE, logAxis, paddedDomain, parameterTitle, scaleKind } from './axes.ts';
+import { bestValue, levelLabel, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
+
+const PANEL_PARAMETERS = ['density', 'age_yr'] as const;
+const EDGE_LABELS = { inside: 'interval inside grid', edge: 'interval at grid edge' };
+const PANEL_ASPECT = 0.55;
+
+interface Row {
+  sightline: string;
+  av: number;
+  avLo: number;
+  avHi: number;
+  value: number;
+  lo: number;
+  hi: number;
+  interval: string;
+}
+
+export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
+  const { plotWidth } = figureSize(ctx.input.config.column_width_in, false);
+  const av = new Map(ctx.input.observations.sightlines.map((s) => [s.id, s] as const));
+  const level = ctx.levels[0];
+  const panels = PANEL_PARAMETERS.map((parameter) => {
+    const rows: Row[] = [];
+    for (const fit of ctx.input.fit.fits) {
+      const s = av.get(fit.sightline);
+      const value = bestValue(fit, parameter);
+      if (s?.av === undefined || value === undefined) continue;
+      const iv = fit.intervals.find((i) => i.parameter === parameter && Math.abs(i.level - level) < 1e-9);
+      rows.push({
+        sightline: fit.sightline,
+        av: s.av,
+        avLo: s.av - (s.avErr ?? 0),
+        avHi: s.av + (s.avErr ?? 0),
+        value,
+        lo: iv?.lo ?? value,
+        hi: iv?.hi ?? value,
+        interval: iv && (iv.loAtEdge || iv.hiAtEdge) ? EDGE_LABELS.edge : EDGE_LABELS.inside,
+      });
+    }
+    return { parameter, rows };
+  });
+  const allAv = panels[0].rows.flatMap((r) => [r.avLo, r.avHi]);
+  const xDomain = paddedDomain('linear', allAv, 0.05);
+  const xBase = { field: 'av', type: 'quantitative' as const, scale: { domain: xDomain, nice: false, zero: false } };
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: 'Best fits against extinction', subtitle: `error bars: ${levelLabel(level)} intervals` },
+    config: figureConfig(),
+    vconcat: panels.map(({ parameter, rows }, p) => {
+      const values = rows.flatMap((r) => [r.lo, r.hi]);
+      const kind = scaleKind(values);
+      const domain = paddedDomain(kind, values, 0.05);
+      const y = {
+        field: 'value',
+        type: 'quantitative' as const,
+        title: parameterTitle(parameter),
+        scale: { type: kind, domain, nice: false, zero: false },
+        axis: kind === 'log' ? logAxis(domain[0], domain[1]) : {},
+      };
+      const x = { ...xBase, title: p === PANEL_PARAMETERS.length - 1 ? AV_TITLE : null, axis: p === PANEL_PARAMETERS.length - 1 ? {} : { labels: false } };
+      return {
+        width: plotWidth,
+        height: Math.round(plotWidth * PANEL_ASPECT),
+        data: { values: rows },
+        layer: [
+          { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' } } },
+          { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x: { ...x, field: 'avLo' }, x2: { field: 'avHi' }, y } },
+          {
+            mark: { type: 'point', size: 28, filled: true, stroke: '#000000', strokeWidth: 1, tooltip: true },
+            encoding: {
+              x,
+              y,
+              fill: { field: 'interval', type: 'nominal', title: null, scale: { domain: [EDGE_LABELS.inside, EDGE_LABELS.edge], range: ['#000000', '#ffffff'] }, legend: p === 0 ? { orient: 'top', direction: 'horizontal' } : null },
+              tooltip: [
+                { field: 'sightline', type: 'nominal', title: 'sightline' },
+                { field: 'av', type: 'quantitative', title: 'A_V (mag)', format: '.3~g' },
+                { field: 'value', type: 'quantitative', title: parameterTitle(parameter), format: '.3~g' },
+                { field: 'lo', type: 'quantitative', title: 'interval low', format: '.3~g' },
+                { field: 'hi', type: 'quantitative', title: 'interval high', format: '.3~g' },
+              ],
+            },
+          },
+        ],
+      };
+    }),
+  };
+}
+
+export const fitVsAvFigure: FigureBuilder = {
+  kind: 'fit_vs_av',
+  description: 'best-fit density and age against A_V across sightlines',
+  perSightline: false,
+  unavailable(ctx) {
+    const withAv = new Set(ctx.input.observations.sightlines.filter((s) => s.av !== undefined).map((s) => s.id));
+    return ctx.input.fit.fits.some((f) => withAv.has(f.sightline)) ? undefined : 'no fitted sightline has an observed A_V';
+  },
+  build(ctx: FigureContext, request: FigureRequest): BuiltFigure[] {
+    return [
+      {
+        name: request.name,
+        kind: 'fit_vs_av',
+        title: 'Best-fit density and age against A_V',
+        caption: `Best-fit density and chemical age of each sightline against its observed visual extinction, with ${levelLabel(ctx.levels[0])} intervals; open symbols: the interval reaches the edge of the model grid.`,
+        spec: buildFitVsAvSpec(ctx),
+      },
+    ];
+  },
+};

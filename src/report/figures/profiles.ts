@@ -1,0 +1,107 @@
+/**
+ * chi^2 profiles of one sightline: for each fitted parameter, Delta chi^2
+ * minimised over every other parameter against that parameter's grid values,
+ * with the one-parameter thresholds of the confidence levels as lines (the
+ * interval is where the profile lies below a line).
+ */
+import type { TopLevelSpec } from 'vega-lite';
+import type { Profile1D, SightlineFit } from '../../fit/types.ts';
+import { slug } from '../escape.ts';
+import { figureConfig, figureSize } from '../theme.ts';
+import { deltaChi2Threshold } from '../thresholds.ts';
+import { DELTA_CHI2_TITLE, logAxis, paddedDomain, parameterTitle, scaleKind } from './axes.ts';
+import { bestValue, levelLabel, sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
+
+/** Panels per row. */
+const COLUMNS = 2;
+/** Spacing between panels, pixels. */
+const PANEL_SPACING = 12;
+/** Room for a panel's y axis and its labels, pixels. */
+const AXIS_ROOM = 45;
+/** The y axis shows Delta chi^2 up to this multiple of the largest threshold (the region's surroundings, not the far tail). */
+const Y_HEADROOM = 2.5;
+const LEVEL_DASHES = [[4, 2], [1, 2], [6, 2, 1, 2]];
+
+export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profiles: Profile1D[]): TopLevelSpec {
+  const { totalWidth } = figureSize(ctx.input.config.column_width_in, false);
+  const columns = Math.min(COLUMNS, profiles.length);
+  const panelWidth = Math.round((totalWidth - AXIS_ROOM * columns - PANEL_SPACING * (columns - 1)) / columns);
+  const thresholds = ctx.levels.map((level) => ({ level: levelLabel(level), threshold: deltaChi2Threshold(level, 1, ctx.input.fit.levels) }));
+  const yMax = Y_HEADROOM * Math.max(...thresholds.map((t) => t.threshold));
+  const levelNames = thresholds.map((t) => t.level);
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: fit.sightline, subtitle: 'χ² profiles (minimised over the other parameters)' },
+    config: figureConfig(),
+    columns,
+    spacing: PANEL_SPACING,
+    resolve: { scale: { x: 'independent', y: 'shared' } },
+    concat: profiles.map((profile, p) => {
+      const kind = scaleKind(profile.values);
+      const domain = paddedDomain(kind, profile.values, 0.03);
+      const best = bestValue(fit, profile.parameter);
+      const rows = profile.values.map((v, i) => ({ value: v, dchi2: profile.deltaChi2[i] }));
+      const x = {
+        field: 'value',
+        type: 'quantitative' as const,
+        title: parameterTitle(profile.parameter),
+        scale: { type: kind, domain, nice: false, zero: false },
+        axis: kind === 'log' ? logAxis(domain[0], domain[1]) : { tickCount: 4 },
+      };
+      const y = { field: 'dchi2', type: 'quantitative' as const, title: p % columns === 0 ? DELTA_CHI2_TITLE : null, scale: { domain: [0, yMax], nice: false } };
+      return {
+        width: panelWidth,
+        height: Math.round(panelWidth * 0.8),
+        layer: [
+          {
+            data: { values: thresholds },
+            mark: { type: 'rule', color: '#555555', strokeWidth: 0.8 },
+            encoding: {
+              y: { field: 'threshold', type: 'quantitative' },
+              strokeDash: { field: 'level', type: 'nominal', title: 'Level (1 parameter)', scale: { domain: levelNames, range: levelNames.map((_, i) => LEVEL_DASHES[i % LEVEL_DASHES.length]) }, legend: p === 0 ? { orient: 'bottom', direction: 'horizontal', symbolType: 'stroke' } : null },
+            },
+          },
+          {
+            data: { values: rows },
+            mark: { type: 'line', color: '#000000', strokeWidth: 1.2, clip: true, point: { filled: true, size: 12, color: '#000000' }, tooltip: true },
+            encoding: { x, y },
+          },
+          {
+            data: { values: best === undefined ? [] : [{ value: best }] },
+            mark: { type: 'rule', color: '#0072B2', strokeWidth: 0.8 },
+            encoding: { x: { field: 'value', type: 'quantitative' } },
+          },
+        ],
+      };
+    }),
+  };
+}
+
+export const profilesFigure: FigureBuilder = {
+  kind: 'profiles',
+  description: 'chi^2 profile of each fitted parameter with the threshold lines',
+  perSightline: true,
+  unavailable(ctx) {
+    return ctx.input.profiles ? undefined : 'it needs the fit profiles (profiles.json), which were not given';
+  },
+  build(ctx: FigureContext, request: FigureRequest): BuiltFigure[] {
+    const out: BuiltFigure[] = [];
+    for (const id of request.sightlines) {
+      const fit = ctx.fits.get(id);
+      const profiles = (ctx.profiles.get(id)?.profiles ?? []).filter((p) => p.values.length > 1);
+      if (!fit || profiles.length === 0) {
+        ctx.warnings.push(`profiles: sightline '${id}' has no profile over a fitted parameter; no figure drawn.`);
+        continue;
+      }
+      out.push({
+        name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
+        kind: 'profiles',
+        title: `χ² profiles of ${id}`,
+        caption: `Δχ² profiles of ${id} for each fitted parameter (chi² minimised over the others); the horizontal lines are the one-parameter thresholds of the ${ctx.levels.map(levelLabel).join(' and ')} levels, the vertical line the best fit.`,
+        sightline: id,
+        spec: buildProfilesSpec(ctx, fit, profiles),
+      });
+    }
+    return out;
+  },
+};

@@ -1,0 +1,87 @@
+/**
+ * Sky images of a map's fit results in pixel coordinates: best age, best
+ * density and best chi^2 per pixel, one figure each (the FITS outputs carry
+ * the WCS for sky coordinates). Pixels without a fit are left blank.
+ */
+import type { TopLevelSpec } from 'vega-lite';
+import type { MapFitJson, MapImageName } from '../../fit/types.ts';
+import { figureConfig, figureSize, MAP_SCHEME, SEQUENTIAL_SCHEME } from '../theme.ts';
+import { CHI2_TITLE, logAxis, scaleKind } from './axes.ts';
+import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
+
+interface SkyImage {
+  image: MapImageName;
+  title: string;
+  legend: string;
+  scheme: typeof SEQUENTIAL_SCHEME | typeof MAP_SCHEME;
+}
+
+export const SKY_IMAGES: SkyImage[] = [
+  { image: 'best_age_yr', title: 'Best-fit chemical age', legend: 'Age (yr)', scheme: SEQUENTIAL_SCHEME },
+  { image: 'best_density', title: 'Best-fit density', legend: 'Density (cm⁻³)', scheme: SEQUENTIAL_SCHEME },
+  { image: 'best_chi2', title: 'Best-fit χ²', legend: CHI2_TITLE, scheme: MAP_SCHEME },
+];
+
+export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyImage): TopLevelSpec {
+  const { plotWidth } = figureSize(ctx.input.config.column_width_in, true);
+  const values = map.images[image.image];
+  const rows: { x: number; y: number; x2: number; y2: number; px: number; py: number; value: number }[] = [];
+  values.forEach((v, i) => {
+    if (v === null || !Number.isFinite(v)) return;
+    const px = i % map.nx;
+    const py = Math.floor(i / map.nx);
+    rows.push({ x: px - 0.5, x2: px + 0.5, y: py - 0.5, y2: py + 0.5, px, py, value: v });
+  });
+  const kind = scaleKind(rows.map((r) => r.value));
+  const finite = rows.map((r) => r.value);
+  const lo = Math.min(...finite);
+  const hi = Math.max(...finite);
+  const height = Math.round((plotWidth * map.ny) / map.nx);
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
+    width: plotWidth,
+    height,
+    config: figureConfig(),
+    data: { values: rows },
+    mark: { type: 'rect', tooltip: true },
+    encoding: {
+      x: { field: 'x', type: 'quantitative', title: 'Pixel x', scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } },
+      x2: { field: 'x2' },
+      y: { field: 'y', type: 'quantitative', title: 'Pixel y', scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } },
+      y2: { field: 'y2' },
+      color: {
+        field: 'value',
+        type: 'quantitative',
+        title: image.legend,
+        scale: { type: kind, scheme: image.scheme, nice: false, ...(rows.length > 0 ? { domain: [lo, hi] } : {}) },
+        ...(kind === 'log' && rows.length > 0 ? { legend: logAxis(lo, hi) } : {}),
+      },
+      tooltip: [
+        { field: 'px', type: 'quantitative', title: 'x' },
+        { field: 'py', type: 'quantitative', title: 'y' },
+        { field: 'value', type: 'quantitative', title: image.legend, format: '.3~g' },
+      ],
+    },
+  };
+}
+
+export const skyMapFigure: FigureBuilder = {
+  kind: 'sky_map',
+  description: 'sky images of best age, density and chi^2 in pixel coordinates',
+  perSightline: false,
+  unavailable(ctx) {
+    return ctx.input.map ? undefined : `the observations (${ctx.input.observations.file}) are a table of sightlines, not a map`;
+  },
+  build(ctx: FigureContext, request: FigureRequest): BuiltFigure[] {
+    const map = ctx.input.map;
+    if (!map) return [];
+    return SKY_IMAGES.map((image) => ({
+      name: `${request.name}_${image.image}`,
+      kind: 'sky_map' as const,
+      title: image.title,
+      caption: `${image.title} of every map pixel, in pixel coordinates (x right, y up, as in the FITS images); blank pixels have no fit.`,
+      spec: buildSkyMapSpec(ctx, map, image),
+    }));
+  },
+};

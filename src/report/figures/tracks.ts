@@ -1,0 +1,172 @@
+/**
+ * Abundance (or ratio) tracks against time for a sightline's best-fit model,
+ * with the observed values over them: detections with their error bars,
+ * upper and lower limits as triangles pointing the way the truth may lie.
+ * The observations are drawn at the best-fit age (spread a little in time so
+ * that quantities do not hide each other), and the age interval is shaded.
+ */
+import type { TopLevelSpec } from 'vega-lite';
+import type { SightlineFit } from '../../fit/types.ts';
+import type { ObservedQuantity } from '../../obs/types.ts';
+import { slug } from '../escape.ts';
+import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig, figureSize } from '../theme.ts';
+import type { ModelTrack } from '../types.ts';
+import { logAxis, paddedDomain, parameterTitle } from './axes.ts';
+import { sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
+
+/** Observations of different quantities are spread over this many dex in time around the best age. */
+const OBSERVATION_SPREAD_DEX = 0.08;
+/** The y axis shows the observations and this many dex below them and above them of the tracks. */
+const Y_MARGIN_BELOW_DEX = 2;
+const Y_MARGIN_ABOVE_DEX = 1;
+const RUNNER_UP_OPACITY = 0.35;
+const KIND_SHAPES: Record<ObservedQuantity['kind'], string> = { detection: 'circle', upper: 'triangle-down', lower: 'triangle-up' };
+const KIND_NAMES: Record<ObservedQuantity['kind'], string> = { detection: 'detection', upper: 'upper limit', lower: 'lower limit' };
+
+function wanted(label: string, numerator: string, species: readonly string[]): boolean {
+  return species.length === 0 || species.includes(label) || species.includes(numerator);
+}
+
+export function yTitle(quantities: readonly { denominator?: string }[]): string {
+  const denominators = [...new Set(quantities.map((q) => q.denominator ?? ''))];
+  if (denominators.length === 1 && denominators[0] === '') return 'Abundance relative to H';
+  if (denominators.length === 1) return `Ratio to ${denominators[0]}`;
+  return 'Abundance (rel. to H) or ratio';
+}
+
+/**
+ * The y range in log10: all of the observations, and the tracks down to
+ * Y_MARGIN_BELOW_DEX below and Y_MARGIN_ABOVE_DEX above them (a track falling
+ * to 1e-20 early on would otherwise squash the part that is compared).
+ */
+function yRange(obsLog: number[], trackLog: number[]): [number, number] {
+  const tLo = Math.min(...trackLog);
+  const tHi = Math.max(...trackLog);
+  if (obsLog.length === 0) return trackLog.length > 0 ? [tLo, tHi] : [-1, 0];
+  const oLo = Math.min(...obsLog);
+  const oHi = Math.max(...obsLog);
+  if (trackLog.length === 0) return [oLo, oHi];
+  return [Math.min(oLo, Math.max(oLo - Y_MARGIN_BELOW_DEX, tLo)), Math.max(oHi, Math.min(oHi + Y_MARGIN_ABOVE_DEX, tHi))];
+}
+
+export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: ModelTrack[], observed: ObservedQuantity[], labels: string[]): TopLevelSpec {
+  const { plotWidth, plotHeight } = figureSize(ctx.input.config.column_width_in, true);
+  const bestAge = fit.best.ageYr;
+  const ageInterval = fit.intervals.find((i) => i.parameter === 'age_yr' && Math.abs(i.level - ctx.levels[0]) < 1e-9);
+  const lineRows: { t: number; value: number; quantity: string; model: string; role: string }[] = [];
+  for (const tr of tracks) {
+    tr.timesYr.forEach((t, i) => {
+      const l = tr.log10[i];
+      if (l !== null && Number.isFinite(l) && t > 0) lineRows.push({ t, value: 10 ** l, quantity: tr.label, model: tr.modelId, role: tr.role });
+    });
+  }
+  const obsRows = observed.map((q) => {
+    const k = labels.indexOf(q.label);
+    const shift = labels.length > 1 ? OBSERVATION_SPREAD_DEX * (k / (labels.length - 1) - 0.5) : 0;
+    return {
+      t: bestAge * 10 ** shift,
+      value: 10 ** q.log10,
+      lo: 10 ** (q.log10 - q.sigmaLoDex),
+      hi: 10 ** (q.log10 + q.sigmaHiDex),
+      quantity: q.label,
+      kind: KIND_NAMES[q.kind],
+      detected: q.kind === 'detection',
+    };
+  });
+  const obsLog = observed.flatMap((q) => [q.log10 - q.sigmaLoDex, q.log10 + q.sigmaHiDex]);
+  const trackLog = lineRows.map((r) => Math.log10(r.value));
+  const yDomain = paddedDomain('log', yRange(obsLog, trackLog).map((l) => 10 ** l), 0.05);
+  const times = lineRows.map((r) => r.t).concat(obsRows.map((r) => r.t));
+  const xDomain = paddedDomain('log', times.length > 0 ? times : [bestAge], 0);
+  const colour = { domain: labels, range: labels.map((_, i) => CATEGORY_COLOURS[i % CATEGORY_COLOURS.length]) };
+  const dashes = { domain: labels, range: labels.map((_, i) => CATEGORY_DASHES[i % CATEGORY_DASHES.length]) };
+  const x = { field: 't', type: 'quantitative' as const, title: parameterTitle('age_yr'), scale: { type: 'log' as const, domain: xDomain, nice: false }, axis: logAxis(xDomain[0], xDomain[1]) };
+  const y = { field: 'value', type: 'quantitative' as const, title: yTitle(observed.length > 0 ? observed : tracks.map(() => ({}))), scale: { type: 'log' as const, domain: yDomain, nice: false }, axis: logAxis(yDomain[0], yDomain[1]) };
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: fit.sightline, subtitle: `best fit ${fit.best.modelId} at ${bestAge.toPrecision(2)} yr` },
+    width: plotWidth,
+    height: plotHeight,
+    config: figureConfig(),
+    layer: [
+      {
+        data: { values: ageInterval ? [{ lo: ageInterval.lo, hi: ageInterval.hi }] : [] },
+        mark: { type: 'rect', color: '#000000', opacity: 0.08 },
+        encoding: { x: { field: 'lo', type: 'quantitative' }, x2: { field: 'hi' } },
+      },
+      {
+        data: { values: [{ t: bestAge }] },
+        mark: { type: 'rule', color: '#777777', strokeWidth: 0.7, strokeDash: [2, 2] },
+        encoding: { x: { field: 't', type: 'quantitative' } },
+      },
+      {
+        data: { values: lineRows },
+        mark: { type: 'line', strokeWidth: 1.2, clip: true },
+        encoding: {
+          x,
+          y,
+          color: { field: 'quantity', type: 'nominal', title: 'Quantity', scale: colour, legend: { orient: 'bottom', columns: 2, symbolType: 'stroke' } },
+          strokeDash: { field: 'quantity', type: 'nominal', scale: dashes, legend: null },
+          detail: { field: 'model', type: 'nominal' },
+          opacity: { field: 'role', type: 'nominal', scale: { domain: ['best', 'runner-up'], range: [1, RUNNER_UP_OPACITY] }, legend: null },
+        },
+      },
+      {
+        data: { values: obsRows.filter((r) => r.detected) },
+        mark: { type: 'rule', strokeWidth: 1, clip: true },
+        encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal', scale: colour, legend: null } },
+      },
+      {
+        data: { values: obsRows },
+        mark: { type: 'point', filled: true, size: 30, stroke: '#000000', strokeWidth: 0.5, opacity: 1, tooltip: true },
+        encoding: {
+          x,
+          y,
+          color: { field: 'quantity', type: 'nominal', scale: colour, legend: null },
+          shape: { field: 'kind', type: 'nominal', title: 'Observed', scale: { domain: Object.values(KIND_NAMES), range: Object.values(KIND_SHAPES) }, legend: { orient: 'bottom' } },
+          tooltip: [
+            { field: 'quantity', type: 'nominal', title: 'quantity' },
+            { field: 'kind', type: 'nominal', title: 'observed' },
+            { field: 'value', type: 'quantitative', title: 'value', format: '.3~g' },
+          ],
+        },
+      },
+    ],
+  };
+}
+
+export const tracksFigure: FigureBuilder = {
+  kind: 'tracks',
+  description: 'abundance or ratio tracks of the best-fit model against time with the observed values',
+  perSightline: true,
+  unavailable(ctx) {
+    return ctx.input.tracks.length === 0 ? 'no model tracks were given for the best fits' : undefined;
+  },
+  build(ctx: FigureContext, request: FigureRequest): BuiltFigure[] {
+    const out: BuiltFigure[] = [];
+    const runnerUps = ctx.input.config.runner_up_tracks;
+    for (const id of request.sightlines) {
+      const fit = ctx.fits.get(id);
+      if (!fit) continue;
+      const runnerUpIds = new Set(fit.runnerUps.slice(0, runnerUps).map((r) => r.modelId));
+      const tracks = ctx.input.tracks.filter(
+        (t) => t.sightline === id && wanted(t.label, t.label.split('/')[0], request.species) && (t.role === 'best' || runnerUpIds.has(t.modelId)),
+      );
+      const observed = ctx.input.quantities.filter((q) => q.sightline === id && wanted(q.label, q.numerator, request.species));
+      if (tracks.length === 0) {
+        ctx.warnings.push(`tracks: no model tracks for sightline '${id}'${request.species.length > 0 ? ` and quantities ${request.species.join(', ')}` : ''}; no figure drawn.`);
+        continue;
+      }
+      const labels = [...new Set([...observed.map((q) => q.label), ...tracks.map((t) => t.label)])];
+      out.push({
+        name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
+        kind: 'tracks',
+        title: `Model tracks for ${id}`,
+        caption: `Abundances or ratios of the best-fit model for ${id} against time (lines), with the observed values at the best-fit age: detections with 1σ error bars, limits as triangles; the shaded band is the ${Math.round(ctx.levels[0] * 1000) / 10}% age interval.`,
+        sightline: id,
+        spec: buildTracksSpec(ctx, fit, tracks, observed, labels),
+      });
+    }
+    return out;
+  },
+};

@@ -1,0 +1,215 @@
+/**
+ * The self-contained HTML report: one file that works offline. The vega,
+ * vega-lite and vega-embed browser bundles are inlined from node_modules
+ * (no CDN), every figure is embedded as its Vega-Lite spec and drawn
+ * interactively, and a Content-Security-Policy allows no network access and
+ * only the page's own scripts (by their SHA-256 hashes), so text from user
+ * files, which is escaped everywhere, could not run even if it were not.
+ */
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import type { TopLevelSpec } from 'vega-lite';
+import { escapeHtml, inlineScriptSource, jsonForScript } from './escape.ts';
+import type { BuiltFigure } from './figures/builder.ts';
+import { FIGURE_BUILDERS } from './figures/index.ts';
+import type { ParameterCell, SummaryTable } from './tables.ts';
+import type { ReportInput, ReportProvenance } from './types.ts';
+import { parameterTitle } from './figures/axes.ts';
+
+const require = createRequire(import.meta.url);
+
+/** The UMD bundles that set the globals vega, vegaLite and vegaEmbed (figures-notes.md). */
+function bundle(pkg: 'vega' | 'vega-lite' | 'vega-embed', file: string): string {
+  // The packages' `exports` hide package.json: find the build folder from the main entry.
+  let dir = dirname(require.resolve(pkg));
+  while (!dir.endsWith('build') && dirname(dir) !== dir) dir = dirname(dir);
+  return readFileSync(join(dir, file), 'utf8');
+}
+
+let bundles: string[] | undefined;
+function browserBundles(): string[] {
+  bundles ??= [bundle('vega', 'vega.min.js'), bundle('vega-lite', 'vega-lite.min.js'), bundle('vega-embed', 'vega-embed.min.js')].map(inlineScriptSource);
+  return bundles;
+}
+
+export interface HtmlFigure {
+  figure: BuiltFigure;
+  /** Links to the rendered files, relative to the report folder. */
+  links: { label: string; href: string }[];
+}
+
+export interface HtmlInput {
+  input: ReportInput;
+  table: SummaryTable;
+  figures: HtmlFigure[];
+  warnings: string[];
+  cautions: readonly string[];
+  tableLinks: { label: string; href: string }[];
+}
+
+/** A number for HTML with `digits` significant figures, in x×10<sup>n</sup> form outside 0.01-1000. */
+export function htmlNumber(x: number | null, digits = 2): string {
+  if (x === null || !Number.isFinite(x)) return '–';
+  if (x === 0) return '0';
+  const e = Math.floor(Math.log10(Math.abs(x)));
+  if (e >= -2 && e < 3) return String(Number(x.toPrecision(digits)));
+  const [mantissa, exponent] = x.toExponential(digits - 1).split('e');
+  const n = Number(exponent);
+  return `${mantissa}×10<sup>${n < 0 ? '−' : ''}${Math.abs(n)}</sup>`;
+}
+
+function intervalCell(c: ParameterCell): string {
+  const edge = c.loAtEdge || c.hiAtEdge ? ' <span class="edge" title="the interval reaches the edge of the model grid">‡</span>' : '';
+  const range = c.lo === null || c.hi === null ? '' : ` <span class="range">(${htmlNumber(c.lo)}–${htmlNumber(c.hi)})</span>`;
+  return `<td>${htmlNumber(c.best)}${range}${edge}</td>`;
+}
+
+function summaryHtml(table: SummaryTable): string {
+  const heads = ['Sightline', 'A<sub>V</sub> (mag)', ...table.parameters.map((p) => escapeHtml(parameterTitle(p))), 'χ²/dof', 'p', 'Agreement', 'Warnings'];
+  const rows = table.rows.map((r) => {
+    const warn = r.warnings.length === 0 ? '' : `<ul>${r.warnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul>`;
+    return [
+      '<tr>',
+      `<th scope="row">${escapeHtml(r.sightline)}</th>`,
+      `<td>${r.av === null ? '–' : escapeHtml(String(Number(r.av.toPrecision(3))))}</td>`,
+      ...r.parameters.map(intervalCell),
+      `<td>${escapeHtml(`${Number(r.chi2.toPrecision(3))}/${r.dof}`)}</td>`,
+      `<td${r.pValue < 0.01 ? ' class="poor"' : ''}>${htmlNumber(r.pValue)}</td>`,
+      `<td>${Math.round(r.agreement * 100)}%</td>`,
+      `<td class="warnings">${warn}</td>`,
+      '</tr>',
+    ].join('');
+  });
+  return `<table class="summary"><thead><tr>${heads.map((h) => `<th scope="col">${h}</th>`).join('')}</tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
+}
+
+function provenanceHtml(p: ReportProvenance): string {
+  const rows: [string, string][] = [
+    ['hoarfrost version', p.toolVersion],
+    ['Node.js', p.nodeVersion],
+    ['Command line', p.commandLine.map(shellWord).join(' ')],
+  ];
+  if (p.pipelineFile) rows.push(['Pipeline file', p.pipelineFile]);
+  for (const [k, v] of Object.entries(p.hashes)) rows.push([`${k} hash`, v]);
+  for (const [k, v] of Object.entries(p.extra ?? {})) rows.push([k, v]);
+  return `<table class="provenance"><tbody>${rows.map(([k, v]) => `<tr><th scope="row">${escapeHtml(k)}</th><td><code>${escapeHtml(v)}</code></td></tr>`).join('')}</tbody></table>`;
+}
+
+/** A command-line word as a POSIX shell would need it quoted. */
+function shellWord(w: string): string {
+  return /^[A-Za-z0-9_@%+=:,./-]+$/.test(w) ? w : `'${w.replace(/'/g, `'\\''`)}'`;
+}
+
+function linksHtml(links: { label: string; href: string }[]): string {
+  return links.map((l) => `<a href="${escapeHtml(encodeURI(l.href))}">${escapeHtml(l.label)}</a>`).join(' · ');
+}
+
+const STYLE = `
+body { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; margin: 2em auto; max-width: 72em; padding: 0 1em; color: #111; line-height: 1.4; }
+h1 { font-size: 1.6em; margin-bottom: 0.2em; } h2 { border-bottom: 1px solid #ccc; margin-top: 2em; } h3 { margin-top: 1.5em; }
+table { border-collapse: collapse; font-size: 0.85em; } th, td { border-bottom: 1px solid #ddd; padding: 0.3em 0.6em; text-align: left; vertical-align: top; }
+table.summary td { white-space: nowrap; } table.summary td.warnings { white-space: normal; font-size: 0.9em; color: #7a4a00; min-width: 18em; }
+td.warnings ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } .edge, .poor { color: #b00020; font-weight: bold; }
+.figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 30em; }
+figcaption { font-size: 0.85em; color: #333; } .files { font-size: 0.8em; }
+.vis svg text { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; }
+.vis > svg { height: auto; max-width: 100%; }
+.cautions li { margin-bottom: 0.5em; } code { font-size: 0.9em; word-break: break-all; }
+#embed-error { color: #b00020; font-weight: bold; }
+.scroll { overflow-x: auto; }
+`;
+
+const MAIN_SCRIPT = `
+(function () {
+  var figures = JSON.parse(document.getElementById('hoarfrost-figures').textContent);
+  var jobs = figures.map(function (f) {
+    return vegaEmbed('#' + f.id, f.spec, { actions: false, renderer: 'svg' });
+  });
+  Promise.all(jobs).then(function () {
+    document.body.setAttribute('data-ready', 'true');
+    window.hoarfrostReportReady = true;
+  }, function (error) {
+    var p = document.getElementById('embed-error');
+    p.textContent = 'A figure could not be drawn: ' + error;
+    p.hidden = false;
+    document.body.setAttribute('data-ready', 'error');
+    console.error(error);
+  });
+})();
+`;
+
+function scriptHash(source: string): string {
+  return `'sha256-${createHash('sha256').update(source, 'utf8').digest('base64')}'`;
+}
+
+export function reportHtml(h: HtmlInput): string {
+  const { input } = h;
+  const title = input.config.title ?? input.title;
+  const specs = h.figures.map((f, i) => ({ id: `vis-${i}`, spec: f.figure.spec as TopLevelSpec }));
+  const specScript = jsonForScript(specs);
+  const scripts = [...browserBundles(), MAIN_SCRIPT];
+  const csp = [
+    "default-src 'none'",
+    `script-src ${scripts.map(scriptHash).join(' ')} 'unsafe-eval'`,
+    "style-src 'unsafe-inline'",
+    'img-src data:',
+  ].join('; ');
+  const byKind = new Map<string, { f: HtmlFigure; i: number }[]>();
+  h.figures.forEach((f, i) => {
+    const list = byKind.get(f.figure.kind) ?? [];
+    list.push({ f, i });
+    byKind.set(f.figure.kind, list);
+  });
+  const figureSections = [...byKind.entries()].map(([kind, list]) => {
+    const heading = FIGURE_BUILDERS[kind as keyof typeof FIGURE_BUILDERS].description;
+    const items = list.map(
+      ({ f, i }) =>
+        `<figure id="figure-${i}"><div class="vis" id="vis-${i}"></div><figcaption><strong>${escapeHtml(f.figure.title)}.</strong> ${escapeHtml(f.figure.caption)}</figcaption><p class="files">${linksHtml(f.links)}</p></figure>`,
+    );
+    return `<h3>${escapeHtml(heading[0].toUpperCase() + heading.slice(1))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
+  });
+  const allWarnings = [...input.observations.warnings, ...input.fit.warnings, ...h.warnings];
+  const fixed = Object.entries(input.fit.fixedParameters);
+  return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta http-equiv="Content-Security-Policy" content="${escapeHtml(csp)}">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>${escapeHtml(title)}</title>
+<style>${STYLE}</style>
+</head>
+<body data-ready="false">
+<header>
+<h1>${escapeHtml(title)}</h1>
+<p>${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${htmlNumber(v, 3)}`).join(', ')}.` : ''}</p>
+<p class="files">Tables: ${linksHtml(h.tableLinks)}</p>
+<p id="embed-error" hidden></p>
+</header>
+<section id="summary">
+<h2>Best fits</h2>
+<div class="scroll">${summaryHtml(h.table)}</div>
+<p class="files">‡ the interval reaches the edge of the model grid. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>
+</section>
+<section id="cautions">
+<h2>Read these results with care</h2>
+<ul class="cautions">${h.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>
+</section>
+${allWarnings.length > 0 ? `<section id="warnings">\n<h2>Warnings</h2>\n<ul>${allWarnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul>\n</section>` : ''}
+<section id="figures">
+<h2>Figures</h2>
+${figureSections.join('\n') || '<p>No figures.</p>'}
+</section>
+<section id="provenance">
+<h2>Provenance</h2>
+${provenanceHtml(input.provenance)}
+</section>
+${scripts.slice(0, 3).map((s) => `<script>${s}</script>`).join('\n')}
+<script type="application/json" id="hoarfrost-figures">${specScript}</script>
+<script>${MAIN_SCRIPT}</script>
+</body>
+</html>
+`;
+}

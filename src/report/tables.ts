@@ -1,0 +1,187 @@
+/**
+ * Tables of best fits with their intervals for a paper: CSV (RFC 4180),
+ * JSON, and LaTeX in the AASTeX `deluxetable` layout (AAS Journals' AASTeX
+ * 6.3 guide: \tablehead with \colhead, \startdata ... \enddata,
+ * \tablenotetext, \tablecomments). Every text from user files is escaped.
+ * The tables hold no time stamps or paths, so the same run gives the same bytes.
+ */
+import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
+import { escapeLatex } from './escape.ts';
+import type { ReportInput } from './types.ts';
+
+export interface ParameterCell {
+  parameter: string;
+  best: number;
+  lo: number | null;
+  hi: number | null;
+  loAtEdge: boolean;
+  hiAtEdge: boolean;
+}
+
+export interface SummaryRow {
+  sightline: string;
+  av: number | null;
+  parameters: ParameterCell[];
+  chi2: number;
+  dof: number;
+  reducedChi2: number;
+  pValue: number;
+  agreement: number;
+  warnings: string[];
+}
+
+export interface SummaryTable {
+  /** Confidence level of the intervals shown. */
+  level: number;
+  /** Fitted parameters, in the fit stage's order (grid conditions, then age_yr). */
+  parameters: string[];
+  rows: SummaryRow[];
+}
+
+/** p-values below this mark a poor fit in the tables (the fit stage's warning level, common practice). */
+const POOR_FIT_P = 0.01;
+
+export function summaryTable(input: ReportInput): SummaryTable {
+  const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
+  const level = levels[0] ?? 0.683;
+  const av = new Map(input.observations.sightlines.map((s) => [s.id, s.av] as const));
+  const parameters = orderParameters(input.fit.fittedParameters);
+  const rows = input.fit.fits.map((fit) => ({
+    sightline: fit.sightline,
+    av: av.get(fit.sightline) ?? null,
+    parameters: parameters.map((p) => cell(fit, p, level)),
+    chi2: fit.best.chi2,
+    dof: fit.dof,
+    reducedChi2: fit.reducedChi2,
+    pValue: fit.pValue,
+    agreement: fit.agreementFraction,
+    warnings: fit.warnings,
+  }));
+  return { level, parameters, rows };
+}
+
+/** Density and age first (the quantities a reader looks for), the rest in the fit's order. */
+function orderParameters(fitted: readonly string[]): string[] {
+  const first = ['density', 'age_yr'].filter((p) => fitted.includes(p));
+  return [...first, ...fitted.filter((p) => !first.includes(p))];
+}
+
+function cell(fit: SightlineFit, parameter: string, level: number): ParameterCell {
+  const iv: ParameterInterval | undefined = fit.intervals.find((i) => i.parameter === parameter && Math.abs(i.level - level) < 1e-9);
+  const best = parameter === 'age_yr' ? fit.best.ageYr : fit.best.parameters[parameter];
+  return { parameter, best, lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false };
+}
+
+// ---------------------------------------------------------------- CSV
+
+/** RFC 4180 field: quoted when it holds a comma, quote, CR or LF; quotes doubled. */
+export function csvField(value: string | number | boolean | null): string {
+  if (value === null) return '';
+  const s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : String(value);
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+export function summaryCsv(table: SummaryTable): string {
+  const header = ['sightline', 'av_mag'];
+  for (const p of table.parameters) header.push(p, `${p}_lo`, `${p}_hi`, `${p}_at_edge`);
+  header.push('level', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'agreement', 'warnings');
+  const lines = [header.join(',')];
+  for (const r of table.rows) {
+    const f: (string | number | boolean | null)[] = [r.sightline, r.av];
+    for (const c of r.parameters) f.push(c.best, c.lo, c.hi, c.loAtEdge || c.hiAtEdge);
+    f.push(table.level, r.chi2, r.dof, r.reducedChi2, r.pValue, r.agreement, r.warnings.join('; '));
+    lines.push(f.map(csvField).join(','));
+  }
+  return `${lines.join('\r\n')}\r\n`;
+}
+
+// ---------------------------------------------------------------- JSON
+
+export function summaryJson(table: SummaryTable, input: ReportInput): string {
+  const joint = input.fit.joint.map((j) => ({
+    name: j.name,
+    members: j.members,
+    shared: j.sharedBest,
+    chi2: j.chi2,
+    dof: j.dof,
+    pValue: j.pValue,
+    intervals: j.intervals.filter((i) => Math.abs(i.level - table.level) < 1e-9),
+    warnings: j.warnings,
+  }));
+  return `${JSON.stringify({ format: 'hoarfrost-report-table/1', level: table.level, parameters: table.parameters, rows: table.rows, joint }, null, 2)}\n`;
+}
+
+// ---------------------------------------------------------------- LaTeX
+
+const LATEX_HEADS: Record<string, [string, string]> = {
+  density: ['$n_{\\rm H}$', '(cm$^{-3}$)'],
+  age_yr: ['Age', '(yr)'],
+  gas_temperature: ['$T_{\\rm gas}$', '(K)'],
+  dust_temperature: ['$T_{\\rm dust}$', '(K)'],
+  visual_extinction: ['$A_V^{\\rm model}$', '(mag)'],
+  cr_ionisation_rate: ['$\\zeta$', '(s$^{-1}$)'],
+  uv_field: ['$G_0$', '(Habing)'],
+  diffusion_ratio: ['$E_{\\rm diff}/E_{\\rm b}$', ''],
+  grain_radius: ['$a$', '($\\mu$m)'],
+  dust_to_gas: ['Dust/gas', ''],
+  reactive_desorption: ['$f_{\\rm RD}$', ''],
+};
+
+/** A number for LaTeX math with `digits` significant figures: 0.45, 12, 3.2\times10^{4}. */
+export function latexNumber(x: number, digits = 2): string {
+  if (!Number.isFinite(x)) return '\\nodata';
+  if (x === 0) return '0';
+  const e = Math.floor(Math.log10(Math.abs(x)));
+  if (e >= -2 && e < 3) return String(Number(x.toPrecision(digits)));
+  let m = Number((x / 10 ** e).toPrecision(digits));
+  let exp = e;
+  if (Math.abs(m) >= 10) {
+    m /= 10;
+    exp += 1;
+  }
+  return `${m}\\times10^{${exp}}`;
+}
+
+function latexCell(c: ParameterCell): string {
+  const note = c.loAtEdge || c.hiAtEdge ? '\\tablenotemark{a}' : '';
+  if (c.lo === null || c.hi === null) return `$${latexNumber(c.best)}$${note}`;
+  return `$${latexNumber(c.best)}$ ($${latexNumber(c.lo)}$--$${latexNumber(c.hi)}$)${note}`;
+}
+
+export function summaryLatex(table: SummaryTable, caption: string | undefined): string {
+  const pct = `${Number((table.level * 100).toFixed(1))}\\%`;
+  const text = caption !== undefined ? escapeLatex(caption) : `Best-fitting models with ${pct} confidence intervals`;
+  const heads = table.parameters.map((p) => LATEX_HEADS[p] ?? [escapeLatex(p), '']);
+  const columns = `lr${'c'.repeat(heads.length)}rr`;
+  const head1 = ['Sightline', '$A_V$', ...heads.map((h) => h[0]), '$\\chi^2$/dof', '$p$'];
+  const head2 = ['', '(mag)', ...heads.map((h) => h[1]), '', ''];
+  const colheads = (cells: string[]) => cells.map((c) => `\\colhead{${c}}`).join(' & ');
+  const body = table.rows.map((r) => {
+    const poor = r.pValue < POOR_FIT_P ? '\\tablenotemark{b}' : '';
+    const cells = [
+      escapeLatex(r.sightline),
+      r.av === null ? '\\nodata' : `${Number(r.av.toPrecision(3))}`,
+      ...r.parameters.map(latexCell),
+      `${Number(r.chi2.toPrecision(3))}/${r.dof}`,
+      `$${latexNumber(r.pValue)}$${poor}`,
+    ];
+    return cells.join(' & ');
+  });
+  return [
+    '% Best fits written by hoarfrost: AASTeX deluxetable layout.',
+    `\\begin{deluxetable*}{${columns}}`,
+    '\\tabletypesize{\\footnotesize}',
+    '\\tablewidth{0pt}',
+    `\\tablecaption{${text}\\label{tab:best_fits}}`,
+    `\\tablehead{${colheads(head1)} \\\\`,
+    `  ${colheads(head2)}}`,
+    '\\startdata',
+    body.join(' \\\\\n'),
+    '\\enddata',
+    `\\tablecomments{Intervals are the ranges of grid values inside the ${pct} confidence region of each parameter (profile $\\Delta\\chi^2$). A best fit is a statement about the model grid, not a measurement of the cloud.}`,
+    '\\tablenotetext{a}{The interval reaches the edge of the model grid: the true range may extend beyond it.}',
+    `\\tablenotetext{b}{Poor fit: $p < ${POOR_FIT_P}$.}`,
+    '\\end{deluxetable*}',
+    '',
+  ].join('\n');
+}
