@@ -293,10 +293,15 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
   const colName = (col: number) => table.columns[col].name;
   const sightlines: Sightline[] = [];
   const seen = new Map<string, string>();
+  let extinctionOnly = 0;
 
   for (let r = 0; r < table.nrows; r++) {
     const cells = [...plan.used].map((c) => parseCell(cellAt(c, r)));
     if (cells.every((c) => c.kind === 'blank')) continue;
+    if (table.map && plan.species.every((sp) => parseCell(cellAt(sp.value ?? sp.tau, r)).kind === 'blank')) {
+      extinctionOnly++;
+      continue;
+    }
     const place = table.place(r);
     const fail = (col: number | undefined, msg: string) => {
       problems.push(new UserError(table.map ? `${place.text}: ${msg}` : msg, { ...place.loc, field: col === undefined ? undefined : colName(col) }));
@@ -450,6 +455,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
     sightlines.push(s);
   }
   if (problems.length > 0) throw collect(table.file, problems);
+  if (extinctionOnly > 0) warnings.push(`${table.file}: ${extinctionOnly} pixel${extinctionOnly > 1 ? 's have' : ' has'} an extinction but no column density of any species; not read as sightlines.`);
   const set: ObservationSet = {
     file: table.file,
     kind: table.map ? 'map' : 'table',
