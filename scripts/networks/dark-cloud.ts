@@ -600,7 +600,8 @@ const COSMIC_RAY: [string, number][] = [
  * Photoreactions: equation, interstellar-UV alpha (s^-1 in G0 = 1), gamma
  * (per mag of A_V), and the cosmic-ray induced UV rate at zeta_0 (s^-1).
  * Memory: values of the published order; CO and N2 are self-shielded, so
- * their induced-UV rates are small.
+ * their induced-UV rates are small. An induced-UV rate of 0 means none (H2:
+ * its dissociation by cosmic rays is in COSMIC_RAY).
  */
 const PHOTO: [string, number, number, number][] = [
   ['C -> C+ + e-', 3.5e-10, 3.0, 1.3e-14],
@@ -609,7 +610,7 @@ const PHOTO: [string, number, number, number][] = [
   ['Fe -> Fe+ + e-', 2.8e-10, 2.2, 1.9e-14],
   ['Mg -> Mg+ + e-', 7.9e-11, 2.1, 1.4e-14],
   ['Na -> Na+ + e-', 1.1e-11, 2.0, 1.0e-15],
-  ['H2 -> H + H', 3.4e-11, 2.5, 1.0e-15],
+  ['H2 -> H + H', 3.4e-11, 2.5, 0],
   ['CH -> C + H', 9.2e-10, 1.7, 1.9e-14],
   ['CH -> CH+ + e-', 7.6e-10, 2.8, 1.5e-14],
   ['CH2 -> CH + H', 5.8e-10, 2.0, 1.3e-14],
@@ -665,10 +666,12 @@ const PHOTO: [string, number, number, number][] = [
 
 /**
  * Surface reactions: equation of ice species (products ice unless they leave
- * on formation), activation energy E_A in K (memory where non-zero), and
- * whether the channel has a reactive-desorption twin.
+ * on formation), activation energy E_A in K (memory where non-zero),
+ * whether the channel has a reactive-desorption twin, and the branching
+ * ratio among channels of the same reactants (memory: H abstraction from HCO
+ * and CH3O competes with addition about evenly).
  */
-const SURFACE: [string, number, boolean][] = [
+const SURFACE: [equation: string, activationEnergy: number, reactiveDesorption: boolean, branching?: number][] = [
   ['H(s) + H(s) -> H2', 0, false],
   ['H(s) + O(s) -> OH(s)', 0, true],
   ['H(s) + OH(s) -> H2O(s)', 0, true],
@@ -677,9 +680,11 @@ const SURFACE: [string, number, boolean][] = [
   ['H(s) + O2H(s) -> H2O2(s)', 0, true],
   ['H(s) + H2O2(s) -> H2O(s) + OH(s)', 1400, true],
   ['H(s) + CO(s) -> HCO(s)', 2500, true],
-  ['H(s) + HCO(s) -> H2CO(s)', 0, true],
+  ['H(s) + HCO(s) -> H2CO(s)', 0, true, 0.5],
+  ['H(s) + HCO(s) -> CO(s) + H2', 0, true, 0.5],
   ['H(s) + H2CO(s) -> CH3O(s)', 2200, true],
-  ['H(s) + CH3O(s) -> CH3OH(s)', 0, true],
+  ['H(s) + CH3O(s) -> CH3OH(s)', 0, true, 0.5],
+  ['H(s) + CH3O(s) -> H2CO(s) + H2', 0, true, 0.5],
   ['CO(s) + OH(s) -> CO2(s) + H(s)', 150, true],
   ['O(s) + CO(s) -> CO2(s)', 1000, true],
   ['O(s) + HCO(s) -> CO2(s) + H(s)', 0, true],
@@ -795,7 +800,7 @@ for (const section of SECTIONS) {
 emit('  # ---- photoreactions by the interstellar UV field');
 for (const [eq, alpha, gamma] of PHOTO) reaction(eq, 'interstellar-uv', [['alpha', alpha], ['gamma', gamma]], undefined, 'memory: unshielded rate and dust attenuation of this order');
 emit('  # ---- photoreactions by cosmic-ray induced UV');
-for (const [eq, , , k] of PHOTO) reaction(eq, 'cosmic-ray-uv', [['alpha', k]], undefined, 'memory: induced-UV rate of this order at zeta_0');
+for (const [eq, , , k] of PHOTO.filter(([, , , k]) => k > 0)) reaction(eq, 'cosmic-ray-uv', [['alpha', k]], undefined, 'memory: induced-UV rate of this order at zeta_0');
 
 emit('  # ---- H2 formation on grains at the classical rate (used when the pipeline chooses parametric H2 formation)');
 reaction('H + H -> H2', 'parametric-h2', [['alpha', 3e-17]], undefined, 'Jura 1975 rate, R_f = 3e-17 cm^3 s^-1');
@@ -809,12 +814,12 @@ for (const [name] of BINDING) {
 }
 
 emit('  # ---- surface reactions (Langmuir-Hinshelwood) and their reactive-desorption shares');
-for (const [eq, ea, twin] of SURFACE) {
-  reaction(eq, 'surface', [['activation_energy', ea], ['branching', 1]], undefined, ORIGIN_SURFACE);
+for (const [eq, ea, twin, branching = 1] of SURFACE) {
+  reaction(eq, 'surface', [['activation_energy', ea], ['branching', branching]], undefined, ORIGIN_SURFACE);
   if (twin) {
     const [r, p] = equation(eq);
     const gas = p.map((s) => s.replace(/\(s\)$/, ''));
-    reaction(`${r.join(' + ')} -> ${gas.join(' + ')}`, 'reactive-desorption', [['activation_energy', ea], ['branching', 1]], undefined, ORIGIN_RD);
+    reaction(`${r.join(' + ')} -> ${gas.join(' + ')}`, 'reactive-desorption', [['activation_energy', ea], ['branching', branching]], undefined, ORIGIN_RD);
   }
 }
 
