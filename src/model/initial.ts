@@ -10,6 +10,11 @@
  *   name: low-metal
  *   abundances:
  *     H2: { value: 0.5, origin: "..." }   # or a bare number
+ *     P+: { value: 2.0e-10, optional: true, origin: "..." }
+ *
+ * An entry marked `optional` is a trace element a network may leave out: when
+ * the network lacks it, it is dropped and a note says so. Every other species
+ * must be in the network.
  */
 import { existsSync, readdirSync } from 'node:fs';
 import { dirname, isAbsolute, join, resolve } from 'node:path';
@@ -26,7 +31,7 @@ export const PRESET_DIR = resolve(dirname(fileURLToPath(import.meta.url)), '../.
 
 const ELECTRON = 'e-';
 
-const entrySchema = z.union([z.number().min(0), z.strictObject({ value: z.number().min(0), origin: z.string().optional() })]);
+const entrySchema = z.union([z.number().min(0), z.strictObject({ value: z.number().min(0), optional: z.boolean().optional(), origin: z.string().optional() })]);
 
 const fileSchema = z.strictObject({
   format: z.literal(INITIAL_FORMAT),
@@ -49,6 +54,7 @@ function looksLikePath(spec: string): boolean {
 
 interface Composition {
   abundances: Record<string, number>;
+  optional: Set<string>;
   /** Where each species was given, for errors. */
   lineOf(name: string): number | undefined;
   file?: string;
@@ -58,12 +64,16 @@ function readFile(file: string): Composition {
   const loaded: LoadedYaml = loadYamlFile(file, 'initial composition file');
   const parsed = validate(fileSchema, loaded);
   const abundances: Record<string, number> = {};
-  for (const [name, entry] of Object.entries(parsed.abundances)) abundances[name] = typeof entry === 'number' ? entry : entry.value;
-  return { abundances, lineOf: (name) => loaded.lineOf(['abundances', name]), file };
+  const optional = new Set<string>();
+  for (const [name, entry] of Object.entries(parsed.abundances)) {
+    abundances[name] = typeof entry === 'number' ? entry : entry.value;
+    if (typeof entry !== 'number' && entry.optional) optional.add(name);
+  }
+  return { abundances, optional, lineOf: (name) => loaded.lineOf(['abundances', name]), file };
 }
 
 function resolveSpec(spec: string | Record<string, number>, baseDir: string): Composition {
-  if (typeof spec !== 'string') return { abundances: { ...spec }, lineOf: () => undefined };
+  if (typeof spec !== 'string') return { abundances: { ...spec }, optional: new Set(), lineOf: () => undefined };
   if (looksLikePath(spec)) return readFile(isAbsolute(spec) ? spec : resolve(baseDir, spec));
   const preset = join(PRESET_DIR, `${spec}.yaml`);
   if (!existsSync(preset)) {
@@ -77,19 +87,25 @@ function resolveSpec(spec: string | Record<string, number>, baseDir: string): Co
 
 /**
  * The initial fractional abundances for a network. Every species must be in the
- * network and every value finite and non-negative; all problems are reported at once.
+ * network (except optional ones, dropped with a note pushed to `notes`) and every
+ * value finite and non-negative; all problems are reported at once.
  */
-export function loadInitialComposition(spec: string | Record<string, number>, baseDir: string, network: Network): Record<string, number> {
+export function loadInitialComposition(spec: string | Record<string, number>, baseDir: string, network: Network, notes: string[] = []): Record<string, number> {
   const comp = resolveSpec(spec, baseDir);
   const where = (name: string) => ({ file: comp.file, line: comp.lineOf(name), field: comp.file ? `abundances.${name}` : `initial.${name}` });
   const problems: UserError[] = [];
   let charge = 0;
+  const result: Record<string, number> = {};
   for (const [name, value] of Object.entries(comp.abundances)) {
     if (!Number.isFinite(value) || value < 0) {
       problems.push(new UserError(`the abundance of ${name} must be a finite number of at least 0, found ${value}.`, where(name)));
       continue;
     }
     const i = network.speciesIndex.get(name);
+    if (i === undefined && comp.optional.has(name)) {
+      notes.push(`initial composition: network '${network.name}' has no ${name}; this optional trace species (x = ${value}) is left out`);
+      continue;
+    }
     if (i === undefined) {
       problems.push(
         new UserError(
@@ -100,10 +116,10 @@ export function loadInitialComposition(spec: string | Record<string, number>, ba
       continue;
     }
     charge += network.species[i].charge * value;
+    result[name] = value;
   }
   if (problems.length === 1) throw problems[0];
   if (problems.length > 1) throw new UserErrors(`${problems.length} problems with the initial composition:`, problems, { file: comp.file });
-  const result = { ...comp.abundances };
   if (!(ELECTRON in result) && charge !== 0) {
     if (!network.speciesIndex.has(ELECTRON) || charge < 0) {
       throw new UserError(

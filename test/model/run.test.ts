@@ -90,6 +90,15 @@ describe('loadInitialComposition', () => {
     expect((err as Error).message).toMatch(/low-metal\.yaml:\d+.*'He'.*does not have/s);
     expect((err as Error).message).toMatch(/'C\+'/);
   });
+  it('drops an optional trace species the network lacks, with a note', () => {
+    const noPhosphorus = makeNetwork(net.reactions.filter((r) => !r.reactants.includes('P+')).map((r) => ({ reactants: r.reactants, products: r.products, law: r.law, params: r.params })), {}, ['Cl+']);
+    const notes: string[] = [];
+    const x = loadInitialComposition('low-metal', '.', noPhosphorus, notes);
+    expect(x['P+']).toBeUndefined();
+    expect(x['Cl+']).toBe(1e-9);
+    expect(notes).toEqual([expect.stringMatching(/no P\+; this optional trace species/)]);
+    expect(x['e-'] / (7.3e-5 + 8e-8 + 8e-9 + 3e-9 + 2e-9 + 7e-9 + 1e-9)).toBeCloseTo(1, 12);
+  });
   it('rejects an unknown preset by listing the known ones', () => {
     expect(() => loadInitialComposition('nonexistent-preset', '.', net)).toThrow(/Known presets: .*low-metal/);
   });

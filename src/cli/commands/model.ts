@@ -58,7 +58,8 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const cfg = pipeline.config;
   const conditions = await resolveConditions(pipeline, opts.set ?? []);
   const network = loadNetwork(pipeline.resolvePath(cfg.network));
-  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network);
+  const initialNotes: string[] = [];
+  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes);
   const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
   const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation };
   const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name), UserError);
@@ -95,7 +96,8 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     abundances: Object.fromEntries(result.species.map((s, i) => [s, Array.from({ length: reached }, (_, k) => result.abundances[k * result.species.length + i])])),
     conservation: result.conservation,
     solver: result.stats,
-    temperature_clamps: result.clampNotes,
+    initial: Object.fromEntries(Object.entries(initial)),
+    notes: [...initialNotes, ...result.clampNotes, ...(result.skippedNotes ?? [])],
     wall_ms: result.wallMs,
   };
   writeOutput(join(outDir, 'abundances.json'), JSON.stringify(json, null, 1) + '\n', writeFileSync, UserError);
@@ -106,7 +108,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   writeOutput(join(outDir, 'abundances.vl.json'), JSON.stringify(spec, null, 1) + '\n', writeFileSync, UserError);
   writeOutput(join(outDir, 'abundances.svg'), rendered.svg, writeFileSync, UserError);
 
-  ctx.stdout.write(summary(result, reached, network.name, outDir, opts.emitSystem));
+  ctx.stdout.write(summary(result, reached, network.name, outDir, opts.emitSystem, initialNotes));
   ctx.setExitCode(result.status === 'ok' ? 0 : 1);
 }
 
@@ -236,7 +238,7 @@ function figureSpec(result: ModelResult, rows: number, species: string[], title:
   };
 }
 
-function summary(result: ModelResult, rows: number, networkName: string, outDir: string, emitted: string | undefined): string {
+function summary(result: ModelResult, rows: number, networkName: string, outDir: string, emitted: string | undefined, initialNotes: string[]): string {
   const n = result.species.length;
   const lines: string[] = [];
   lines.push(`model of network ${networkName}: ${n} species, ${result.timesYr.length} output times`);
@@ -252,6 +254,7 @@ function summary(result: ModelResult, rows: number, networkName: string, outDir:
   const st = result.stats;
   lines.push(`solver: ${st.steps} steps (${st.failedSteps} rejected), ${st.rhsEvals} rhs, ${st.jacobianEvals} Jacobians, ${st.factorizations} LU factorisations, ${st.newtonFailures} Newton failures`);
   lines.push(`time taken: ${result.wallMs.toFixed(0)} ms`);
+  for (const note of initialNotes) lines.push(`note: ${note}`);
   for (const note of result.clampNotes) lines.push(`note: ${note}`);
   for (const note of result.skippedNotes ?? []) lines.push(`left out: ${note}`);
   lines.push(`wrote ${outDir}/abundances.csv, abundances.json, abundances.svg, abundances.vl.json${emitted ? `; system: ${emitted}` : ''}`);

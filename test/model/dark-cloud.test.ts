@@ -1,0 +1,64 @@
+/**
+ * The default network under dark-cloud conditions: conservation over 1e7 yr
+ * and the sanity envelope of physics.md section 4 (common practice / memory)
+ * at n_H = 2e4 cm^-3, 10 K, A_V = 10, from the low-metal composition.
+ */
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
+import { loadNetwork } from '../../src/chem/network.ts';
+import { loadInitialComposition, outputTimesYr, runModel } from '../../src/model/run.ts';
+import type { ModelResult } from '../../src/model/types.ts';
+
+const NETWORK = join(import.meta.dirname, '..', '..', 'config', 'networks', 'dark-cloud.yaml');
+/** "Near" a quoted value: within a factor of 3, the spread of rate-coefficient uncertainties (common practice). */
+const NEAR_FACTOR = 3;
+/** "Present" in the ice: above 1e-8 per H nucleus, about 1e-4 of the water ice (our choice for the test). */
+const PRESENT = 1e-8;
+
+describe('default network, dark-cloud conditions', () => {
+  let result: ModelResult;
+  const at = (species: string, tYr: number): number => {
+    const k = result.timesYr.findIndex((t) => Math.abs(t / tYr - 1) < 1e-9);
+    const i = result.species.indexOf(species);
+    if (k < 0 || i < 0) throw new Error(`no ${species} at ${tYr} yr`);
+    return result.abundances[k * result.species.length + i];
+  };
+  beforeAll(() => {
+    const network = loadNetwork(NETWORK);
+    const conditions = { ...defaultConditions(), density: 2e4, gas_temperature: 10, dust_temperature: 10, visual_extinction: 10 };
+    result = runModel({
+      network,
+      conditions,
+      grain: DEFAULT_GRAIN_OPTIONS,
+      initial: loadInitialComposition('low-metal', '.', network),
+      timesYr: outputTimesYr(1e3, 1e7, 13),
+      solver: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
+    });
+  });
+
+  it('runs to 1e7 yr', () => {
+    expect(result.status).toBe('ok');
+  });
+  it('conserves every element and the charge to 1e-6 relative at every output (physics.md section 7)', () => {
+    expect(result.conservation.maxRelativeDrift).toBeLessThan(1e-6);
+    expect(Object.keys(result.conservation.perElement)).toEqual(expect.arrayContaining(['H', 'He', 'C', 'N', 'O', 'S']));
+  });
+  it('keeps the electron fraction between 1e-9 and 1e-6 once carbon has recombined (from 1e5 yr; common practice)', () => {
+    for (const t of [1e5, 1e6, 1e7]) {
+      expect(at('e-', t)).toBeGreaterThan(1e-9);
+      expect(at('e-', t)).toBeLessThan(1e-6);
+    }
+  });
+  it('has gas CO near 1e-4 at 1e5 yr (common practice)', () => {
+    expect(at('CO', 1e5)).toBeGreaterThan(1e-4 / NEAR_FACTOR);
+    expect(at('CO', 1e5)).toBeLessThan(1e-4 * NEAR_FACTOR);
+  });
+  it('has water ice above 1e-5 by 1e6 yr (common practice)', () => {
+    expect(at('H2O(s)', 1e6)).toBeGreaterThan(1e-5);
+  });
+  it('has CO ice and CO2 ice by 1e6 yr (memory: observed toward background stars, Boogert, Gerakines & Whittet 2015)', () => {
+    expect(at('CO(s)', 1e6)).toBeGreaterThan(PRESENT);
+    expect(at('CO2(s)', 1e6)).toBeGreaterThan(PRESENT);
+  });
+});
