@@ -188,6 +188,7 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const nTotal = nx * ny;
   const images = {} as Record<MapImageName, Float64Array>;
   for (const name of MAP_IMAGE_NAMES) images[name] = new Float64Array(nTotal).fill(NaN);
+  const pixelBest = new Int32Array(nTotal).fill(-1);
   const fitted = ctx.axes.independent.filter((n) => !(n in usable[0].obs.held)).length;
   const warnings: string[] = [];
   let poor = 0;
@@ -207,6 +208,12 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
     images.best_chi2[i] = chi2;
     images.reduced_chi2[i] = chi2 / dof;
     images.p_value[i] = pValue;
+    images.dof[i] = dof;
+    images.density_lo[i] = dr.lo;
+    images.density_hi[i] = dr.hi;
+    images.age_lo_yr[i] = ar.lo;
+    images.age_hi_yr[i] = ar.hi;
+    pixelBest[i] = c;
     images.density_width_dex[i] = Math.log10(dr.hi / dr.lo);
     images.age_width_dex[i] = Math.log10(ar.hi / ar.lo);
     images.at_edge[i] = dr.atEdge || ar.atEdge ? 1 : 0;
@@ -217,5 +224,5 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   if (usable.length < pixels.length) warnings.push(`${pixels.length - usable.length} of ${pixels.length} map pixels have no usable quantity and are left blank (NaN) in every image.`);
   if (poor > 0) warnings.push(`${poor} of ${nPix} fitted pixels are poor fits (p < ${ctx.options.poorFitP}): see the p_value image.`);
   if (atEdge > 0) warnings.push(`${atEdge} of ${nPix} fitted pixels have a ${(level.level * 100).toFixed(1)}% density or age interval reaching the grid's edge (the at_edge image): the truth may lie outside the grid there.`);
-  return { nx, ny, images, fittedPixels: nPix, level, warnings };
+  return { nx, ny, images, bestCandidate: pixelBest, fittedPixels: nPix, level, warnings };
 }

@@ -251,10 +251,12 @@ export interface FitStageResult {
   fixedParameters: Record<string, number>;
   levels: RegionLevel[];
   modelSigmaDex: number;
+  /** p-value below which a fit is reported as poor. */
+  poorFitP: number;
   nCandidates: number;
   fits: SightlineFit[];
   joint: JointFit[];
-  /** Warnings of the whole stage (from the observations too). */
+  /** Warnings of the whole stage (the observations' too); each fit's own warnings stay in that fit. */
   warnings: string[];
   /** Model cautions to show the reader (physics.md section 8). */
   cautions: string[];
@@ -275,6 +277,12 @@ export const MAP_IMAGE_NAMES = [
   'best_chi2',
   'reduced_chi2',
   'p_value',
+  'dof',
+  /** Bounds of the 68.3% intervals (grid values). */
+  'density_lo',
+  'density_hi',
+  'age_lo_yr',
+  'age_hi_yr',
   /** log10(hi/lo) of the 68.3% interval, dex. */
   'density_width_dex',
   'age_width_dex',
@@ -289,6 +297,8 @@ export interface MapFitImages {
   nx: number;
   ny: number;
   images: Record<MapImageName, Float64Array>;
+  /** Best candidate (model * nTimes + time) of every pixel, -1 where none. */
+  bestCandidate: Int32Array;
   /** Pixels with at least one usable quantity. */
   fittedPixels: number;
   level: RegionLevel;

@@ -1,0 +1,255 @@
+/**
+ * The fit stage as one call: candidate table, fit options and observed
+ * quantities in; best fits, profiles, intervals, joint fits, map images and
+ * the text of every table and JSON file out. It reads and writes nothing:
+ * the caller (the `fit` command, the pipeline runner) loads the inputs and
+ * writes `files` under the output folder.
+ */
+import type { FitSection } from '../config/sections/fit.ts';
+import { UserError, UserErrors } from '../config/errors.ts';
+import type { ObservationSet, ObservedQuantity } from '../obs/types.ts';
+import { buildAxes, type GridAxes } from './axes.ts';
+import { MODEL_CAUTIONS } from './cautions.ts';
+import type { FitContext, FitOptions } from './context.ts';
+import { fitSightline } from './fit-sightline.ts';
+import { holdParameters } from './held.ts';
+import { fitJoint } from './joint.ts';
+import { fitMap, type MapPixel } from './map.ts';
+import { buildModelQuantities, collectTerms } from './model-quantities.ts';
+import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
+import { regionLevels } from './regions.ts';
+import { stageFiles } from './stage-files.ts';
+import {
+  AGE_PARAMETER,
+  type CandidateTable,
+  type FitStageResult,
+  type JointFit,
+  type MapFitImages,
+  type ProfilesJson,
+  type SightlineFit,
+  type SightlineProfiles,
+} from './types.ts';
+
+/** The level of the bounds in best_fits.csv and of the map interval images: 68.3%, one Gaussian sigma (common practice); always computed. */
+export const TABLE_LEVEL = 0.683;
+/** Problems listed one by one before the rest are counted. */
+const MAX_LISTED_PROBLEMS = 20;
+
+/** Where the pipeline file is, for located errors (a LoadedYaml fits). */
+export interface FitSource {
+  file: string;
+  lineOf?(path: readonly (string | number)[]): number | undefined;
+}
+
+export interface FitStageInput {
+  table: CandidateTable;
+  section: FitSection;
+  observations: ObservationSet;
+  /** Every sightline's observed quantities (from the observations room's deriveQuantities). */
+  quantities: readonly ObservedQuantity[];
+  /** Per sightline id: grid parameters held at one value (model A_V tied to the sightline's A_V). */
+  held?: Readonly<Record<string, Readonly<Record<string, number>>>>;
+  source?: FitSource;
+}
+
+export interface FitStageOutput {
+  result: FitStageResult;
+  profiles: ProfilesJson;
+  map?: MapFitImages;
+  /** File text by path relative to the output folder (FIT_OUTPUT_FILES); map FITS images are the caller's to encode from `map`. */
+  files: Record<string, string>;
+}
+
+function located(source: FitSource | undefined, path: (string | number)[], message: string): UserError {
+  return new UserError(message, { file: source?.file, line: source?.lineOf?.(path), field: path.join('.') });
+}
+
+function throwAll(problems: UserError[], summary: string): void {
+  if (problems.length === 0) return;
+  if (problems.length === 1) throw problems[0];
+  const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
+  const rest = problems.length - listed.length;
+  throw new UserErrors(`${summary}${rest > 0 ? ` (the first ${listed.length} of ${problems.length} shown)` : ''}:`, listed);
+}
+
+function checkOptions(section: FitSection, axes: GridAxes, table: CandidateTable, source: FitSource | undefined): void {
+  const known = [...table.parameterNames, AGE_PARAMETER];
+  const problems: UserError[] = [];
+  const unknown = (name: string, path: (string | number)[]) =>
+    problems.push(located(source, path, `'${name}' is not a parameter of the model grid; use one of ${known.join(', ')}.`));
+  section.pairs.forEach(([x, y], i) => {
+    if (!axes.byName.has(x)) unknown(x, ['fit', 'pairs', i, 0]);
+    if (!axes.byName.has(y)) unknown(y, ['fit', 'pairs', i, 1]);
+    if (x === y) problems.push(located(source, ['fit', 'pairs', i], `a pair needs two different parameters, found '${x}' twice.`));
+  });
+  section.joint.forEach((g, i) => {
+    g.share.forEach((s, k) => {
+      if (!axes.byName.has(s)) unknown(s, ['fit', 'joint', i, 'share', k]);
+    });
+  });
+  throwAll(problems, 'the fit section names parameters the model grid lacks');
+}
+
+/** A ratio needs a measured reference: a limit on the denominator leaves the ratio undefined. */
+function checkRatioReferences(observations: ObservationSet, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
+  const byId = new Map(observations.sightlines.map((s) => [s.id, s]));
+  const problems: UserError[] = [];
+  for (const q of quantities) {
+    if (q.denominator === undefined) continue;
+    const m = byId.get(q.sightline)?.columns[q.denominator];
+    if (m !== undefined && m.kind !== 'detection') {
+      const s = byId.get(q.sightline)!;
+      problems.push(
+        new UserError(
+          `sightline ${q.sightline}: the ratio ${q.label} is to ${q.denominator}, which has only ${m.kind === 'upper' ? 'an upper' : 'a lower'} limit here, so the ratio is undefined. ` +
+            `Fit this species as an abundance (fit.quantities: { species: ${q.numerator}, as: abundance }), or choose a reference detected on every sightline (observations.reference).`,
+          { file: s.source.file, row: s.source.row, line: s.source.line, field: q.denominator },
+        ),
+      );
+    }
+  }
+  throwAll(problems, 'ratios to a reference species that has only a limit');
+}
+
+function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
+  if (section.model_sigma_dex > 0) return;
+  if (section.limit_sigma_dex === 0 && quantities.some((q) => q.kind !== 'detection')) {
+    throw located(source, ['fit', 'model_sigma_dex'], 'limits need a width: with model_sigma_dex 0, set fit.limit_sigma_dex above 0 (dex) so the censored likelihood is defined.');
+  }
+  const zero = quantities.filter((q) => q.kind === 'detection' && (q.sigmaLoDex === 0 || q.sigmaHiDex === 0));
+  if (zero.length > 0) {
+    throw located(
+      source,
+      ['fit', 'model_sigma_dex'],
+      `${zero.length} detection(s) have a zero error (first: ${zero[0].label} of ${zero[0].sightline}) and model_sigma_dex is 0, so chi^2 is undefined. Give the errors, or a model floor above 0.`,
+    );
+  }
+}
+
+export function fitOptions(section: FitSection): FitOptions {
+  return {
+    modelSigmaDex: section.model_sigma_dex,
+    limitSigmaDex: section.limit_sigma_dex,
+    levels: [],
+    pairs: section.pairs.map(([x, y]) => [x, y] as [string, string]),
+    agreementDex: Math.log10(section.agreement_factor),
+    runnerUps: section.runner_ups,
+    limitsInDof: section.limits_in_dof,
+    poorFitP: section.poor_fit_p,
+  };
+}
+
+export function runFitStage(input: FitStageInput): FitStageOutput {
+  const { table, section, observations, quantities, source } = input;
+  if (table.nModels === 0) throw new UserError('the model store holds no finished model to fit. Run the grid first (`hoarfrost grid`), and check its failures.', { file: source?.file });
+  const axes = buildAxes(table);
+  checkOptions(section, axes, table, source);
+  checkRatioReferences(observations, quantities, source);
+  checkWidths(section, quantities, source);
+
+  const terms = collectTerms(quantities);
+  if (terms.length === 0) {
+    throw located(source, ['fit', 'quantities'], `no sightline of ${observations.file} has a value of any quantity in fit.quantities; check the species names against the observation columns.`);
+  }
+  const model = buildModelQuantities(table, terms, { file: source?.file });
+  const options = fitOptions(section);
+  options.levels = regionLevels([...section.levels, TABLE_LEVEL], section.parameters_of_interest);
+  const ctx: FitContext = { table, model, axes, options, chi2: new Float64Array(model.nCandidates) };
+
+  const byId = new Map<string, ObservedQuantity[]>();
+  for (const q of quantities) {
+    const list = byId.get(q.sightline);
+    if (list) list.push(q);
+    else byId.set(q.sightline, [q]);
+  }
+  const vectors: ObservationVector[] = [];
+  const warnings: string[] = [...observations.warnings];
+  const unfitted: string[] = [];
+  for (const s of observations.sightlines) {
+    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, options);
+    if (usedCount(v) === 0) {
+      unfitted.push(s.id);
+      continue;
+    }
+    holdParameters(v, input.held?.[s.id] ?? {}, table, axes, { file: source?.file });
+    vectors.push(v);
+  }
+  if (unfitted.length > 0 && observations.kind !== 'map') {
+    warnings.push(`${unfitted.length} sightline(s) have none of the fitted quantities and are not fitted: ${unfitted.slice(0, MAX_LISTED_PROBLEMS).join(', ')}${unfitted.length > MAX_LISTED_PROBLEMS ? ', ...' : ''}.`);
+  }
+
+  const fits: SightlineFit[] = [];
+  const profiles: SightlineProfiles[] = [];
+  let map: MapFitImages | undefined;
+  const tableLevel = options.levels.find((l) => l.level === TABLE_LEVEL)!;
+  if (observations.kind === 'map') {
+    if (!observations.map) throw new RangeError('a map observation set has no geometry');
+    const { nx, ny } = observations.map;
+    const pixels: MapPixel[] = [];
+    for (const s of observations.sightlines) {
+      if (!s.pixel) throw new RangeError(`map sightline ${s.id} has no pixel coordinates`);
+      pixels.push({ x: s.pixel.x, y: s.pixel.y, obs: buildObservationVector(s.id, byId.get(s.id) ?? [], terms, options) });
+    }
+    for (const px of pixels) holdParameters(px.obs, input.held?.[px.obs.sightline] ?? {}, table, axes, { file: source?.file });
+    map = fitMap(ctx, nx, ny, pixels, tableLevel, { file: observations.file });
+    warnings.push(...map.warnings);
+  } else {
+    if (vectors.length === 0) {
+      throw located(source, ['fit', 'quantities'], `no sightline of ${observations.file} has a value of any quantity in fit.quantities (${terms.map((t) => t.label).join(', ')}).`);
+    }
+    for (const v of vectors) {
+      const out = fitSightline(ctx, v);
+      fits.push(out.fit);
+      profiles.push(out.profiles);
+    }
+  }
+
+  const joint: JointFit[] = [];
+  const jointProfiles: SightlineProfiles[] = [];
+  const vectorById = new Map(vectors.map((v) => [v.sightline, v]));
+  section.joint.forEach((g, i) => {
+    const ids = g.sightlines === 'all' ? vectors.map((v) => v.sightline) : g.sightlines;
+    const problems: UserError[] = [];
+    const members: ObservationVector[] = [];
+    ids.forEach((id, k) => {
+      const v = vectorById.get(id);
+      if (v === undefined) {
+        const known = observations.sightlines.some((s) => s.id === id);
+        problems.push(
+          located(source, ['fit', 'joint', i, 'sightlines', k], known ? `sightline '${id}' has none of the fitted quantities, so it cannot join group ${g.name}; remove it from the group.` : `no sightline '${id}' in ${observations.file}; check the id.`),
+        );
+        return;
+      }
+      for (const s of g.share) {
+        if (s in v.held) problems.push(located(source, ['fit', 'joint', i, 'share'], `group ${g.name} shares ${s}, but sightline '${id}' is held at its own ${s} (a tie to the sightlines in conditions): a held parameter cannot be shared.`));
+      }
+      members.push(v);
+    });
+    if (members.length < 2 && problems.length === 0) problems.push(located(source, ['fit', 'joint', i, 'sightlines'], `group ${g.name} needs at least two fitted sightlines, found ${members.length}.`));
+    throwAll(problems, `joint group ${g.name}`);
+    const out = fitJoint(ctx, g.name, members, g.share);
+    if (!Number.isFinite(out.fit.chi2)) {
+      throw located(source, ['fit', 'joint', i], `the members of group ${g.name} have no common value of ${g.share.join(' and ')} among the models open to them (held parameters differ); share another parameter or split the group.`);
+    }
+    joint.push(out.fit);
+    jointProfiles.push(out.profiles);
+  });
+
+  const fixedParameters: Record<string, number> = {};
+  for (const a of axes.axes) if (!a.varied && a.name !== AGE_PARAMETER) fixedParameters[a.name] = a.values[0];
+  const result: FitStageResult = {
+    format: 'hoarfrost-fit/1',
+    fittedParameters: [...axes.independent],
+    fixedParameters,
+    levels: options.levels,
+    modelSigmaDex: section.model_sigma_dex,
+    poorFitP: section.poor_fit_p,
+    nCandidates: model.nCandidates,
+    fits,
+    joint,
+    warnings,
+    cautions: [...MODEL_CAUTIONS],
+  };
+  const profilesJson: ProfilesJson = { format: 'hoarfrost-fit-profiles/1', levels: options.levels, sightlines: profiles, joint: jointProfiles };
+  return { result, profiles: profilesJson, map, files: stageFiles(result, profilesJson, map, table, observations) };
+}

@@ -1,0 +1,108 @@
+/**
+ * Invented test data: a small candidate table whose abundances are smooth
+ * analytic functions of density and time (not a chemical model; shapes
+ * chosen only so that density and age are both identifiable), and a seeded
+ * random-number generator for noisy draws.
+ */
+import type { CandidateTable } from '../../src/fit/types.ts';
+import type { ObservedQuantity, ObservationSet, Sightline } from '../../src/obs/types.ts';
+
+export const SPECIES = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'CO'];
+
+/** Invented smooth abundances (relative to n_H) of SPECIES at density n (cm^-3) and time t (yr); `uv` scales CH3OH weakly. */
+export function analyticAbundances(n: number, t: number, uv = 1): number[] {
+  const freeze = 1 - Math.exp(-(t * n) / 6e9);
+  return [
+    1e-4 * freeze,
+    3e-5 * freeze * Math.pow(n / 1e4, 0.3),
+    2e-5 * Math.pow(t / 1e6, 0.4) * Math.pow(n / 1e4, -0.25) * freeze,
+    1e-6 * Math.pow(n / 1e4, 0.6) * Math.pow(t / 1e5, 0.5) * Math.pow(uv, -0.3),
+    1e-4 * Math.exp(-(t * n) / 6e9) + 1e-8,
+  ];
+}
+
+export function logSpaced(from: number, to: number, count: number): number[] {
+  return Array.from({ length: count }, (_, i) => from * Math.pow(to / from, i / (count - 1)));
+}
+
+export interface GridSpec {
+  densities: number[];
+  times: number[];
+  uvFields?: number[];
+  /** Extra conditions with fixed values. */
+  fixed?: Record<string, number>;
+}
+
+export function syntheticTable(spec: GridSpec): CandidateTable {
+  const uvs = spec.uvFields ?? [1];
+  const fixed = spec.fixed ?? { gas_temperature: 10 };
+  const parameterNames = ['density', 'uv_field', ...Object.keys(fixed)];
+  const np = parameterNames.length;
+  const models: number[][] = [];
+  for (const n of spec.densities) for (const uv of uvs) models.push([n, uv, ...Object.values(fixed)]);
+  const nT = spec.times.length;
+  const nS = SPECIES.length;
+  const parameters = new Float64Array(models.length * np);
+  const abundances = new Float64Array(models.length * nT * nS);
+  models.forEach((m, i) => {
+    parameters.set(m, i * np);
+    spec.times.forEach((t, k) => abundances.set(analyticAbundances(m[0], t, m[1]), (i * nT + k) * nS));
+  });
+  return {
+    parameterNames,
+    nModels: models.length,
+    nTimes: nT,
+    nSpecies: nS,
+    parameters,
+    modelIds: models.map((_, i) => `m${String(i).padStart(4, '0')}`),
+    timesYr: Float64Array.from(spec.times),
+    species: [...SPECIES],
+    abundances,
+  };
+}
+
+/** mulberry32: a small seeded generator (public-domain algorithm by Tommy Ettinger), for reproducible draws. */
+export function seededRandom(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Standard normal deviate by the Box-Muller transform. */
+export function gaussian(random: () => number): number {
+  const u = 1 - random();
+  const v = random();
+  return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * v);
+}
+
+export function detection(sightline: string, numerator: string, log10: number, sigmaDex: number, denominator?: string): ObservedQuantity {
+  return {
+    sightline,
+    label: denominator ? `${numerator}/${denominator}` : `X(${numerator})`,
+    numerator,
+    ...(denominator ? { denominator } : {}),
+    kind: 'detection',
+    log10,
+    sigmaLoDex: sigmaDex,
+    sigmaHiDex: sigmaDex,
+  };
+}
+
+export function limit(sightline: string, kind: 'upper' | 'lower', numerator: string, log10: number, denominator?: string): ObservedQuantity {
+  return { sightline, label: denominator ? `${numerator}/${denominator}` : `X(${numerator})`, numerator, ...(denominator ? { denominator } : {}), kind, log10, sigmaLoDex: 0, sigmaHiDex: 0 };
+}
+
+/** A table-kind observation set with the given sightline ids, every column a detection unless listed in `limits`. */
+export function observationSet(ids: string[], limits: Record<string, Record<string, 'upper' | 'lower'>> = {}): ObservationSet {
+  const sightlines: Sightline[] = ids.map((id, row) => {
+    const columns: Sightline['columns'] = {};
+    for (const s of SPECIES) columns[s] = { kind: limits[id]?.[s] ?? 'detection', value: 1e17, errLo: 1e16, errHi: 1e16 };
+    return { id, columns, source: { file: 'invented-cloud.csv', row: row + 2 } };
+  });
+  return { file: 'invented-cloud.csv', kind: 'table', sightlines, warnings: [] };
+}
