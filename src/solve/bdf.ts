@@ -453,6 +453,9 @@ class BdfIntegrator {
       case Outcome.TooManySteps:
         return `too many steps: ${this.maxSteps} steps taken before reaching t = ${this.tEnd.toPrecision(6)} (stopped at ${at}); raise maxSteps or loosen the tolerances`;
       case Outcome.StepUnderflow:
+        if (this.rhsNonFinite) {
+          return `non-finite values in the right-hand side just after ${at}: steps shrank until the step size underflowed`;
+        }
         return `step size underflow at ${at}: the step fell below ${MIN_STEP_ULPS} units in the last place of t`;
       case Outcome.NewtonFailure:
         if (this.rhsNonFinite) {

@@ -5,6 +5,8 @@
  * analysis is done once, here, per pattern.
  */
 import { DenseLU } from './dense-lu.ts';
+import type { OrderingName } from './ordering.ts';
+import { SparseLU } from './sparse-lu.ts';
 import type { SparsityPattern } from './types.ts';
 
 /** Systems up to this size use the dense LU (measured with bench/solver.ts). */
@@ -50,7 +52,61 @@ export class DenseNewtonMatrix implements NewtonMatrix {
   }
 }
 
+/** I - c J on the pattern of J plus its diagonal, factored by the sparse LU. */
+export class SparseNewtonMatrix implements NewtonMatrix {
+  readonly lu: SparseLU;
+  private readonly values: Float64Array;
+  /** Position in `values` of each entry of J, and of each diagonal entry. */
+  private readonly jacobianIndex: Int32Array;
+  private readonly diagonalIndex: Int32Array;
+
+  constructor(n: number, pattern: SparsityPattern, ordering: OrderingName = 'minimum-degree') {
+    const { rowPtr, colIdx } = pattern;
+    const withDiagonal = new Int32Array(n + 1);
+    for (let i = 0; i < n; i++) {
+      let hasDiagonal = false;
+      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) if (colIdx[p] === i) hasDiagonal = true;
+      withDiagonal[i + 1] = withDiagonal[i] + (rowPtr[i + 1] - rowPtr[i]) + (hasDiagonal ? 0 : 1);
+    }
+    const columns = new Int32Array(withDiagonal[n]);
+    this.jacobianIndex = new Int32Array(rowPtr[n]);
+    this.diagonalIndex = new Int32Array(n);
+    for (let i = 0; i < n; i++) {
+      let dest = withDiagonal[i];
+      let diagonalPlaced = false;
+      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) {
+        const j = colIdx[p];
+        if (!diagonalPlaced && j >= i) {
+          if (j > i) columns[dest++] = i;
+          this.diagonalIndex[i] = dest - (j > i ? 1 : 0);
+          diagonalPlaced = true;
+        }
+        this.jacobianIndex[p] = dest;
+        columns[dest++] = j;
+      }
+      if (!diagonalPlaced) {
+        this.diagonalIndex[i] = dest;
+        columns[dest++] = i;
+      }
+    }
+    this.values = new Float64Array(columns.length);
+    this.lu = new SparseLU(n, { rowPtr: withDiagonal, colIdx: columns }, { ordering });
+  }
+
+  factor(jacobianValues: Float64Array, c: number): boolean {
+    const { values, jacobianIndex, diagonalIndex } = this;
+    values.fill(0);
+    for (let i = 0; i < diagonalIndex.length; i++) values[diagonalIndex[i]] = 1;
+    for (let p = 0; p < jacobianIndex.length; p++) values[jacobianIndex[p]] -= c * jacobianValues[p];
+    return this.lu.factor(values);
+  }
+
+  solve(b: Float64Array): void {
+    this.lu.solve(b);
+  }
+}
+
 /** Picks the dense or the sparse Newton matrix for a pattern. */
 export function createNewtonMatrix(n: number, pattern: SparsityPattern): NewtonMatrix {
-  return new DenseNewtonMatrix(n, pattern);
+  return n <= DENSE_MAX_N ? new DenseNewtonMatrix(n, pattern) : new SparseNewtonMatrix(n, pattern);
 }
