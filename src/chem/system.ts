@@ -87,23 +87,36 @@ function describe(r: Reaction): string {
  * one monolayer of ice that share is N_i / N_sites (first order, rate k x_i);
  * above it, for a well-mixed ice, x_i / x_ice of a full layer, so the rate is
  * k x_i x_ML / x_ice: the total per grain no longer grows with the ice.
+ * All photodesorbing species share the ice total, so they form one term.
  */
 class MonolayerPhotodesorption implements NonMassActionTerm {
   readonly entries: [number, number][] = [];
+  /** Rows of channel q: rows[rowStart[q] .. rowStart[q+1]), the ice species first. */
+  private readonly rowStart: Int32Array;
   private readonly rows: Int32Array;
   private readonly rowSign: Float64Array;
+  private readonly ice: Int32Array;
+  private readonly k: Float64Array;
   private positions: Int32Array = new Int32Array(0);
 
   constructor(
     readonly name: string,
-    private readonly ice: number,
-    products: Int32Array,
-    private readonly k: number,
+    channels: { ice: number; products: Int32Array; k: number }[],
     private readonly monolayer: number,
     private readonly iceSpecies: Int32Array,
   ) {
-    this.rows = Int32Array.from([ice, ...products]);
-    this.rowSign = Float64Array.from([-1, ...Array.from(products, () => 1)]);
+    this.ice = Int32Array.from(channels, (ch) => ch.ice);
+    this.k = Float64Array.from(channels, (ch) => ch.k);
+    this.rowStart = new Int32Array(channels.length + 1);
+    const rows: number[] = [];
+    const signs: number[] = [];
+    channels.forEach((ch, q) => {
+      rows.push(ch.ice, ...ch.products);
+      signs.push(-1, ...Array.from(ch.products, () => 1));
+      this.rowStart[q + 1] = rows.length;
+    });
+    this.rows = Int32Array.from(rows);
+    this.rowSign = Float64Array.from(signs);
     for (const row of this.rows) for (const col of iceSpecies) this.entries.push([row, col]);
   }
 
@@ -120,22 +133,29 @@ class MonolayerPhotodesorption implements NonMassActionTerm {
 
   addRhs(y: Float64Array, dydt: Float64Array): void {
     const xIce = this.iceTotal(y);
-    const rate = xIce <= this.monolayer ? this.k * y[this.ice] : (this.k * this.monolayer * y[this.ice]) / xIce;
-    for (let q = 0; q < this.rows.length; q++) dydt[this.rows[q]] += this.rowSign[q] * rate;
+    const share = xIce <= this.monolayer ? 1 : this.monolayer / xIce;
+    for (let q = 0; q < this.k.length; q++) {
+      const rate = this.k[q] * share * y[this.ice[q]];
+      for (let r = this.rowStart[q]; r < this.rowStart[q + 1]; r++) dydt[this.rows[r]] += this.rowSign[r] * rate;
+    }
   }
 
   addJacobian(y: Float64Array, values: Float64Array): void {
     const xIce = this.iceTotal(y);
     const nIce = this.iceSpecies.length;
     const below = xIce <= this.monolayer;
-    const scale = below ? 0 : (this.k * this.monolayer) / xIce;
-    const cross = below ? 0 : -(scale * y[this.ice]) / xIce;
-    for (let q = 0; q < this.rows.length; q++) {
-      const sign = this.rowSign[q];
-      for (let c = 0; c < nIce; c++) {
-        const col = this.iceSpecies[c];
-        const d = col === this.ice ? (below ? this.k : scale + cross) : cross;
-        values[this.positions[q * nIce + c]] += sign * d;
+    const share = below ? 1 : this.monolayer / xIce;
+    for (let q = 0; q < this.k.length; q++) {
+      const self = this.k[q] * share;
+      // d(k x_i x_ML / x_ice)/dx_j = -k x_i x_ML / x_ice^2 for every ice j (zero below a monolayer).
+      const cross = below ? 0 : -(self * y[this.ice[q]]) / xIce;
+      for (let r = this.rowStart[q]; r < this.rowStart[q + 1]; r++) {
+        const sign = this.rowSign[r];
+        const base = r * nIce;
+        for (let c = 0; c < nIce; c++) {
+          const d = this.iceSpecies[c] === this.ice[q] ? self + cross : cross;
+          values[this.positions[base + c]] += sign * d;
+        }
       }
     }
   }
@@ -216,16 +236,16 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
 
   const nonMassAction: NonMassActionTerm[] = [];
   if (!options.massActionOnly) {
-    for (const rate of special) {
-      const r = rate.reaction;
-      const name = omitted[special.indexOf(rate)];
-      const prod = Int32Array.from(r.products.map(index));
-      if (rate.form === 'monolayer-photodesorption') {
-        nonMassAction.push(new MonolayerPhotodesorption(name, index(r.reactants[0]), prod, rate.k, rateSet.grain.monolayerAbundance, iceSpecies));
-      } else {
-        nonMassAction.push(new ParametricH2(name, index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), prod, rate.k * nH));
-      }
+    const photo = special.filter((r) => r.form === 'monolayer-photodesorption');
+    if (photo.length > 0) {
+      const channels = photo.map((rate) => ({ ice: index(rate.reaction.reactants[0]), products: Int32Array.from(rate.reaction.products.map(index)), k: rate.k }));
+      nonMassAction.push(new MonolayerPhotodesorption(`photodesorption with the monolayer treatment (${photo.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
     }
+    special.forEach((rate, q) => {
+      if (rate.form !== 'parametric-h2') return;
+      const r = rate.reaction;
+      nonMassAction.push(new ParametricH2(omitted[q], index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), Int32Array.from(r.products.map(index)), rate.k * nH));
+    });
   }
 
   // Sparsity: a term's rate depends on each reactant and changes every reactant and product.

@@ -2,6 +2,8 @@
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
 import { compile, type CompiledSystem } from '../../src/chem/system.ts';
+import { join } from 'node:path';
+import { loadNetwork } from '../../src/chem/network.ts';
 import { makeNetwork } from '../model/fixtures.ts';
 
 const c = defaultConditions();
@@ -139,7 +141,8 @@ describe('compile', () => {
   it('names the non-mass-action terms and leaves them out on request', () => {
     expect(sys.omitted).toHaveLength(2);
     expect(sys.omitted[0]).toMatch(/monolayer-photodesorption .*CO\(s\) -> CO/);
-    expect(sys.nonMassAction).toHaveLength(2);
+    expect(sys.nonMassAction).toHaveLength(1);
+    expect(sys.nonMassAction[0].name).toMatch(/monolayer treatment \(2 reactions\)/);
     const only = compile(net, c, DEFAULT_GRAIN_OPTIONS, { massActionOnly: true });
     expect(only.nonMassAction).toHaveLength(0);
     expect(only.omitted).toEqual(sys.omitted);
@@ -168,4 +171,16 @@ describe('compile', () => {
     expect((photo[net.speciesIndex.get('H')!] + accretion) / (-2 * formation)).toBeCloseTo(1, 10);
     expect(fdCheck(para, randomState(para, 1e-6, 5))).toBeLessThan(1e-5);
   });
+});
+
+describe('compile the default network', () => {
+  const network = loadNetwork(join(import.meta.dirname, '..', '..', 'config', 'networks', 'dark-cloud.yaml'));
+  for (const grain of [DEFAULT_GRAIN_OPTIONS, { tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const }]) {
+    it(`has an exact Jacobian below and above a monolayer (${JSON.stringify(grain)})`, () => {
+      const sys = compile(network, { ...c, dust_temperature: 15 }, grain);
+      const mono = sys.rateSet.grain.monolayerAbundance;
+      expect(fdCheck(sys, randomState(sys, 1e-3 * mono, 17))).toBeLessThan(1e-5);
+      expect(fdCheck(sys, randomState(sys, mono, 19))).toBeLessThan(1e-5);
+    });
+  }
 });
