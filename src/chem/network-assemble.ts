@@ -82,6 +82,8 @@ export function assembleNetwork(raw: RawNetwork): Network {
   };
 
   const dataOwner = new Map<string, ErrorLocation>();
+  /** Species whose entry was rejected: their reactions are not blamed again for the missing data. */
+  const rejectedData = new Set<string>();
   for (const entry of raw.species) {
     const parsed = tryParseSpecies(entry.name);
     if (typeof parsed === 'string') {
@@ -107,7 +109,10 @@ export function assembleNetwork(raw: RawNetwork): Network {
       problems.push(new UserError(`mass must be a positive number of u; found ${entry.mass}.`, entry.locate('mass')));
       ok = false;
     }
-    if (!ok) continue;
+    if (!ok) {
+      rejectedData.add(parsed.gasName);
+      continue;
+    }
     addSpecies(entry.mass !== undefined ? { ...parsed, mass: entry.mass } : parsed);
     speciesData.set(parsed.gasName, {
       name: parsed.gasName,
@@ -133,7 +138,7 @@ export function assembleNetwork(raw: RawNetwork): Network {
   }
 
   for (const [gasName, where] of firstIceUse) {
-    if (speciesData.get(gasName)?.bindingEnergy === undefined) {
+    if (speciesData.get(gasName)?.bindingEnergy === undefined && !rejectedData.has(gasName)) {
       problems.push(new UserError(`the ice species ${iceName(gasName)} has no binding energy; its desorption and diffusion rates need one. Add {name: ${gasName}, binding_energy: <K>} to the species list.`, where));
     }
   }
