@@ -268,7 +268,12 @@ export function readFitsImage(f: FitsFile, h: FitsHduInfo): FitsImageRead {
   const buffer = dataBuffer(f, h);
   if (h.bitpix === -64) {
     const view = new DataView(buffer);
-    for (let i = 0; i < out.length; i++) out[i] = bzero + bscale * view.getFloat64(i * 8, false);
+    const scaled = bzero !== 0 || bscale !== 1;
+    for (let i = 0; i < out.length; i++) {
+      const v = view.getFloat64(i * 8, false);
+      // Unscaled values are copied as they are, so -0 and every bit survive.
+      out[i] = scaled ? bzero + bscale * v : v;
+    }
     return { nx, ny, data: out };
   }
   const fits = lib().astro.FITS;
@@ -278,9 +283,10 @@ export function readFitsImage(f: FitsFile, h: FitsHduInfo): FitsImageRead {
     if (img.width !== nx || img.height !== ny) throw `fitsjs reads ${img.width} x ${img.height}, the header says ${nx} x ${ny}`;
     return img._getFrame(img.frameOffsets[0].buffers![0], h.bitpix, 0, 1);
   });
+  const scaled = bzero !== 0 || bscale !== 1;
   for (let i = 0; i < out.length; i++) {
     const v = raw[i];
-    out[i] = blank !== undefined && v === blank ? NaN : bzero + bscale * v;
+    out[i] = blank !== undefined && v === blank ? NaN : scaled ? bzero + bscale * v : v;
   }
   return { nx, ny, data: out };
 }
