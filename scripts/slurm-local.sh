@@ -51,9 +51,9 @@ stop_pid() {
 }
 
 do_stop() {
-  if [ -f "$dir/slurm.conf" ]; then
+  if [ -f "$dir/slurm.conf" ] && [ -f "$dir/run/slurmctld.pid" ] && kill -0 "$(cat "$dir/run/slurmctld.pid")" 2>/dev/null; then
     export SLURM_CONF="$dir/slurm.conf"
-    # Running steps outlive slurmd: cancel them first.
+    # Running steps outlive slurmd: cancel them first (only with a controller to ask, else scancel retries for long).
     scancel --quiet --user="$(id -un)" 2>/dev/null || true
   fi
   stop_pid slurmd "$dir/run/slurmd.pid"
@@ -70,7 +70,8 @@ do_start() {
   for p in $CTLD_PORT $SLURMD_PORT; do port_busy "$p" && die "port $p is in use; stop whatever listens there (another Slurm?) and retry."; done
 
   mkdir -p "$dir"/{run,log,state,spool,munge}
-  chmod 0711 "$dir/munge" # munged refuses a socket folder that others cannot traverse
+  # munged refuses a socket whose folders others cannot traverse (a mktemp folder is 0700).
+  chmod 0711 "$dir" "$dir/munge"
   [ -f "$dir/munge/munge.key" ] || mungekey -c -k "$dir/munge/munge.key" -b 1024
   chmod 0600 "$dir/munge/munge.key"
 
