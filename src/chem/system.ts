@@ -74,7 +74,7 @@ export interface CompiledSystem {
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
   jacobian(t: number, y: Float64Array, values: Float64Array): void;
   /** The mass-action part as JSON (the --emit-system contract of issue 4). */
-  emit(y0: Float64Array, timesS: Float64Array): EmittedSystem;
+  emitSystem(y0: Float64Array, timesS: Float64Array): EmittedSystem;
 }
 
 function describe(r: Reaction): string {
@@ -336,7 +336,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
   };
 
   const terms: MassActionTerms = { reactantStart, reactants, productStart, products, k, reaction };
-  const emit = (y0: Float64Array, timesS: Float64Array): EmittedSystem => ({
+  const emitSystem = (y0: Float64Array, timesS: Float64Array): EmittedSystem => ({
     species,
     y0: Array.from(y0),
     times_s: Array.from(timesS),
@@ -360,6 +360,6 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     pattern: { rowPtr, colIdx },
     rhs,
     jacobian,
-    emit,
+    emitSystem,
   };
 }

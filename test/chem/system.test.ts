@@ -148,7 +148,7 @@ describe('compile', () => {
     expect(only.omitted).toEqual(sys.omitted);
   });
   it('emits every mass-action term with its reactants, products and effective k', () => {
-    const json = sys.emit(new Float64Array(sys.n), Float64Array.of(1, 2));
+    const json = sys.emitSystem(new Float64Array(sys.n), Float64Array.of(1, 2));
     expect(json.species).toEqual(net.species.map((s) => s.name));
     expect(json.terms).toHaveLength(sys.terms.k.length);
     const hh = json.terms[Array.from(sys.terms.reaction).indexOf(12)];

@@ -23,7 +23,7 @@ describe('emitted system round trip', () => {
 
   it('reproduces the mass-action-only model from the JSON terms', () => {
     const system = compile(network, conditions, DEFAULT_GRAIN_OPTIONS, { massActionOnly: true });
-    const json = JSON.parse(JSON.stringify(system.emit(initialState(input), timesYr.map((t) => t * YEAR_SECONDS)))) as EmittedSystem;
+    const json = JSON.parse(JSON.stringify(system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS)))) as EmittedSystem;
     expect(json.omitted).toHaveLength(2);
     expect(json.omitted.join(' ')).toMatch(/photodesorption/);
     const model = runModel(input);

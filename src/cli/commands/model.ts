@@ -76,7 +76,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   };
   if (opts.emitSystem) {
     const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly });
-    const emitted = system.emit(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
+    const emitted = system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
     writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n', writeFileSync, UserError);
   }
   const result = runModel(input);
