@@ -39,7 +39,10 @@ export function progressBar(p: GridProgress): string {
 export class ProgressPrinter {
   private last = 0;
   private shown = false;
+  /** Latest state not drawn yet. */
   private pending: GridProgress | undefined;
+  /** Latest state seen, redrawn under a message. */
+  private latest: GridProgress | undefined;
   private readonly stream: NodeJS.WritableStream;
   private readonly tty: boolean;
   private readonly intervalMs: number;
@@ -52,6 +55,7 @@ export class ProgressPrinter {
 
   update(p: GridProgress): void {
     this.pending = p;
+    this.latest = p;
     const now = Date.now();
     if (now - this.last < this.intervalMs && p.done < p.total) return;
     this.last = now;
@@ -69,7 +73,7 @@ export class ProgressPrinter {
   message(text: string): void {
     if (this.tty && this.shown) this.stream.write('\r\x1b[K');
     this.stream.write(`${text}\n`);
-    if (this.tty && this.pending) this.draw(this.pending);
+    if (this.tty && this.latest) this.draw(this.latest);
   }
 
   private draw(p: GridProgress): void {
