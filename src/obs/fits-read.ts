@@ -332,7 +332,8 @@ export function readFitsBinaryTable(f: FitsFile, h: FitsHduInfo): FitsTableColum
     const unit = h.header.get(`TUNIT${k}`);
     const values = rows.map((row) => {
       const v = row[name];
-      if (code === 'A') return typeof v === 'string' ? v : String(v ?? '');
+      // A NUL ends a string (FITS Standard 4.0 §7.3.3.1: astropy pads with NULs); trailing blanks are not significant.
+      if (code === 'A') return (typeof v === 'string' ? v : String(v ?? '')).split('\0')[0].trimEnd();
       if (code === 'L') return typeof v === 'boolean' ? v : null;
       if (repeat !== 1 || typeof v !== 'number') return null;
       if (tnull !== undefined && 'BIJK'.includes(code) && v === tnull) return null;

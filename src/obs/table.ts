@@ -132,6 +132,19 @@ function columnList(table: RawTable): string {
   return names.length > 12 ? `${names.slice(0, 12).join(', ')} and ${names.length - 12} more` : names.join(', ');
 }
 
+/**
+ * The species a conventional column name means. FITS writers often upper-case
+ * EXTNAME (astropy does by default), so `(S)` is read as the ice suffix `(s)`,
+ * and with a network at hand an upper-cased name is matched to the one
+ * network species it can be.
+ */
+function conventionSpecies(written: string, known: ReadonlySet<string> | undefined): string {
+  const name = written.replace(/\(S\)$/, '(s)');
+  if (!known || known.has(name)) return name;
+  const hits = [...known].filter((k) => k.toUpperCase() === name.toUpperCase());
+  return hits.length === 1 ? hits[0] : name;
+}
+
 function buildPlan(table: RawTable, opts: TableOptions, problems: UserError[], warnings: string[]): Plan {
   const m = opts.mapping ?? {};
   const mapSrc = opts.mappingSource ?? 'the column mapping';
@@ -188,8 +201,9 @@ function buildPlan(table: RawTable, opts: TableOptions, problems: UserError[], w
     for (const col of table.columns) {
       const v = VALUE_COLUMN.exec(col.name);
       const t = TAU_COLUMN.exec(col.name);
-      const sp = v?.[1] ?? t?.[1];
-      if (!sp) continue;
+      const written = v?.[1] ?? t?.[1];
+      if (!written) continue;
+      const sp = conventionSpecies(written, opts.knownSpecies);
       const base = col.name;
       const find = (names: string[]) => {
         const i = findColumn(table, names, false);
