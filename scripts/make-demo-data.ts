@@ -10,7 +10,7 @@
  * between output times) and turned into columns with N_H = nh_per_av * A_V.
  * Noise: every column is drawn from a Gaussian with its stated 1-sigma error
  * (a relative error per species, with an absolute floor); a draw below three
- * times the floor is written as a 3-sigma upper limit. A_V errors are 8%.
+ * times the floor is written as a 3-sigma upper limit. A_V errors are 5%.
  * The random numbers come from a seeded generator (mulberry32), so the files
  * are the same on every machine.
  *
@@ -60,11 +60,11 @@ export const DEMO_SPECIES: readonly DemoSpecies[] = [
 ];
 /** The species of the map images (the ices and gas CO that maps are made of). */
 const MAP_SPECIES = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'CO'];
-const AV_RELATIVE_ERROR = 0.08;
+const AV_RELATIVE_ERROR = 0.05;
 const LIMIT_SIGMA = 3;
 
 /** The invented background stars: observed A_V (mag) from 4 to 30. */
-const SIGHTLINE_AV = [4.2, 5.1, 6.3, 7.6, 9.0, 10.8, 12.9, 15.4, 18.3, 21.7, 25.6, 29.8];
+const SIGHTLINE_AV = [4.3, 5.1, 6.3, 7.6, 9.0, 10.8, 12.9, 15.4, 18.3, 20.8, 23.5, 26.5];
 /** Hidden truth: n_H rises with A_V as n0 (A_V/4 mag)^slope, scattered by DENSITY_SCATTER_DEX; ages scatter around AGE_CENTRE_YR. */
 const DENSITY_AT_4_MAG = 2.5e3;
 const DENSITY_SLOPE = 1.7;

@@ -1,0 +1,357 @@
+/**
+ * The real stages of `hoarfrost run`, each a thin adapter between the stage
+ * runner and the room that does the work: observations (src/obs), the model
+ * grid (src/grid), the fit (src/fit) and the report (src/report). Each says
+ * which pipeline sections and files it reads, so an unchanged stage is
+ * skipped, and writes its results under the output folder so a later run can
+ * reload them instead of recomputing.
+ */
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname, join, relative, sep } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { UserError } from '../config/errors.ts';
+import type { Pipeline } from '../config/pipeline.ts';
+import { TOOL_VERSION } from '../config/version.ts';
+import { FIT_OUTPUT_FILES, MAP_IMAGE_NAMES, type FitStageResult, type MapFitJson, type ProfilesJson } from '../fit/types.ts';
+import { DEFAULT_BAND_TABLE, deriveQuantities, loadObservations, sidecarPath, type ObservationSet, type ObservedQuantity } from '../obs/index.ts';
+import type { ReportProvenance } from '../report/types.ts';
+import { hashFile, hashValue } from './hash.ts';
+import { heldParameters } from './held.ts';
+import type { StageContext, StageImpl, StageSet } from './stages.ts';
+import { loadTracks } from './tracks.ts';
+
+export interface ObserveData {
+  observations: ObservationSet;
+  quantities: ObservedQuantity[];
+}
+export interface GridData {
+  storeFile: string;
+}
+export interface FitData {
+  result: FitStageResult;
+}
+export interface ReportData {
+  html: string;
+}
+export interface PipelineData {
+  observe: ObserveData;
+  grid: GridData;
+  fit: FitData;
+  report: ReportData;
+}
+
+const OBSERVATIONS_JSON = 'observations/observations.json';
+const QUANTITIES_CSV = 'observations/quantities.csv';
+const STORE_FILE = 'store/models.sqlite';
+const REPORT_DIR = 'report';
+/** Progress lines of a grid that is not on a terminal: at most one per this many ms. */
+const GRID_PROGRESS_INTERVAL_MS = 5000;
+const TOOL_CONFIG_DIR = join(dirname(fileURLToPath(import.meta.url)), '../../config');
+
+function writeOutput(outDir: string, rel: string, text: string | Uint8Array): void {
+  const file = join(outDir, rel);
+  mkdirSync(dirname(file), { recursive: true });
+  writeFileSync(file, text);
+}
+
+function readJson<T>(outDir: string, rel: string, stage: string): T {
+  const file = join(outDir, rel);
+  try {
+    return JSON.parse(readFileSync(file, 'utf8')) as T;
+  } catch {
+    throw new UserError(`the ${stage} stage's output is missing or unreadable; rerun with --from ${stage}.`, { file });
+  }
+}
+
+/** A path relative to the output folder, with forward slashes (the same on every machine). */
+function relOut(outDir: string, file: string): string {
+  return relative(outDir, file).split(sep).join('/');
+}
+
+function observationsSection(pipeline: Pipeline) {
+  const section = pipeline.config.observations;
+  if (!section) {
+    throw new UserError('the pipeline has no `observations:` section; `hoarfrost run` fits observations and needs one (give at least `file:`).', { file: pipeline.file, line: pipeline.yaml.lineOf([]) });
+  }
+  return section;
+}
+
+function fitSection(pipeline: Pipeline) {
+  const section = pipeline.config.fit;
+  if (!section) throw new UserError('the pipeline has no `fit:` section; name the quantities to fit under `fit: quantities:`.', { file: pipeline.file });
+  return section;
+}
+
+/** The files the observation readers read: the data, its column mapping, the band strengths. */
+function observationFiles(pipeline: Pipeline): Record<string, string> {
+  const s = observationsSection(pipeline);
+  const data = pipeline.resolvePath(s.file);
+  const files: Record<string, string> = { observations: data, network: pipeline.resolvePath(pipeline.config.network) };
+  files.columns = s.columns_file ? pipeline.resolvePath(s.columns_file) : sidecarPath(data);
+  files.band_strengths = s.band_strengths ? pipeline.resolvePath(s.band_strengths) : DEFAULT_BAND_TABLE;
+  return files;
+}
+
+/** The species whose quantities the fit asks for, as the observations room takes them. */
+function wantedQuantities(pipeline: Pipeline) {
+  return fitSection(pipeline).quantities;
+}
+
+/**
+ * The observation set with every path made relative to the pipeline's folder
+ * (forward slashes), so what the observe stage saves, and what the later
+ * stages read, is the same in every clone.
+ */
+function portable(set: ObservationSet, baseDir: string): ObservationSet {
+  const rel = (file: string) => relative(baseDir, file).split(sep).join('/') || '.';
+  const prefix = baseDir.endsWith(sep) ? baseDir : baseDir + sep;
+  const text = (t: string) => t.split(prefix).join('');
+  return {
+    ...set,
+    file: rel(set.file),
+    sightlines: set.sightlines.map((s) => ({ ...s, source: { ...s.source, file: rel(s.source.file) } })),
+    warnings: set.warnings.map(text),
+  };
+}
+
+function csvCell(v: string | number | undefined): string {
+  if (v === undefined) return '';
+  const s = String(v);
+  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+function quantitiesCsv(quantities: readonly ObservedQuantity[]): string {
+  const header = ['sightline', 'quantity', 'kind', 'log10', 'sigma_lo_dex', 'sigma_hi_dex'];
+  const rows = quantities.map((q) => [q.sightline, q.label, q.kind, q.log10, q.sigmaLoDex, q.sigmaHiDex].map(csvCell).join(','));
+  return [header.join(','), ...rows].join('\n') + '\n';
+}
+
+const observe: StageImpl<PipelineData, 'observe'> = {
+  inputs: ({ pipeline }) => ({ config: { observations: observationsSection(pipeline), quantities: wantedQuantities(pipeline) }, files: observationFiles(pipeline), after: [] }),
+  run: async ({ pipeline, outDir }) => {
+    const section = observationsSection(pipeline);
+    const { loadNetwork } = await import('../chem/network.ts');
+    const network = loadNetwork(pipeline.resolvePath(pipeline.config.network));
+    const observations = loadObservations(section, pipeline.dir, new Set(network.species.map((s) => s.name)));
+    const derived = deriveQuantities(observations, section, wantedQuantities(pipeline));
+    const saved: ObserveData = { observations: portable(observations, pipeline.dir), quantities: derived.quantities };
+    writeOutput(outDir, OBSERVATIONS_JSON, `${JSON.stringify(saved, null, 1)}\n`);
+    writeOutput(outDir, QUANTITIES_CSV, quantitiesCsv(derived.quantities));
+    const nSightlines = observations.sightlines.length;
+    const limits = derived.quantities.filter((q) => q.kind !== 'detection').length;
+    const warnings = [...observations.warnings, ...derived.warnings];
+    return {
+      summary: `${nSightlines} ${observations.kind === 'map' ? 'pixels' : 'sightlines'}, ${derived.quantities.length} quantities (${limits} limits)${warnings.length ? `, ${warnings.length} warnings` : ''}`,
+      outputs: [OBSERVATIONS_JSON, QUANTITIES_CSV],
+      data: saved,
+      warnings,
+    };
+  },
+  load: async ({ outDir }) => readJson<ObserveData>(outDir, OBSERVATIONS_JSON, 'observe'),
+};
+
+function sightlineAvs(observations: ObservationSet, pipeline: Pipeline): number[] {
+  const missing = observations.sightlines.filter((s) => s.av === undefined).map((s) => s.id);
+  if (missing.length > 0) {
+    throw new UserError(
+      `conditions.visual_extinction is tied to the sightlines, but ${missing.length} sightline(s) have no A_V: ${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', ...' : ''}. Give their A_V, or set visual_extinction to values.`,
+      { file: pipeline.file, field: 'conditions.visual_extinction' },
+    );
+  }
+  return observations.sightlines.map((s) => s.av!);
+}
+
+const grid: StageImpl<PipelineData, 'grid'> = {
+  inputs: ({ pipeline }) => {
+    const c = pipeline.config;
+    const tied = needsSightlineTie(pipeline);
+    const files: Record<string, string> = { network: pipeline.resolvePath(c.network) };
+    if (typeof c.initial === 'string' && /[\\/]|\.ya?ml$/i.test(c.initial)) files.initial = pipeline.resolvePath(c.initial);
+    else if (typeof c.initial === 'string') files.initial = join(TOOL_CONFIG_DIR, 'initial', `${c.initial}.yaml`);
+    return {
+      config: { conditions: c.conditions, exclude: c.exclude, grain: c.grain, initial: c.initial, times: c.times, solver: c.solver, modelAvFraction: tied ? c.observations?.model_av_fraction : undefined },
+      files,
+      after: tied ? ['observe'] : [],
+    };
+  },
+  run: async (ctx) => {
+    const { pipeline, outDir, progress } = ctx;
+    const { runGrid } = await import('../grid/run.ts');
+    const sightlineAv = needsSightlineTie(pipeline) ? sightlineAvs((await ctx.upstream('observe')).observations, pipeline) : undefined;
+    const drain = new AbortController();
+    const onSigint = () => {
+      progress('stopping: letting the models in flight finish (Ctrl-C again to stop at once)');
+      drain.abort();
+      process.once('SIGINT', () => process.exit(130));
+    };
+    process.once('SIGINT', onSigint);
+    let lastLine = 0;
+    try {
+      const r = await runGrid(pipeline, {
+        workers: ctx.workers,
+        sightlineAv,
+        drainSignal: drain.signal,
+        onStart: (info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}`),
+        onProgress: (p) => {
+          const now = performance.now();
+          if (p.done < p.total && now - lastLine < GRID_PROGRESS_INTERVAL_MS) return;
+          lastLine = now;
+          const left = p.remainingMs === undefined ? '' : `, about ${Math.ceil(p.remainingMs / 1000)} s left`;
+          progress(`grid: ${p.done}/${p.total} models${p.failed ? `, ${p.failed} failed` : ''}, ${p.ratePerMinute.toFixed(0)} per minute${left}`);
+        },
+      });
+      if (r.interrupted || r.remaining > 0) {
+        throw new UserError(`the grid was stopped with ${r.remaining} of ${r.share} models still to compute; the finished ones are kept in the store. Run again to go on.`, { file: r.storeFile });
+      }
+      const ok = r.share - Object.values(r.failureReasons).reduce((a, b) => a + b, 0);
+      const reasons = Object.entries(r.failureReasons).map(([reason, n]) => `${n} x ${reason}`);
+      return {
+        summary: `${r.gridPoints} models (${r.computed} computed, ${r.upToDate} from the store${r.failed ? `, ${r.failed} failed` : ''})`,
+        outputs: [relOut(outDir, r.storeFile)],
+        data: { storeFile: r.storeFile },
+        warnings: reasons.length ? [`failed models (left out of the fit): ${reasons.join('; ')}`] : ok === 0 ? ['no model finished'] : [],
+      };
+    } finally {
+      process.removeListener('SIGINT', onSigint);
+    }
+  },
+  load: async ({ outDir }) => ({ storeFile: join(outDir, STORE_FILE) }),
+  // The bytes of an SQLite file depend on write order; the store's content is
+  // its grid and, per point, the model's content hash and status (models are
+  // deterministic in their inputs, which the content hash covers).
+  outputHash: async ({ outDir }) => {
+    const { ModelStore } = await import('../grid/store.ts');
+    const store = ModelStore.open(join(outDir, STORE_FILE), { readonly: true });
+    try {
+      const rows = store.db.prepare('SELECT g.id, g.hash, m.status FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx').raw(true).all();
+      return hashValue({ grid: store.meta()?.gridHash, models: rows });
+    } finally {
+      store.close();
+    }
+  },
+};
+
+function needsSightlineTie(pipeline: Pipeline): boolean {
+  return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && 'tie' in a && a.tie === 'sightlines');
+}
+
+const fit: StageImpl<PipelineData, 'fit'> = {
+  inputs: ({ pipeline }) => ({
+    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction },
+    files: {},
+    after: ['observe', 'grid'],
+  }),
+  run: async (ctx) => {
+    const { pipeline, outDir } = ctx;
+    const { runFitStage } = await import('../fit/stage.ts');
+    const { loadCandidates } = await import('../grid/candidates.ts');
+    const { observations, quantities } = await ctx.upstream('observe');
+    const { storeFile } = await ctx.upstream('grid');
+    const species = new Set<string>();
+    for (const q of quantities) {
+      species.add(q.numerator);
+      if (q.denominator) species.add(q.denominator);
+    }
+    const table = loadCandidates(storeFile, [...species].sort());
+    const out = runFitStage({
+      table,
+      section: fitSection(pipeline),
+      observations,
+      quantities,
+      held: heldParameters(pipeline, observations),
+      source: { file: pipeline.file, lineOf: pipeline.yaml.lineOf },
+    });
+    const outputs: string[] = [];
+    for (const [rel, text] of Object.entries(out.files)) {
+      writeOutput(outDir, rel, text);
+      outputs.push(rel);
+    }
+    if (out.map && observations.map) {
+      const { writeFitsImages } = await import('../report/fits.ts');
+      for (const name of MAP_IMAGE_NAMES) {
+        const rel = `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`;
+        writeFitsImages(join(outDir, rel), [{ name: name.toUpperCase(), data: out.map.images[name], nx: out.map.nx, ny: out.map.ny, header: mapHeader(observations) }]);
+        outputs.push(rel);
+      }
+    }
+    const poor = out.result.fits.filter((f) => f.warnings.length > 0).length;
+    const n = out.map ? `${out.map.fittedPixels} pixels` : `${out.result.fits.length} sightlines`;
+    return {
+      summary: `${n} fitted against ${out.result.nCandidates} candidates${poor ? `, ${poor} with warnings` : ''}`,
+      outputs: outputs.sort(),
+      data: { result: out.result },
+      warnings: out.result.warnings,
+    };
+  },
+  load: async ({ outDir }) => ({ result: readJson<FitStageResult>(outDir, FIT_OUTPUT_FILES.fitJson, 'fit') }),
+};
+
+/** Header cards of a map result image: the observations' WCS, carried over. */
+function mapHeader(observations: ObservationSet): Record<string, string | number | boolean> {
+  return { ...(observations.map?.wcs ?? {}) };
+}
+
+const report: StageImpl<PipelineData, 'report'> = {
+  inputs: ({ pipeline }) => ({ config: { name: pipeline.config.name, report: pipeline.config.report }, files: {}, after: ['observe', 'grid', 'fit'] }),
+  run: async (ctx) => {
+    const { pipeline, outDir } = ctx;
+    const { writeReport } = await import('../report/index.ts');
+    const { reportSection } = await import('../config/sections/report.ts');
+    const { observations, quantities } = await ctx.upstream('observe');
+    const { storeFile } = await ctx.upstream('grid');
+    const { result } = await ctx.upstream('fit');
+    const config = pipeline.config.report ?? reportSection.parse({});
+    const profilesFile = join(outDir, FIT_OUTPUT_FILES.profilesJson);
+    const mapFile = join(outDir, FIT_OUTPUT_FILES.mapJson);
+    const files = await writeReport(
+      {
+        title: config.title ?? pipeline.config.name,
+        config,
+        configFile: pipeline.file,
+        fit: result,
+        profiles: existsSync(profilesFile) ? readJson<ProfilesJson>(outDir, FIT_OUTPUT_FILES.profilesJson, 'fit') : undefined,
+        map: existsSync(mapFile) ? readJson<MapFitJson>(outDir, FIT_OUTPUT_FILES.mapJson, 'fit') : undefined,
+        observations,
+        quantities,
+        tracks: loadTracks(storeFile, result, config.runner_up_tracks),
+        provenance: reportProvenance(ctx),
+      },
+      join(outDir, REPORT_DIR),
+    );
+    return {
+      summary: `${files.figures.length} figures, tables and ${relOut(outDir, files.html)}`,
+      outputs: files.all.map((f) => relOut(outDir, f)).sort(),
+      data: { html: files.html },
+      warnings: files.warnings,
+    };
+  },
+  load: async ({ outDir }) => ({ html: join(outDir, REPORT_DIR, 'index.html') }),
+};
+
+/**
+ * The provenance shown in the report: versions and content hashes, no
+ * timestamps (those are in OUT/provenance.json), so an unchanged run makes
+ * the same page.
+ */
+function reportProvenance(ctx: StageContext<PipelineData>): ReportProvenance {
+  const { pipeline } = ctx;
+  const hashes: Record<string, string> = {
+    pipeline: hashFile(pipeline.file) ?? 'missing',
+    network: hashFile(pipeline.resolvePath(pipeline.config.network)) ?? 'missing',
+  };
+  for (const [key, stage] of [['observations', 'observe'], ['store', 'grid'], ['fit', 'fit']] as const) {
+    const h = ctx.outputHashOf(stage);
+    if (h) hashes[key] = h;
+  }
+  return {
+    toolVersion: TOOL_VERSION,
+    nodeVersion: process.version,
+    commandLine: [...ctx.commandLine],
+    pipelineFile: pipeline.file,
+    hashes,
+  };
+}
+
+export function defaultStages(): StageSet<PipelineData> {
+  return { observe, grid, fit, report };
+}
