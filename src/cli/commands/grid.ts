@@ -8,6 +8,8 @@
  */
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
+import type { Pipeline } from '../../config/pipeline.ts';
+import type { GridPlan } from '../../grid/plan.ts';
 import type { CommandContext } from '../main.ts';
 
 /** Exit codes after a stop by signal: 128 + the signal number (shell convention). */
@@ -32,10 +34,10 @@ export function register(program: Command, ctx: CommandContext): void {
     .action(async (file: string, opts: { workers?: number; shard?: string; status?: boolean; retryFailed?: boolean }) => {
       const { loadPipeline } = await import('../../config/pipeline.ts');
       const { parseShard, shardLabel } = await import('../../grid/shard.ts');
-      const { planGrid, mainStoreFile, shardStoreFile, shardPoints } = await import('../../grid/plan.ts');
+      const { mainStoreFile, shardStoreFile, shardPoints } = await import('../../grid/plan.ts');
       const shard = opts.shard === undefined ? undefined : parseShard(opts.shard);
       const pipeline = loadPipeline(file);
-      const plan = planGrid(pipeline);
+      const plan = await loadGridPlan(pipeline);
       for (const i of plan.grid.unusedRules) ctx.stderr.write(`hoarfrost: warning: exclusion rule ${i + 1} matches no grid point.\n`);
 
       if (opts.status) {
@@ -113,4 +115,19 @@ export function register(program: Command, ctx: CommandContext): void {
         process.off('SIGTERM', onTerm);
       }
     });
+}
+
+/**
+ * The grid plan of a pipeline, with the observed sightlines' A_V read when
+ * visual_extinction is tied to them (the grid room does not read
+ * observations itself). Shared by the grid, slurm and merge commands.
+ */
+export async function loadGridPlan(pipeline: Pipeline): Promise<GridPlan> {
+  const { planGrid } = await import('../../grid/plan.ts');
+  const { needsSightlines } = await import('../../grid/expand.ts');
+  const observations = pipeline.config.observations;
+  if (!observations || !needsSightlines(pipeline.config.conditions)) return planGrid(pipeline);
+  const { loadObservations } = await import('../../obs/load.ts');
+  const set = loadObservations(observations, pipeline.dir);
+  return planGrid(pipeline, set.sightlines.flatMap((s) => (s.av === undefined ? [] : [s.av])));
 }
