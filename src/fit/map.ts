@@ -19,6 +19,8 @@ import { AGE_PARAMETER, MAP_IMAGE_NAMES, type MapFitImages, type MapImageName, t
 /** Candidates scored per block: their model values (block x terms doubles) stay in the L1/L2 cache while every pixel is visited. */
 const CANDIDATE_BLOCK = 256;
 const DENSITY_PARAMETER = 'density';
+/** Candidates of the sparse first pass that seeds each pixel's best chi^2 (a few hundred cost little against 1e5 and find a good bound). */
+const SEED_CANDIDATES = 512;
 
 export interface MapPixel {
   x: number;
@@ -147,8 +149,16 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const lSigma = lim.weightLo;
   const lKind = lim.weightHi;
 
-  for (let c0 = 0; c0 < nC; c0 += CANDIDATE_BLOCK) {
-    const c1 = Math.min(nC, c0 + CANDIDATE_BLOCK);
+  const delta = level.deltaChi2;
+  /**
+   * Scores candidates c0..c1 (step `stride`) against every pixel. A candidate
+   * whose partial chi^2 already exceeds the pixel's best so far plus the
+   * level's threshold can neither become the best nor bring a density or age
+   * value inside the region (chi^2 only grows as terms are added, and the
+   * best only falls), so its sum is cut short: the per-value minima are exact
+   * inside the region and only bounded outside it, which is all the images use.
+   */
+  const scoreRange = (c0: number, c1: number, stride: number) => {
     for (let p = 0; p < nPix; p++) {
       const k0 = dOff[p];
       const k1 = dOff[p + 1];
@@ -158,22 +168,26 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
       const aRow = p * nA;
       let best = bestChi2[p];
       let bestC = bestCandidate[p];
+      let bound = best + delta;
       const key = pixelKey[p];
-      for (let c = c0; c < c1; c++) {
+      candidates: for (let c = c0; c < c1; c += stride) {
         if (key >= 0 && candidateKey[c] !== key) continue;
         const base = c * nTerms;
         let chi2 = 0;
         for (let k = k0; k < k1; k++) {
           const d = values[base + dTerm[k]] - dObs[k];
           chi2 += d * d * (d > 0 ? dWHi[k] : dWLo[k]);
+          if (chi2 > bound) continue candidates;
         }
         for (let k = l0; k < l1; k++) {
           const m = values[base + lTerm[k]];
           chi2 += lKind[k] > 0 ? upperLimitCost(lObs[k], m, lSigma[k]) : lowerLimitCost(lObs[k], m, lSigma[k]);
+          if (chi2 > bound) continue candidates;
         }
         if (chi2 < best) {
           best = chi2;
           bestC = c;
+          bound = best + delta;
         }
         const di = dRow + dBin[c];
         if (chi2 < densityMin[di]) densityMin[di] = chi2;
@@ -183,7 +197,12 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
       bestChi2[p] = best;
       bestCandidate[p] = bestC;
     }
-  }
+  };
+  // A sparse first pass over the whole grid sets a good best for every pixel, so that the
+  // full pass cuts most sums short from its first block on.
+  const seedStride = Math.max(1, Math.floor(nC / SEED_CANDIDATES));
+  for (let c0 = 0; c0 < nC; c0 += CANDIDATE_BLOCK * seedStride) scoreRange(c0, Math.min(nC, c0 + CANDIDATE_BLOCK * seedStride), seedStride);
+  for (let c0 = 0; c0 < nC; c0 += CANDIDATE_BLOCK) scoreRange(c0, Math.min(nC, c0 + CANDIDATE_BLOCK), 1);
 
   const nTotal = nx * ny;
   const images = {} as Record<MapImageName, Float64Array>;

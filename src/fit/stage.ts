@@ -90,25 +90,31 @@ function checkOptions(section: FitSection, axes: GridAxes, table: CandidateTable
   throwAll(problems, 'the fit section names parameters the model grid lacks');
 }
 
-/** A ratio needs a measured reference: a limit on the denominator leaves the ratio undefined. */
+/**
+ * A ratio needs a measured reference. Where the reference is a limit on one
+ * sightline, the observations room turns the ratio into a limit (a detection
+ * over an upper limit bounds the ratio from below), which the fit takes as it
+ * is; but a reference with only limits on every sightline leaves no ratio
+ * measured anywhere, and that is an error of the set-up.
+ */
 function checkRatioReferences(observations: ObservationSet, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
-  const byId = new Map(observations.sightlines.map((s) => [s.id, s]));
+  const references = [...new Set(quantities.flatMap((q) => (q.denominator === undefined ? [] : [q.denominator])))];
   const problems: UserError[] = [];
-  for (const q of quantities) {
-    if (q.denominator === undefined) continue;
-    const m = byId.get(q.sightline)?.columns[q.denominator];
-    if (m !== undefined && m.kind !== 'detection') {
-      const s = byId.get(q.sightline)!;
+  for (const ref of references) {
+    const measured = observations.sightlines.filter((s) => s.columns[ref] !== undefined);
+    if (measured.length > 0 && measured.every((s) => s.columns[ref].kind !== 'detection')) {
+      const labels = [...new Set(quantities.filter((q) => q.denominator === ref).map((q) => q.label))];
       problems.push(
-        new UserError(
-          `sightline ${q.sightline}: the ratio ${q.label} is to ${q.denominator}, which has only ${m.kind === 'upper' ? 'an upper' : 'a lower'} limit here, so the ratio is undefined. ` +
-            `Fit this species as an abundance (fit.quantities: { species: ${q.numerator}, as: abundance }), or choose a reference detected on every sightline (observations.reference).`,
-          { file: s.source.file, row: s.source.row, line: s.source.line, field: q.denominator },
+        located(
+          source,
+          ['fit', 'quantities'],
+          `the ratios ${labels.join(', ')} are to ${ref}, which ${observations.file} gives only as a limit (on all ${measured.length} sightline(s) that list it), so no ratio is measured. ` +
+            `Fit these species as abundances (fit.quantities: { species: ..., as: abundance }), or choose a reference detected on the sightlines (observations.reference).`,
         ),
       );
     }
   }
-  throwAll(problems, 'ratios to a reference species that has only a limit');
+  throwAll(problems, 'ratios to reference species that have only limits');
 }
 
 function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
@@ -235,6 +241,8 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     jointProfiles.push(out.profiles);
   });
 
+  for (const f of fits) warnings.push(...f.warnings);
+  for (const j of joint) warnings.push(...j.warnings);
   const fixedParameters: Record<string, number> = {};
   for (const a of axes.axes) if (!a.varied && a.name !== AGE_PARAMETER) fixedParameters[a.name] = a.values[0];
   const result: FitStageResult = {

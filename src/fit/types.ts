@@ -256,7 +256,7 @@ export interface FitStageResult {
   nCandidates: number;
   fits: SightlineFit[];
   joint: JointFit[];
-  /** Warnings of the whole stage (the observations' too); each fit's own warnings stay in that fit. */
+  /** Every warning of the stage: the observations', the stage's, and each fit's and joint group's (also kept in that fit). */
   warnings: string[];
   /** Model cautions to show the reader (physics.md section 8). */
   cautions: string[];

@@ -251,9 +251,16 @@ describe('bad input', () => {
   });
 
   it('a ratio to a species with only a limit', () => {
-    const q = [detection('s', 'CO(s)', -0.5, 0.1, 'H2O(s)')];
-    const obs = observationSet(['s'], { s: { 'H2O(s)': 'upper' } });
-    expect(() => runFitStage({ table, section: parse(), observations: obs, quantities: q })).toThrow(/ratio CO\(s\)\/H2O\(s\).*only an upper limit.*as: abundance/s);
+    // As the observations room derives them: a detection over an upper limit is a lower limit of the ratio.
+    const q = ['s', 't'].map((id) => ({ ...limit(id, 'lower', 'CO(s)', -0.5, 'H2O(s)') }));
+    const obs = observationSet(['s', 't'], { s: { 'H2O(s)': 'upper' }, t: { 'H2O(s)': 'upper' } });
+    expect(() => runFitStage({ table, section: parse(), observations: obs, quantities: q })).toThrow(UserError);
+    expect(() => runFitStage({ table, section: parse(), observations: obs, quantities: q })).toThrow(/ratios CO\(s\)\/H2O\(s\) are to H2O\(s\).*only as a limit.*as: abundance/s);
+    // A limit on the reference toward one sightline only is a ratio limit there, not an error.
+    const mixed = observationSet(['s', 't'], { s: { 'H2O(s)': 'upper' } });
+    const q2 = [q[0], detection('t', 'CO(s)', -0.5, 0.1, 'H2O(s)')];
+    const fits = runFitStage({ table, section: parse(), observations: mixed, quantities: q2 }).result.fits;
+    expect(fits.map((f) => f.counts.lowerLimits)).toEqual([1, 0]);
   });
 
   it('a pair or shared parameter the grid lacks, and limits without any width', () => {

@@ -1,0 +1,91 @@
+import { describe, expect, it } from 'vitest';
+import { fitSection } from '../../src/config/sections/fit.ts';
+import { runFitStage } from '../../src/fit/stage.ts';
+import { FIT_OUTPUT_FILES } from '../../src/fit/types.ts';
+import type { ObservationSet, ObservedQuantity, Sightline } from '../../src/obs/types.ts';
+import { analyticAbundances, detection, gaussian, limit, logSpaced, observationSet, seededRandom, SPECIES, syntheticTable } from './synthetic.ts';
+
+const DENSITIES = logSpaced(1e3, 1e6, 7);
+const TIMES = logSpaced(1e4, 1e7, 12);
+const NX = 5;
+const NY = 4;
+
+function mapSet(ids: string[]): ObservationSet {
+  const sightlines: Sightline[] = ids.map((id, i) => ({ id, pixel: { x: i % NX, y: Math.floor(i / NX) }, columns: {}, source: { file: 'invented-map.fits' } }));
+  return { file: 'invented-map.fits', kind: 'map', sightlines, map: { nx: NX, ny: NY, wcs: {} }, warnings: [] };
+}
+
+/** Pixel quantities from a smooth invented pattern of density and age, with noise, one limit, and blank pixels. */
+function pixelQuantities(seed: number): { ids: string[]; quantities: ObservedQuantity[] } {
+  const random = seededRandom(seed);
+  const ids: string[] = [];
+  const quantities: ObservedQuantity[] = [];
+  for (let y = 0; y < NY; y++) {
+    for (let x = 0; x < NX; x++) {
+      const id = `${x},${y}`;
+      ids.push(id);
+      if (x === 0 && y === 0) continue; // a blank pixel
+      const n = DENSITIES[(x + y) % DENSITIES.length];
+      const t = TIMES[(2 * x + y) % TIMES.length];
+      const v = analyticAbundances(n, t).map(Math.log10);
+      quantities.push(detection(id, 'H2O(s)', v[0] + 0.1 * gaussian(random), 0.1));
+      quantities.push({ ...detection(id, 'CO(s)', v[1] - v[0] + 0.15 * gaussian(random), 0.15, 'H2O(s)'), sigmaHiDex: 0.25 });
+      if (x !== 3) quantities.push(detection(id, 'CH3OH(s)', v[3] - v[0] + 0.2 * gaussian(random), 0.2, 'H2O(s)'));
+      quantities.push(x % 2 === 0 ? limit(id, 'upper', 'CO', v[4] + 0.3) : detection(id, 'CO', v[4] + 0.1 * gaussian(random), 0.1));
+    }
+  }
+  return { ids, quantities };
+}
+
+describe('map fit', () => {
+  const table = syntheticTable({ densities: DENSITIES, times: TIMES, uvFields: [0.5, 1, 2] });
+  const section = fitSection.parse({ quantities: [{ species: 'CO(s)' }] });
+
+  it('streams to the same best fits and 68.3% bounds as the per-sightline fit', () => {
+    const { ids, quantities } = pixelQuantities(5);
+    const map = runFitStage({ table, section, observations: mapSet(ids), quantities });
+    const one = runFitStage({ table, section, observations: observationSet(ids), quantities });
+    const im = map.map!.images;
+    expect(map.map!.fittedPixels).toBe(NX * NY - 1);
+    expect(Number.isNaN(im.best_chi2[0])).toBe(true);
+    for (const f of one.result.fits) {
+      const [x, y] = f.sightline.split(',').map(Number);
+      const i = y * NX + x;
+      expect(im.best_chi2[i]).toBeCloseTo(f.best.chi2, 10);
+      expect(im.best_density[i]).toBe(f.best.parameters.density);
+      expect(im.best_age_yr[i]).toBe(f.best.ageYr);
+      expect(im.p_value[i]).toBeCloseTo(f.pValue, 12);
+      expect(im.dof[i]).toBe(f.dof);
+      const d = f.intervals.find((iv) => iv.parameter === 'density' && iv.level === 0.683)!;
+      const a = f.intervals.find((iv) => iv.parameter === 'age_yr' && iv.level === 0.683)!;
+      expect([im.density_lo[i], im.density_hi[i], im.age_lo_yr[i], im.age_hi_yr[i]]).toEqual([d.lo, d.hi, a.lo, a.hi]);
+      expect(im.density_width_dex[i]).toBeCloseTo(Math.log10(d.hi / d.lo), 12);
+      expect(im.at_edge[i]).toBe(d.loAtEdge || d.hiAtEdge || a.loAtEdge || a.hiAtEdge ? 1 : 0);
+    }
+    const json = JSON.parse(map.files[FIT_OUTPUT_FILES.mapJson]);
+    expect(json.images.best_chi2[0]).toBeNull();
+    expect(json.images.best_density.length).toBe(NX * NY);
+    expect(map.files[FIT_OUTPUT_FILES.bestFitsCsv].trim().split('\n').length).toBe(NX * NY);
+    expect(map.result.warnings.some((w) => w.includes('1 of 20 map pixels have no usable quantity'))).toBe(true);
+  });
+
+  it('pixels held at their own A_V see only the models of that A_V', () => {
+    const { ids, quantities } = pixelQuantities(6);
+    const held = Object.fromEntries(ids.map((id, i) => [id, { uv_field: [0.5, 1, 2][i % 3] }]));
+    const map = runFitStage({ table, section, observations: mapSet(ids), quantities, held });
+    const one = runFitStage({ table, section, observations: observationSet(ids), quantities, held });
+    for (const f of one.result.fits) {
+      const [x, y] = f.sightline.split(',').map(Number);
+      expect(map.map!.images.best_chi2[y * NX + x]).toBeCloseTo(f.best.chi2, 10);
+      expect(f.best.parameters.uv_field).toBe(held[f.sightline].uv_field);
+    }
+  });
+
+  it('a map with no valid pixel is a clear error', () => {
+    const ids = ['0,0', '1,0'];
+    // Pixels carry only a species the fit does not use.
+    expect(() => runFitStage({ table, section, observations: mapSet(ids), quantities: [] })).toThrow(/no sightline of invented-map.fits has a value/);
+    const blank = ids.map((id) => ({ ...detection(id, SPECIES[0], Number.NaN, 0.1) }));
+    expect(() => runFitStage({ table, section, observations: mapSet(ids), quantities: blank })).toThrow(/no pixel of the 5 x 4 map has a usable value/);
+  });
+});
