@@ -51,6 +51,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
     const rendered: FigureFile['rendered'] = {};
     const figFormats = fig.formats ?? [...formats];
     const svg = await renderSvg(fig.spec);
+    for (const w of svg.warnings) warnings.push(`figure ${fig.name}: ${w}`);
     if (figFormats.includes('svg')) rendered.svg = write(base('.svg'), svg.svg);
     if (figFormats.includes('png')) rendered.png = write(base('.png'), svgToPng(svg.svg, input.config.png_dpi));
     if (figFormats.includes('pdf')) rendered.pdf = write(base('.pdf'), await svgToPdf(svg, fig.title));

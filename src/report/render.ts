@@ -33,6 +33,8 @@ const PDF_METADATA_DATE = new Date(Date.UTC(2000, 0, 1));
 
 export interface RenderedSvg {
   svg: string;
+  /** What vega-lite and vega warned about while compiling and drawing. */
+  warnings: string[];
   /** Size of the drawing in Vega pixels (= PDF points). */
   width: number;
   height: number;
@@ -40,12 +42,14 @@ export interface RenderedSvg {
 
 /** Compile a Vega-Lite spec and render it to SVG with vega's headless view. */
 export async function renderSvg(spec: TopLevelSpec): Promise<RenderedSvg> {
-  const vgSpec = compile(spec).spec;
-  const view = new vega.View(vega.parse(vgSpec), { renderer: 'none', logLevel: vega.Warn });
+  const warnings: string[] = [];
+  const logger = collectingLogger(warnings);
+  const vgSpec = compile(spec, { logger }).spec;
+  const view = new vega.View(vega.parse(vgSpec), { renderer: 'none', logger });
   try {
     const svg = await view.toSVG();
     const { width, height } = svgSize(svg);
-    return { svg, width, height };
+    return { svg, warnings, width, height };
   } finally {
     view.finalize();
   }
@@ -85,7 +89,7 @@ export function svgToPdf(rendered: RenderedSvg, title: string): Promise<Buffer> 
     doc.on('end', () => resolvePdf(Buffer.concat(chunks)));
     doc.on('error', reject);
   });
-  SVGtoPDF(doc, rendered.svg, 0, 0, {
+  SVGtoPDF(doc, solidDashesRemoved(rendered.svg), 0, 0, {
     width: rendered.width,
     height: rendered.height,
     assumePt: true,
@@ -95,6 +99,42 @@ export function svgToPdf(rendered: RenderedSvg, title: string): Promise<Buffer> 
   });
   doc.end();
   return done;
+}
+
+/**
+ * A dash pattern whose gaps are all zero (`1,0`: how a legend asks for a
+ * solid line) is a solid line in SVG, but pdfkit refuses zero lengths:
+ * such patterns are dropped before the PDF is drawn.
+ */
+export function solidDashesRemoved(svg: string): string {
+  return svg.replace(/\sstroke-dasharray="([^"]*)"/g, (attr, value: string) => {
+    const lengths = value.split(/[\s,]+/).filter((x) => x !== '').map(Number);
+    const gapsZero = lengths.length > 0 && lengths.every((v, i) => i % 2 === 0 || v === 0);
+    return gapsZero ? '' : attr;
+  });
+}
+
+/** A logger for vega-lite's compiler and vega's view that keeps warnings and errors instead of printing them. */
+function collectingLogger(sink: string[]): vega.LoggerInterface {
+  let level = vega.Warn;
+  const logger: vega.LoggerInterface = {
+    level(l?: number) {
+      if (l === undefined) return level;
+      level = l;
+      return logger;
+    },
+    error: (...args: readonly unknown[]) => {
+      sink.push(args.map(String).join(' '));
+      return logger;
+    },
+    warn: (...args: readonly unknown[]) => {
+      sink.push(args.map(String).join(' '));
+      return logger;
+    },
+    info: () => logger,
+    debug: () => logger,
+  } as vega.LoggerInterface;
+  return logger;
 }
 
 function svgSize(svg: string): { width: number; height: number } {

@@ -73,6 +73,15 @@ export function decadeLabel(k: number): string {
   return `10${String(k).replace(/[-0-9]/g, (c) => SUPERSCRIPT[c])}`;
 }
 
+/** A number as text with two significant figures, in m×10ⁿ form outside 0.01 to 1000: `3.0×10⁵`. */
+export function sciText(x: number, digits = 2): string {
+  if (!Number.isFinite(x)) return String(x);
+  const e = x === 0 ? 0 : Math.floor(Math.log10(Math.abs(x)));
+  if (e >= -2 && e < 3) return String(Number(x.toPrecision(digits)));
+  const [mantissa, exponent] = x.toExponential(digits - 1).split('e');
+  return `${mantissa}×${decadeLabel(Number(exponent))}`;
+}
+
 /**
  * Axis properties for a log axis over [lo, hi]: ticks at the decades inside,
  * labelled 10ⁿ (vega's default labels write 0.000001), or nothing special when
@@ -96,6 +105,11 @@ export function logAxis(lo: number, hi: number): DecadeAxis {
 
 /** At most this many labelled decades on an axis about 200 px long. */
 const MAX_DECADE_TICKS = 6;
+
+/** A continuous position scale that keeps the given extent (`nice` would stretch a log domain to whole decades). */
+export function positionScale(kind: ScaleKind, domain: [number, number] | number[]): { type: ScaleKind; domain: number[]; nice: false; zero?: false } {
+  return kind === 'log' ? { type: kind, domain: [...domain], nice: false } : { type: kind, domain: [...domain], nice: false, zero: false };
+}
 
 /** Extent of values padded by a fraction of the range in scale space. */
 export function paddedDomain(kind: ScaleKind, values: readonly number[], padFraction: number): [number, number] {

@@ -12,7 +12,7 @@ import { contourSegments } from '../contours.ts';
 import { slug } from '../escape.ts';
 import { figureConfig, figureSize, MAP_SCHEME } from '../theme.ts';
 import { deltaChi2Threshold } from '../thresholds.ts';
-import { cellEdges, DELTA_CHI2_TITLE, fromScale, logAxis, parameterTitle, scaleKind, toScale } from './axes.ts';
+import { cellEdges, DELTA_CHI2_TITLE, fromScale, logAxis, parameterTitle, positionScale, scaleKind, toScale } from './axes.ts';
 import { bestValue, levelLabel, sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 const X_PARAMETER = 'density';
@@ -62,13 +62,13 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
   const by = bestValue(fit, pair.y);
   const xDomain = [xEdges[0], xEdges[xEdges.length - 1]];
   const yDomain = [yEdges[0], yEdges[yEdges.length - 1]];
-  const xAxis = { title: parameterTitle(pair.x), ...(xKind === 'log' ? logAxis(xDomain[0], xDomain[1]) : {}) };
-  const yAxis = { title: parameterTitle(pair.y), ...(yKind === 'log' ? logAxis(yDomain[0], yDomain[1]) : {}) };
+  const xAxis = { title: parameterTitle(pair.x), grid: false, ...(xKind === 'log' ? logAxis(xDomain[0], xDomain[1]) : {}) };
+  const yAxis = { title: parameterTitle(pair.y), grid: false, ...(yKind === 'log' ? logAxis(yDomain[0], yDomain[1]) : {}) };
   const { plotWidth } = figureSize(ctx.input.config.column_width_in, true);
   const maxDelta = Math.max(1, ...cells.map((c) => c.dchi2));
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: `χ²min = ${fit.best.chi2.toPrecision(3)}, ${fit.dof} dof` },
+    title: { text: fit.sightline, subtitle: `minimum χ² = ${Number(fit.best.chi2.toPrecision(3))} for ${fit.dof} dof` },
     width: plotWidth,
     height: Math.round(plotWidth * MAP_ASPECT),
     config: figureConfig(),
@@ -78,9 +78,9 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
         data: { values: cells },
         mark: { type: 'rect', tooltip: true },
         encoding: {
-          x: { field: 'x', type: 'quantitative', scale: { type: xKind, domain: xDomain, nice: false, zero: false }, axis: xAxis },
+          x: { field: 'x', type: 'quantitative', scale: positionScale(xKind, xDomain), axis: xAxis },
           x2: { field: 'x2' },
-          y: { field: 'y', type: 'quantitative', scale: { type: yKind, domain: yDomain, nice: false, zero: false }, axis: yAxis },
+          y: { field: 'y', type: 'quantitative', scale: positionScale(yKind, yDomain), axis: yAxis },
           y2: { field: 'y2' },
           color: {
             field: 'dchi2',
@@ -116,7 +116,7 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
       },
       {
         data: { values: bx === undefined || by === undefined ? [] : [{ x: bx, y: by, what: 'best fit' }] },
-        mark: { type: 'point', shape: 'cross', size: 70, filled: true, color: '#000000', stroke: '#ffffff', strokeWidth: 0.8 },
+        mark: { type: 'point', shape: 'cross', size: 70, filled: true, opacity: 1, color: '#000000', stroke: '#ffffff', strokeWidth: 0.8 },
         encoding: {
           x: { field: 'x', type: 'quantitative' },
           y: { field: 'y', type: 'quantitative' },

@@ -6,11 +6,12 @@
  */
 import type { TopLevelSpec } from 'vega-lite';
 import { figureConfig, figureSize } from '../theme.ts';
-import { AV_TITLE, logAxis, paddedDomain, parameterTitle, scaleKind } from './axes.ts';
+import { AV_TITLE, logAxis, paddedDomain, parameterTitle, positionScale, scaleKind } from './axes.ts';
 import { bestValue, levelLabel, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 const PANEL_PARAMETERS = ['density', 'age_yr'] as const;
-const EDGE_LABELS = { inside: 'interval inside grid', edge: 'interval at grid edge' };
+/** Short labels: vega estimates text widths generously, and a wide legend widens the figure past a column. */
+const EDGE_LABELS = { inside: 'within grid', edge: 'at grid edge' };
 const PANEL_ASPECT = 0.55;
 
 interface Row {
@@ -63,7 +64,7 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
         field: 'value',
         type: 'quantitative' as const,
         title: parameterTitle(parameter),
-        scale: { type: kind, domain, nice: false, zero: false },
+        scale: positionScale(kind, domain),
         axis: kind === 'log' ? logAxis(domain[0], domain[1]) : {},
       };
       const x = { ...xBase, title: p === PANEL_PARAMETERS.length - 1 ? AV_TITLE : null, axis: p === PANEL_PARAMETERS.length - 1 ? {} : { labels: false } };
@@ -75,11 +76,11 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
           { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' } } },
           { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x: { ...x, field: 'avLo' }, x2: { field: 'avHi' }, y } },
           {
-            mark: { type: 'point', size: 28, filled: true, stroke: '#000000', strokeWidth: 1, tooltip: true },
+            mark: { type: 'point', size: 28, filled: true, opacity: 1, stroke: '#000000', strokeWidth: 1, tooltip: true },
             encoding: {
               x,
               y,
-              fill: { field: 'interval', type: 'nominal', title: null, scale: { domain: [EDGE_LABELS.inside, EDGE_LABELS.edge], range: ['#000000', '#ffffff'] }, legend: p === 0 ? { orient: 'top', direction: 'horizontal' } : null },
+              fill: { field: 'interval', type: 'nominal', title: null, scale: { domain: [EDGE_LABELS.inside, EDGE_LABELS.edge], range: ['#000000', '#ffffff'] }, legend: { orient: 'top', direction: 'horizontal', title: 'Interval:', titleOrient: 'left' } },
               tooltip: [
                 { field: 'sightline', type: 'nominal', title: 'sightline' },
                 { field: 'av', type: 'quantitative', title: 'A_V (mag)', format: '.3~g' },

@@ -22,8 +22,11 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   sky_map: skyMapFigure,
 };
 
-/** Kinds drawn when the pipeline lists none, in this order. */
-const DEFAULT_KINDS: FigureKind[] = ['fit_vs_av', 'sky_map', 'chi2_map', 'profiles', 'tracks'];
+/** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
+const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
+  table: ['fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+  map: ['sky_map', 'fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+};
 
 export function figureContext(input: ReportInput, warnings: string[]): FigureContext {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
@@ -61,7 +64,7 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
   if (input.config.sightlines) checkSightlines(input.config.sightlines, 'report.sightlines');
   const raw: { cfg: Exclude<FigureRequestConfig, string> | { kind: string }; field: string; explicit: boolean }[] = input.config.figures
     ? input.config.figures.map((f, i) => ({ cfg: typeof f === 'string' ? { kind: f } : f, field: `report.figures[${i}]`, explicit: true }))
-    : DEFAULT_KINDS.map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
+    : DEFAULT_KINDS[input.observations.kind].map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
   const requests: FigureRequest[] = [];
   const names = new Map<string, string>();
   for (const { cfg, field, explicit } of raw) {

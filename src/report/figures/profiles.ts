@@ -9,14 +9,14 @@ import type { Profile1D, SightlineFit } from '../../fit/types.ts';
 import { slug } from '../escape.ts';
 import { figureConfig, figureSize } from '../theme.ts';
 import { deltaChi2Threshold } from '../thresholds.ts';
-import { DELTA_CHI2_TITLE, logAxis, paddedDomain, parameterTitle, scaleKind } from './axes.ts';
+import { DELTA_CHI2_TITLE, logAxis, paddedDomain, parameterTitle, positionScale, scaleKind } from './axes.ts';
 import { bestValue, levelLabel, sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 /** Panels per row. */
 const COLUMNS = 2;
 /** Spacing between panels, pixels. */
-const PANEL_SPACING = 12;
-/** Room for a panel's y axis and its labels, pixels. */
+const PANEL_SPACING = 10;
+/** Room for the first column's y axis and its labels, pixels. */
 const AXIS_ROOM = 45;
 /** The y axis shows Delta chi^2 up to this multiple of the largest threshold (the region's surroundings, not the far tail). */
 const Y_HEADROOM = 2.5;
@@ -25,7 +25,7 @@ const LEVEL_DASHES = [[4, 2], [1, 2], [6, 2, 1, 2]];
 export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profiles: Profile1D[]): TopLevelSpec {
   const { totalWidth } = figureSize(ctx.input.config.column_width_in, false);
   const columns = Math.min(COLUMNS, profiles.length);
-  const panelWidth = Math.round((totalWidth - AXIS_ROOM * columns - PANEL_SPACING * (columns - 1)) / columns);
+  const panelWidth = Math.round((totalWidth - AXIS_ROOM - PANEL_SPACING * (columns - 1)) / columns);
   const thresholds = ctx.levels.map((level) => ({ level: levelLabel(level), threshold: deltaChi2Threshold(level, 1, ctx.input.fit.levels) }));
   const yMax = Y_HEADROOM * Math.max(...thresholds.map((t) => t.threshold));
   const levelNames = thresholds.map((t) => t.level);
@@ -45,10 +45,12 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
         field: 'value',
         type: 'quantitative' as const,
         title: parameterTitle(profile.parameter),
-        scale: { type: kind, domain, nice: false, zero: false },
+        scale: positionScale(kind, domain),
         axis: kind === 'log' ? logAxis(domain[0], domain[1]) : { tickCount: 4 },
       };
-      const y = { field: 'dchi2', type: 'quantitative' as const, title: p % columns === 0 ? DELTA_CHI2_TITLE : null, scale: { domain: [0, yMax], nice: false } };
+      // The panels share the y scale: only the first of each row labels it.
+      const firstInRow = p % columns === 0;
+      const y = { field: 'dchi2', type: 'quantitative' as const, title: firstInRow ? DELTA_CHI2_TITLE : null, scale: { domain: [0, yMax], nice: false }, axis: firstInRow ? {} : { labels: false } };
       return {
         width: panelWidth,
         height: Math.round(panelWidth * 0.8),
@@ -58,7 +60,7 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
             mark: { type: 'rule', color: '#555555', strokeWidth: 0.8 },
             encoding: {
               y: { field: 'threshold', type: 'quantitative' },
-              strokeDash: { field: 'level', type: 'nominal', title: 'Level (1 parameter)', scale: { domain: levelNames, range: levelNames.map((_, i) => LEVEL_DASHES[i % LEVEL_DASHES.length]) }, legend: p === 0 ? { orient: 'bottom', direction: 'horizontal', symbolType: 'stroke' } : null },
+              strokeDash: { field: 'level', type: 'nominal', title: 'Level (1 parameter)', scale: { domain: levelNames, range: levelNames.map((_, i) => LEVEL_DASHES[i % LEVEL_DASHES.length]) }, legend: { orient: 'bottom', direction: 'horizontal', symbolType: 'stroke' } },
             },
           },
           {

@@ -46,9 +46,9 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
     data: { values: rows },
     mark: { type: 'rect', tooltip: true },
     encoding: {
-      x: { field: 'x', type: 'quantitative', title: 'Pixel x', scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } },
+      x: { field: 'x', type: 'quantitative', title: 'Pixel x', axis: { grid: false }, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } },
       x2: { field: 'x2' },
-      y: { field: 'y', type: 'quantitative', title: 'Pixel y', scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } },
+      y: { field: 'y', type: 'quantitative', title: 'Pixel y', axis: { grid: false }, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } },
       y2: { field: 'y2' },
       color: {
         field: 'value',

@@ -11,7 +11,7 @@ import type { ObservedQuantity } from '../../obs/types.ts';
 import { slug } from '../escape.ts';
 import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig, figureSize } from '../theme.ts';
 import type { ModelTrack } from '../types.ts';
-import { logAxis, paddedDomain, parameterTitle } from './axes.ts';
+import { logAxis, paddedDomain, parameterTitle, sciText } from './axes.ts';
 import { sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 /** Observations of different quantities are spread over this many dex in time around the best age. */
@@ -22,6 +22,13 @@ const Y_MARGIN_ABOVE_DEX = 1;
 const RUNNER_UP_OPACITY = 0.35;
 const KIND_SHAPES: Record<ObservedQuantity['kind'], string> = { detection: 'circle', upper: 'triangle-down', lower: 'triangle-up' };
 const KIND_NAMES: Record<ObservedQuantity['kind'], string> = { detection: 'detection', upper: 'upper limit', lower: 'lower limit' };
+
+/** Model ids are content hashes: the first characters identify one in a figure. */
+const SHORT_ID_LENGTH = 12;
+
+function shortId(id: string): string {
+  return id.length > SHORT_ID_LENGTH ? `${id.slice(0, SHORT_ID_LENGTH)}…` : id;
+}
 
 function wanted(label: string, numerator: string, species: readonly string[]): boolean {
   return species.length === 0 || species.includes(label) || species.includes(numerator);
@@ -84,7 +91,7 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
   const y = { field: 'value', type: 'quantitative' as const, title: yTitle(observed.length > 0 ? observed : tracks.map(() => ({}))), scale: { type: 'log' as const, domain: yDomain, nice: false }, axis: logAxis(yDomain[0], yDomain[1]) };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: `best fit ${fit.best.modelId} at ${bestAge.toPrecision(2)} yr` },
+    title: { text: fit.sightline, subtitle: `best fit at ${sciText(bestAge)} yr (model ${shortId(fit.best.modelId)})` },
     width: plotWidth,
     height: plotHeight,
     config: figureConfig(),
@@ -99,22 +106,22 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
         mark: { type: 'rule', color: '#777777', strokeWidth: 0.7, strokeDash: [2, 2] },
         encoding: { x: { field: 't', type: 'quantitative' } },
       },
-      {
-        data: { values: lineRows },
-        mark: { type: 'line', strokeWidth: 1.2, clip: true },
+      ...(['runner-up', 'best'] as const).map((role) => ({
+        data: { values: lineRows.filter((r) => r.role === role) },
+        mark: { type: 'line' as const, strokeWidth: role === 'best' ? 1.2 : 0.8, opacity: role === 'best' ? 1 : RUNNER_UP_OPACITY, clip: true },
         encoding: {
           x,
           y,
-          color: { field: 'quantity', type: 'nominal', title: 'Quantity', scale: colour, legend: { orient: 'bottom', columns: 2, symbolType: 'stroke' } },
-          strokeDash: { field: 'quantity', type: 'nominal', scale: dashes, legend: null },
-          detail: { field: 'model', type: 'nominal' },
-          opacity: { field: 'role', type: 'nominal', scale: { domain: ['best', 'runner-up'], range: [1, RUNNER_UP_OPACITY] }, legend: null },
+          color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend: { orient: 'bottom' as const, columns: 2, symbolType: 'stroke', symbolOpacity: 1 } },
+          // Same field and title as the colour: vega-lite merges the two into one legend of dashed, coloured lines.
+          strokeDash: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: dashes, legend: { orient: 'bottom' as const, columns: 2, symbolType: 'stroke', symbolOpacity: 1 } },
+          detail: { field: 'model', type: 'nominal' as const },
         },
-      },
+      })),
       {
         data: { values: obsRows.filter((r) => r.detected) },
         mark: { type: 'rule', strokeWidth: 1, clip: true },
-        encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal', scale: colour, legend: null } },
+        encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal', title: 'Quantity', scale: colour } },
       },
       {
         data: { values: obsRows },
@@ -122,8 +129,9 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
         encoding: {
           x,
           y,
-          color: { field: 'quantity', type: 'nominal', scale: colour, legend: null },
-          shape: { field: 'kind', type: 'nominal', title: 'Observed', scale: { domain: Object.values(KIND_NAMES), range: Object.values(KIND_SHAPES) }, legend: { orient: 'bottom' } },
+          color: { field: 'quantity', type: 'nominal', title: 'Quantity', scale: colour },
+          // Shapes are explained in the caption: a second legend would make the figure wider than a column.
+          shape: { field: 'kind', type: 'nominal', title: 'Observed', scale: { domain: Object.values(KIND_NAMES), range: Object.values(KIND_SHAPES) }, legend: null },
           tooltip: [
             { field: 'quantity', type: 'nominal', title: 'quantity' },
             { field: 'kind', type: 'nominal', title: 'observed' },
