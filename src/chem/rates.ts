@@ -172,7 +172,7 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
     let kappa = reactionProbability(r.params.activation_energy, c.dust_temperature, reducedMass(data.mass(a), data.mass(b)));
     if (grain.diffusionCompetition) {
       const nu = Math.max(data.vibrationFrequency(a, r), data.vibrationFrequency(b, r));
-      kappa = competingProbability(kappa, nu, hopA, same ? 0 : hopB);
+      kappa = competingProbability(kappa, nu, hopA, hopB);
     }
     const k = surfaceReactionCoefficient(kappa, diffusionRate(hopA, props.sitesPerGrain), diffusionRate(hopB, props.sitesPerGrain), same, grainDensity);
     return k * r.params.branching;

@@ -5,7 +5,7 @@ import { UserError } from '../../src/config/errors.ts';
 import { accretionRate } from '../../src/chem/grain-accretion.ts';
 import { thermalDesorptionRate, vibrationFrequency } from '../../src/chem/grain-desorption.ts';
 import { grainProperties } from '../../src/chem/grain-properties.ts';
-import { diffusionRate, hoppingRate } from '../../src/chem/grain-surface.ts';
+import { diffusionRate, hoppingRate, tunnellingProbability } from '../../src/chem/grain-surface.ts';
 import { computeRates } from '../../src/chem/rates.ts';
 import { makeNetwork } from '../model/fixtures.ts';
 
@@ -95,6 +95,27 @@ describe('gas-grain laws', () => {
   it('tunnels H faster with tunnelling on', () => {
     const on = computeRates(net, c, { ...DEFAULT_GRAIN_OPTIONS, tunnelling: true });
     expect(byIndex(on, 7)!.k / byIndex(surface, 7)!.k).toBeGreaterThan(10);
+  });
+  it('lets reaction compete with diffusion away when asked (Chang, Cuppen & Herbst 2007)', () => {
+    const barrier = makeNetwork([{ reactants: ['H(s)', 'CO(s)'], products: ['HCO(s)'], law: 'surface', params: { activation_energy: 2500 } }], data);
+    const plain = computeRates(barrier, c, DEFAULT_GRAIN_OPTIONS).rates[0].k;
+    const competing = computeRates(barrier, c, { ...DEFAULT_GRAIN_OPTIONS, diffusionCompetition: true }).rates[0].k;
+    const nuH = vibrationFrequency(c.site_density, 450, 1.008);
+    const nuCO = vibrationFrequency(c.site_density, 1150, 28.01);
+    const hopH = hoppingRate(nuH, 225, 10);
+    const hopCO = hoppingRate(nuCO, 575, 10);
+    const kappa = tunnellingProbability(2500, (1.008 * 28.01) / (1.008 + 28.01));
+    const nu = Math.max(nuH, nuCO);
+    expect(plain / ((kappa * (diffusionRate(hopH, props.sitesPerGrain) + diffusionRate(hopCO, props.sitesPerGrain))) / nGr)).toBeCloseTo(1, 10);
+    expect(competing / plain / ((nu * kappa) / (nu * kappa + hopH + hopCO) / kappa)).toBeCloseTo(1, 10);
+    expect(competing).toBeGreaterThan(plain);
+    // Identical reactants: both of the pair may hop away.
+    const pair = makeNetwork([{ reactants: ['O(s)', 'O(s)'], products: ['O2(s)'], law: 'surface', params: { activation_energy: 500 } }], data);
+    const withPair = computeRates(pair, c, { ...DEFAULT_GRAIN_OPTIONS, diffusionCompetition: true }).rates[0].k;
+    const nuO = vibrationFrequency(c.site_density, 800, 15.999);
+    const hopO = hoppingRate(nuO, 400, 10);
+    const kO = Math.max(Math.exp(-50), tunnellingProbability(500, 15.999 / 2));
+    expect(withPair / ((((nuO * kO) / (nuO * kO + 2 * hopO)) * diffusionRate(hopO, props.sitesPerGrain)) / nGr)).toBeCloseTo(1, 10);
   });
   it('needs a binding energy for every desorbing or diffusing species', () => {
     const bad = makeNetwork([{ reactants: ['N(s)'], products: ['N'], law: 'thermal-desorption' }]);

@@ -137,7 +137,7 @@ async function resolveConditions(pipeline: Pipeline, sets: string[]): Promise<Ph
     const m = /^([^=]+)=(.*)$/.exec(assignment);
     const where = { field: `--set ${assignment}` };
     if (!m) {
-      problems.push(new UserError(`expected key=value, e.g. --set density=2e4.`, where));
+      problems.push(new UserError(`expected key=value, e.g. --set density=2e4 (give the pipeline file before --set, whose values run to the next option).`, where));
       continue;
     }
     const name = m[1].trim();
