@@ -27,15 +27,15 @@ const BASES: Record<string, { dim: Dimension; factor: number }> = {
 export const CANONICAL_UNIT: Record<Dimension, string> = { column: 'cm-2', extinction: 'mag', tau: 'cm-1', none: '(dimensionless)' };
 
 /** A leading scale factor: `1e17`, `1.0E+17`, `10+17` (CDS), `10^17`, `10**17`. */
-const SCALE = /^(?:(\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)|10([+-]\d+)|10(?:\^|\*\*)\(?([+-]?\d+)\)?)\s*\*?\s*(?=[^\d.]|$)/;
+const SCALE = /^(?:10([+-]\d+)|10(?:\^|\*\*)\(?([+-]?\d+)\)?|(\d+(?:\.\d*)?(?:[eE][+-]?\d+)?))\s*\*?\s*(?=[^\d.]|$)/;
 
 /** Parse a unit; undefined when it is not one of ours. */
 export function parseUnit(unit: string): { dim: Dimension; factor: number } | undefined {
   let s = unit.trim();
   let scale = 1;
   const m = SCALE.exec(s);
-  if (m && !(m[1] === '1' && s.startsWith('1/'))) {
-    scale = m[1] !== undefined ? Number(m[1]) : 10 ** Number(m[2] ?? m[3]);
+  if (m && !(m[3] === '1' && s.startsWith('1/'))) {
+    scale = m[3] !== undefined ? Number(m[3]) : 10 ** Number(m[1] ?? m[2]);
     s = s.slice(m[0].length);
   }
   const key = s
