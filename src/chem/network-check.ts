@@ -7,6 +7,7 @@
  * slip (a species only made or only destroyed, a gas neutral that never
  * freezes out, an ice with no way back to the gas).
  */
+import { UserError, UserErrors } from '../config/errors.ts';
 import { RATE_LAW_NAMES, type RateLawName } from './laws.ts';
 import type { Network, Reaction, SourceLocation } from './network-types.ts';
 import { iceName, parseSpecies, type Species } from './species.ts';
@@ -96,6 +97,17 @@ export function checkNetwork(network: Network): NetworkReport {
     warnings: problems.filter((p) => p.severity === 'warning').length,
     problems,
   };
+}
+
+/**
+ * For a caller about to run a network: throws the check's errors (located,
+ * all of them) and returns the report when there are none.
+ */
+export function assertNetworkClean(network: Network): NetworkReport {
+  const report = checkNetwork(network);
+  if (report.errors === 0) return report;
+  const problems = report.problems.filter((p) => p.severity === 'error').map((p) => new UserError(p.message, { file: p.source?.file, line: p.source?.line, row: p.source?.row }));
+  throw new UserErrors(`the network ${network.name} has ${problems.length} error${problems.length > 1 ? 's' : ''} (hoarfrost network check ${network.file} lists them with the warnings):`, problems, { file: network.file });
 }
 
 type Add = (severity: Severity, kind: ProblemKind, message: string, reactions: Reaction[], species?: string) => void;

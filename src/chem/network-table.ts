@@ -21,6 +21,10 @@
  *     cosmic-ray-uv: {alpha: c}
  *   unused_cells: error          (a non-empty, non-zero cell the row's law does not
  *                                 use is an error; `ignore` accepts it knowingly)
+ *   not_species: [PHOTON, CR]    (cells naming the process rather than a species; the
+ *                                 law says it, so they are left out of the reaction)
+ *   rename: {their-name: CO(s)}  (the table's names for species, where they differ from ours)
+ *   ice_prefix: "i_"             (a name starting with it is the ice form of the rest)
  *   species: [{name: CO, binding_energy: 1150}]   (as in a YAML network)
  *
  * A temperature range is kept for the gas-phase laws only; on grain-process
@@ -38,6 +42,7 @@ import { isRateLawName, RATE_LAW_NAMES, RATE_LAWS, type RateLawName } from './la
 import { assembleNetwork, GAS_TEMPERATURE_LAWS, type RawReaction, type RawSpecies } from './network-assemble.ts';
 import { collect, readBytes, sha256, speciesEntrySchema } from './network-read.ts';
 import type { Network } from './network-types.ts';
+import { iceName } from './species.ts';
 
 export const TABLE_MAPPING_FORMAT = 'hoarfrost-network-table 1';
 
@@ -68,6 +73,9 @@ const mappingSchema = z.strictObject({
   law_codes: z.record(z.string(), z.string()).optional(),
   law_parameters: z.record(z.string(), z.record(z.string(), column)).optional(),
   unused_cells: z.enum(['error', 'ignore']).optional(),
+  not_species: z.array(z.string().min(1)).optional(),
+  rename: z.record(z.string(), z.string()).optional(),
+  ice_prefix: z.string().min(1).optional(),
   species: z.array(z.unknown()).optional(),
 });
 
@@ -158,6 +166,13 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
     return assembleNetwork({ name: m.name, file: tableFile, species: [], reactions: [], contentHash: '', problems });
   }
 
+  const notSpecies = new Set(m.not_species ?? []);
+  const speciesName = (text: string): string => {
+    const renamed = m.rename?.[text];
+    if (renamed !== undefined) return renamed;
+    if (m.ice_prefix && text.startsWith(m.ice_prefix) && text.length > m.ice_prefix.length) return iceName(text.slice(m.ice_prefix.length));
+    return text;
+  };
   const reactions: RawReaction[] = [];
   for (const { cells, line, row } of rows) {
     const locate = (field?: string): ErrorLocation => ({ file: tableFile, line, row, field });
@@ -171,9 +186,9 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
     const names = (cols: (number | undefined)[], field: string): string[] => {
       const out: string[] = [];
       for (const c of cols) {
-        if (c === undefined || cell(c) === '') continue;
+        if (c === undefined || cell(c) === '' || notSpecies.has(cell(c))) continue;
         fieldColumns.set(`${field}[${out.length}]`, colName(c));
-        out.push(cell(c));
+        out.push(speciesName(cell(c)));
       }
       fieldColumns.set(field, colName(cols.find((c) => c !== undefined) ?? 0));
       return out;

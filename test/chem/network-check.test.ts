@@ -3,7 +3,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { loadNetwork } from '../../src/chem/network.ts';
-import { checkNetwork, formatReport, type NetworkReport } from '../../src/chem/network-check.ts';
+import { assertNetworkClean, checkNetwork, formatReport, type NetworkReport } from '../../src/chem/network-check.ts';
+import { UserErrors } from '../../src/config/errors.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-check-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -54,6 +55,14 @@ describe('checkNetwork', () => {
     expect(p.source?.line).toBe(20);
     expect(p.reactions).toEqual([12]);
     expect(formatReport(r)).toMatch(/FAILED: 1 error\./);
+  });
+
+  it('assertNetworkClean throws the errors for a caller about to run the network', () => {
+    const file = join(dir, 'assert.yaml');
+    writeFileSync(file, `format: hoarfrost-network 1\nname: t\nspecies:\n${SPECIES}\nreactions:\n${[...CLOSED, '{reactants: [H3+, CO], products: [HCO+, H], law: arrhenius, alpha: 1e-9}'].map((r) => `  - ${r}`).join('\n')}\n`);
+    expect(() => assertNetworkClean(loadNetwork(file))).toThrow(UserErrors);
+    expect(() => assertNetworkClean(loadNetwork(file))).toThrow(`${file}:20: elements not conserved`);
+    expect(assertNetworkClean(loadNetwork('config/networks/dark-cloud.yaml')).errors).toBe(0);
   });
 
   it('catches a charge error', () => {

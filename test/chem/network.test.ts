@@ -294,6 +294,15 @@ CO,,C,O,,5,0,0,6.5e-17,,,
     expect(e.problems.every((p) => p.location.file?.endsWith('badmap.mapping.yaml'))).toBe(true);
   });
 
+  it('process tokens, renamed species and an ice prefix are translated as the mapping says', () => {
+    write('names.mapping.yaml', MAPPING + 'not_species: [CR, PHOTON]\nrename: {carbonmonoxide: CO}\nice_prefix: "i_"\n');
+    const text = TABLE.replace('H2,,H2+,e-,,1', 'H2,CR,H2+,e-,,1').replace('CO,,CO(s),,,3', 'carbonmonoxide,,i_CO,,,3').replace('CO,,C,O,,5', 'CO,PHOTON,C,O,,5');
+    const net = loadNetwork(write('names.csv', text));
+    expect(net.reactions[0].reactants).toEqual(['H2']);
+    expect(net.reactions[3]).toMatchObject({ reactants: ['CO'], products: ['CO(s)'], law: 'accretion' });
+    expect(net.reactions[5].reactants).toEqual(['CO']);
+  });
+
   it('a table with a header and no rows', () => {
     write('norows.mapping.yaml', MAPPING);
     expect(loadError(write('norows.csv', 'r1,r2,p1,p2,p3,kind,a,b,c,tlow,thigh,ref\n')).message).toMatch(/no data rows/);
