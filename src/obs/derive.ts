@@ -99,6 +99,15 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
     const key = `${w.as}:${w.species}`;
     if (done.has(key)) continue;
     done.add(key);
+    const inFile = set.species ?? [...new Set(set.sightlines.flatMap((s) => Object.keys(s.columns)))];
+    if (!inFile.includes(w.species)) {
+      problems.push(new UserError(`the ${w.as === 'ratio' ? 'ratio' : 'abundance'} of '${w.species}' is asked for, but the observations have no column for it (they have ${inFile.join(', ') || 'none'}). Check the spelling or the column mapping.`, { file: set.file, field: w.species }));
+      continue;
+    }
+    if (w.as === 'ratio' && w.species !== ref && !inFile.includes(ref)) {
+      problems.push(new UserError(`ratios to the reference '${ref}' are asked for, but the observations have no column for it (they have ${inFile.join(', ')}). Set 'reference' in the observations section to a species they have.`, { file: set.file, field: 'reference' }));
+      continue;
+    }
     if (!set.sightlines.some((s) => s.columns[w.species])) {
       warnings.push(`${set.file}: '${w.species}' is not observed toward any sightline; no ${w.as === 'ratio' ? 'ratio' : 'abundance'} derived.`);
       continue;

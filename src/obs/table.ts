@@ -487,5 +487,5 @@ export function collect(file: string, problems: UserError[]): UserError {
   if (problems.length === 1) return problems[0];
   const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
   if (problems.length > MAX_LISTED_PROBLEMS) listed.push(new UserError(`... and ${problems.length - MAX_LISTED_PROBLEMS} more problems`));
-  return new UserErrors(`${problems.length} problems in ${file}:`, listed, { file });
+  return new UserErrors(`${problems.length} problems:`, listed, { file });
 }

@@ -37,7 +37,7 @@ describe('bad observation input', () => {
 
   it('a negative column and a zero column, each named by line and column', () => {
     const e = error(() => load('negative.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,-1e17,1e16\nb,5,0,1e16\nc,5,1e17,1e16\n'));
-    expect(e.message).toMatch(/2 problems in .*negative\.csv/);
+    expect(e.message).toMatch(/^\S*negative\.csv: 2 problems:/);
     expect(e.message).toMatch(/negative\.csv:2, field 'N\(CO\(s\)\)': a column density must be positive, found '-1e17'/);
     expect(e.message).toMatch(/negative\.csv:3, field 'N\(CO\(s\)\)': a column density must be positive, found '0'/);
   });
@@ -65,6 +65,13 @@ describe('bad observation input', () => {
     const e = error(() => deriveQuantities(set, s, [{ species: 'CO(s)', as: 'abundance' }]));
     expect(e.message).toMatch(/noav\.csv:3, field 'A_V': the abundance of 'CO\(s\)' is asked for, but this sightline has no A_V/);
     expect(deriveQuantities(set, s, [{ species: 'CO(s)', as: 'ratio' }]).quantities).toHaveLength(2);
+  });
+
+  it('a quantity asked for a species the file does not have, or ratios to an absent reference', () => {
+    const set = load('few.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,1e17,1e16\n');
+    const s = section({ file: 'few.csv' });
+    expect(error(() => deriveQuantities(set, s, [{ species: 'CH4(s)', as: 'abundance' }])).message).toMatch(/few\.csv, field 'CH4\(s\)': the abundance of 'CH4\(s\)' is asked for, but the observations have no column for it \(they have CO\(s\)\)/);
+    expect(error(() => deriveQuantities(set, s, [{ species: 'CO(s)', as: 'ratio' }])).message).toMatch(/few\.csv, field 'reference': ratios to the reference 'H2O\(s\)' are asked for, but the observations have no column for it/);
   });
 
   it('images of different shapes', () => {
