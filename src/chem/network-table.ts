@@ -36,7 +36,7 @@ import { dsvFormat } from 'd3-dsv';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import { existsSync } from 'node:fs';
 import { z } from 'zod';
-import { UserError, type ErrorLocation } from '../config/errors.ts';
+import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
 import { parseYamlText, validate, type LoadedYaml, type PathKey } from '../config/yaml.ts';
 import { isRateLawName, RATE_LAW_NAMES, RATE_LAWS, type RateLawName } from './laws.ts';
 import { assembleNetwork, GAS_TEMPERATURE_LAWS, type RawReaction, type RawSpecies } from './network-assemble.ts';
@@ -163,7 +163,7 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
   for (const [law, params] of Object.entries(m.law_parameters ?? {})) lawParams.set(law, resolveParams(params, ['law_parameters', law], resolveColumn));
   const species = readSpecies(m, loaded, problems);
   if (problems.length > 0) {
-    return assembleNetwork({ name: m.name, file: tableFile, species: [], reactions: [], contentHash: '', problems });
+    throw new UserErrors(`${problems.length} problem${problems.length > 1 ? 's' : ''} in the column mapping:`, problems, { file: mappingFile });
   }
 
   const notSpecies = new Set(m.not_species ?? []);
