@@ -99,6 +99,18 @@ describe('hoarfrost model', () => {
   });
 });
 
+describe('hoarfrost model: conditions of a grid pipeline', () => {
+  it('takes --set for a grid axis and resolves ties to other conditions', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-model-tie-'));
+    pipeline(dir, 'grid.yaml', { conditions: '  density: { from: 1.0e3, to: 1.0e5, count: 3 }\n  gas_temperature: 12\n  dust_temperature: { tie: gas_temperature, factor: 0.75 }' });
+    const r = hoarfrost(['model', 'grid.yaml', '--out', 'o', '--set', 'density=3e4'], dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const json = JSON.parse(readFileSync(join(dir, 'o', 'abundances.json'), 'utf8'));
+    expect(json.conditions).toMatchObject({ density: 3e4, gas_temperature: 12, dust_temperature: 9 });
+  });
+});
+
 describe('hoarfrost model: bad input', () => {
   const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-model-bad-'));
   pipeline(dir, 'good.yaml');

@@ -112,27 +112,19 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   ctx.setExitCode(result.status === 'ok' ? 0 : 1);
 }
 
-/** Conditions: defaults, then the pipeline's fixed values, then --set; every value checked. */
+/**
+ * Conditions: defaults, then the pipeline's fixed values and ties to other
+ * conditions, then --set (which may also stand in for a grid axis of the
+ * pipeline); every value checked.
+ */
 async function resolveConditions(pipeline: Pipeline, sets: string[]): Promise<PhysicalConditions> {
   const { CONDITION_NAMES, checkConditionValue, defaultConditions, isConditionName } = await import('../../config/conditions.ts');
   const { UserError, UserErrors } = await import('../../config/errors.ts');
   const conditions = defaultConditions();
   const problems: InstanceType<typeof UserError>[] = [];
   const known = `Known conditions: ${CONDITION_NAMES.join(', ')}.`;
-  for (const [name, value] of Object.entries(pipeline.config.conditions)) {
-    const where = { file: pipeline.file, line: pipeline.yaml.lineOf(['conditions', name]), field: `conditions.${name}` };
-    if (!isConditionName(name)) {
-      problems.push(new UserError(`unknown physical condition '${name}'. ${known}`, where));
-      continue;
-    }
-    if (typeof value !== 'number') {
-      problems.push(new UserError(`'hoarfrost model' runs one model, so each condition must be a single number; found ${Array.isArray(value) ? 'a list' : 'a range or tie'}. Give one value (or override it with --set ${name}=VALUE), or run the grid with 'hoarfrost grid'.`, where));
-      continue;
-    }
-    const bad = checkConditionValue(name, value);
-    if (bad) problems.push(new UserError(`${bad}.`, where));
-    else conditions[name] = value;
-  }
+
+  const overrides = new Map<string, number>();
   for (const assignment of sets) {
     const m = /^([^=]+)=(.*)$/.exec(assignment);
     const where = { field: `--set ${assignment}` };
@@ -149,7 +141,49 @@ async function resolveConditions(pipeline: Pipeline, sets: string[]): Promise<Ph
     const value = text === '' ? Number.NaN : Number(text);
     const bad = Number.isNaN(value) ? `${name} must be a number, found '${text}'` : checkConditionValue(name, value);
     if (bad) problems.push(new UserError(`${bad}.`, where));
-    else conditions[name] = value;
+    else overrides.set(name, value);
+  }
+
+  const ties: { name: keyof PhysicalConditions; target: keyof PhysicalConditions; factor: number; where: { file: string; line?: number; field: string } }[] = [];
+  for (const [name, value] of Object.entries(pipeline.config.conditions)) {
+    const where = { file: pipeline.file, line: pipeline.yaml.lineOf(['conditions', name]), field: `conditions.${name}` };
+    if (!isConditionName(name)) {
+      problems.push(new UserError(`unknown physical condition '${name}'. ${known}`, where));
+      continue;
+    }
+    if (overrides.has(name)) continue;
+    if (typeof value === 'number') {
+      const bad = checkConditionValue(name, value);
+      if (bad) problems.push(new UserError(`${bad}.`, where));
+      else conditions[name] = value;
+      continue;
+    }
+    if (!Array.isArray(value) && 'tie' in value && isConditionName(value.tie)) {
+      ties.push({ name, target: value.tie, factor: value.factor ?? 1, where });
+      continue;
+    }
+    const what = Array.isArray(value) ? 'a list' : 'tie' in value ? `a tie to ${value.tie}` : 'a range';
+    problems.push(
+      new UserError(
+        `'hoarfrost model' runs one model, so each condition must be a single number (or a tie to another condition); found ${what}. Give one value here or with --set ${name}=VALUE, or run the grid with 'hoarfrost grid'.`,
+        where,
+      ),
+    );
+  }
+  for (const [name, value] of overrides) conditions[name as keyof PhysicalConditions] = value;
+  // Ties may chain (a tied to b tied to c): resolve them in passes, as many as there are ties.
+  const pending = new Set(ties.map((t) => t.name));
+  for (let pass = 0; pass < ties.length && pending.size > 0; pass++) {
+    for (const tie of ties) {
+      if (!pending.has(tie.name) || pending.has(tie.target)) continue;
+      conditions[tie.name] = tie.factor * conditions[tie.target];
+      pending.delete(tie.name);
+      const bad = checkConditionValue(tie.name, conditions[tie.name]);
+      if (bad) problems.push(new UserError(`${bad} (tied to ${tie.target}).`, tie.where));
+    }
+  }
+  for (const tie of ties) {
+    if (pending.has(tie.name)) problems.push(new UserError(`the ties of ${[...pending].join(', ')} go round in a circle; give one of them a value.`, tie.where));
   }
   if (problems.length === 1) throw problems[0];
   if (problems.length > 1) throw new UserErrors(`${problems.length} problems with the physical conditions:`, problems);
