@@ -86,6 +86,13 @@ function fitSection(pipeline: Pipeline) {
 function observationFiles(pipeline: Pipeline): Record<string, string> {
   const s = observationsSection(pipeline);
   const data = pipeline.resolvePath(s.file);
+  if (!existsSync(data)) {
+    throw new UserError(`the observations file ${s.file} does not exist (looked for ${data}). Paths are relative to the pipeline file's folder; fix the path, or create the file (\`hoarfrost init DIR\` makes an example).`, {
+      file: pipeline.file,
+      line: pipeline.yaml.lineOf(['observations', 'file']),
+      field: 'observations.file',
+    });
+  }
   const files: Record<string, string> = { observations: data, network: pipeline.resolvePath(pipeline.config.network) };
   files.columns = s.columns_file ? pipeline.resolvePath(s.columns_file) : sidecarPath(data);
   files.band_strengths = s.band_strengths ? pipeline.resolvePath(s.band_strengths) : DEFAULT_BAND_TABLE;

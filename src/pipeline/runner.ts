@@ -98,19 +98,20 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
   for (const [index, name] of STAGE_NAMES.entries()) {
     const impl = impls[name];
     const inputs = impl.inputs(ctx);
-    const upstreamHashes: Record<string, string> = {};
-    for (const u of inputs.after) {
-      const h = outputHashes.get(u) ?? state[u]?.outputHash;
-      if (h === undefined) {
-        if (options.only) throw new UserError(`--only ${name} needs the results of the ${u} stage, and there are none in ${outDir}. Run the whole pipeline first.`);
-        throw new Error(`stage ${name} reads ${u}, which has not run before it`);
-      }
-      upstreamHashes[u] = h;
-    }
-    const inputHash = hashValue({ stage: name, tool: TOOL_VERSION, config: inputs.config, files: hashFiles(inputs.files), upstream: upstreamHashes });
     const record = state[name];
     const selected = options.only === undefined || options.only === name;
     const forced = options.only === name || index >= fromIndex;
+    const upstreamHashes: Record<string, string> = {};
+    for (const u of inputs.after) {
+      const h = outputHashes.get(u) ?? state[u]?.outputHash;
+      if (h !== undefined) upstreamHashes[u] = h;
+      else if (selected) {
+        if (options.only) throw new UserError(`--only ${name} needs the results of the ${u} stage, and there are none in ${outDir}. Run the whole pipeline first.`);
+        throw new Error(`stage ${name} reads ${u}, which has not run before it`);
+      }
+    }
+    const complete = Object.keys(upstreamHashes).length === inputs.after.length;
+    const inputHash = complete ? hashValue({ stage: name, tool: TOOL_VERSION, config: inputs.config, files: hashFiles(inputs.files), upstream: upstreamHashes }) : undefined;
 
     if (!selected) {
       if (record) outputHashes.set(name, record.outputHash);
@@ -146,7 +147,7 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
       throw new Error(`stage ${name} reported outputs it did not write: ${missing.join(', ')}`);
     }
     const seconds = (performance.now() - t0) / 1000;
-    state[name] = { inputHash, outputHash, outputs: outcome.outputs, summary: outcome.summary, finishedAt: new Date().toISOString(), seconds };
+    state[name] = { inputHash: inputHash!, outputHash, outputs: outcome.outputs, summary: outcome.summary, finishedAt: new Date().toISOString(), seconds };
     writeState(outDir, state);
     outputHashes.set(name, outputHash);
     const report: StageReport = { name, status: 'ran', seconds, inputHash, outputHash, summary: outcome.summary, warnings: outcome.warnings ?? [], outputs: outcome.outputs };
