@@ -43,7 +43,7 @@ export interface ModelStats {
 export interface ModelResult {
   species: string[];
   timesYr: Float64Array;
-  /** Row-major [time][species] fractional abundances. */
+  /** Row-major [time][species] fractional abundances; rows after a solver failure are NaN. */
   abundances: Float64Array;
   status: 'ok' | 'failed';
   /** Reason and time of a failure, as a sentence. */
