@@ -1,0 +1,154 @@
+/**
+ * Benchmark of the stiff integrator: `npm run bench:solver`.
+ *
+ * Each problem is integrated once to warm up, then BENCH_REPEATS times; the
+ * median wall and CPU times are printed with the work counts of one run and
+ * the memory. Targets (issue 3, one core): Robertson to 4e10 s under 5 ms,
+ * a 300-species system to 1e7 yr under 50 ms.
+ *
+ * To add a problem, call `benchProblem(name, makeProblem)` or append to
+ * `PROBLEMS`; `makeProblem` builds everything outside the timed region.
+ */
+import { pathToFileURL } from 'node:url';
+import { integrate, type IntegrateOptions, type IntegrateResult, type OdeProblem } from '../src/solve/index.ts';
+import { massActionNetwork, robertson } from '../test/solve/problems.ts';
+import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../src/config/conditions.ts';
+import { loadNetwork } from '../src/chem/network.ts';
+import { compile } from '../src/chem/system.ts';
+import { initialState, loadInitialComposition } from '../src/model/run.ts';
+
+/** Julian year in seconds (IAU). */
+const YEAR = 3.15576e7;
+const BENCH_REPEATS = 5;
+
+export interface BenchCase {
+  problem: OdeProblem;
+  y0: Float64Array;
+  outputTimes: ArrayLike<number>;
+  options: IntegrateOptions;
+  /** Optional line of extra facts printed under the figures. */
+  note?: string;
+}
+
+export interface BenchRow {
+  name: string;
+  n: number;
+  jacobianEntries: number;
+  status: string;
+  wallMs: number;
+  cpuMs: number;
+  steps: number;
+  jacobianEvals: number;
+  factorizations: number;
+  rhsEvals: number;
+  heapAfterMiB: number;
+  peakRssMiB: number;
+}
+
+const median = (values: number[]): number => {
+  const sorted = [...values].sort((a, b) => a - b);
+  return sorted[Math.floor(sorted.length / 2)];
+};
+
+/** Times one problem and prints its line; returns the figures. */
+export function benchProblem(name: string, makeProblem: () => BenchCase, repeats = BENCH_REPEATS): BenchRow {
+  const bench = makeProblem();
+  const run = (): IntegrateResult => integrate(bench.problem, bench.y0, bench.outputTimes, bench.options);
+  let result = run();
+  const wall: number[] = [];
+  const cpu: number[] = [];
+  for (let r = 0; r < repeats; r++) {
+    const cpuStart = process.cpuUsage();
+    const start = performance.now();
+    result = run();
+    wall.push(performance.now() - start);
+    const used = process.cpuUsage(cpuStart);
+    cpu.push((used.user + used.system) / 1000);
+  }
+  const memory = process.memoryUsage();
+  const row: BenchRow = {
+    name,
+    n: bench.problem.n,
+    jacobianEntries: bench.problem.pattern.rowPtr[bench.problem.n],
+    status: result.status,
+    wallMs: median(wall),
+    cpuMs: median(cpu),
+    steps: result.stats.steps,
+    jacobianEvals: result.stats.jacobianEvals,
+    factorizations: result.stats.factorizations,
+    rhsEvals: result.stats.rhsEvals,
+    heapAfterMiB: memory.heapUsed / 2 ** 20,
+    peakRssMiB: process.resourceUsage().maxRSS / 1024,
+  };
+  console.log(
+    `${name.padEnd(34)} n=${String(row.n).padStart(4)} nnz(J)=${String(row.jacobianEntries).padStart(6)}  ` +
+      `wall ${row.wallMs.toFixed(2).padStart(8)} ms  cpu ${row.cpuMs.toFixed(2).padStart(8)} ms  ` +
+      `steps ${row.steps}  jac ${row.jacobianEvals}  lu ${row.factorizations}  rhs ${row.rhsEvals}  ` +
+      `heap ${row.heapAfterMiB.toFixed(1)} MiB  peak rss ${row.peakRssMiB.toFixed(0)} MiB  ${row.status}`,
+  );
+  if (bench.note) console.log(`  ${bench.note}`);
+  return row;
+}
+
+const logSpaced = (from: number, to: number, count: number): number[] =>
+  Array.from({ length: count }, (_, i) => from * (to / from) ** (i / (count - 1)));
+
+export const PROBLEMS: [string, () => BenchCase][] = [
+  [
+    'Robertson to 4e10 s',
+    () => {
+      const { problem, y0 } = robertson();
+      return { problem, y0, outputTimes: logSpaced(1e-5, 4e10, 40), options: { rtol: 1e-6, atol: 1e-12 } };
+    },
+  ],
+  [
+    'random mass-action, 300 species, 1e7 yr',
+    () => {
+      const { problem, y0, reactions } = massActionNetwork({ species: 300, seed: 2026 });
+      return {
+        problem,
+        y0,
+        outputTimes: logSpaced(1 * YEAR, 1e7 * YEAR, 57),
+        options: { rtol: 1e-6, atol: 1e-25, nonNegative: true },
+        note: `${reactions} reactions, seed 2026, n_H = 1e4 cm^-3`,
+      };
+    },
+  ],
+  [
+    'default network, dark cloud, 1e7 yr',
+    () => {
+      const network = loadNetwork(new URL('../config/networks/dark-cloud.yaml', import.meta.url).pathname);
+      const conditions = {
+        ...defaultConditions(),
+        density: 2e4,
+        gas_temperature: 10,
+        dust_temperature: 10,
+        visual_extinction: 10,
+      };
+      const problem = compile(network, conditions, DEFAULT_GRAIN_OPTIONS, {});
+      const y0 = initialState({ network, initial: loadInitialComposition('low-metal', '.', network) });
+      return {
+        problem,
+        y0,
+        outputTimes: logSpaced(1e3 * YEAR, 1e7 * YEAR, 13),
+        options: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
+        note: 'config/networks/dark-cloud.yaml, n_H = 2e4 cm^-3, 10 K, A_V = 10, low-metal start',
+      };
+    },
+  ],
+];
+
+export function main(): BenchRow[] {
+  console.log(`stiff integrator benchmark: median of ${BENCH_REPEATS} after one warm-up, Node ${process.version}`);
+  const rows: BenchRow[] = [];
+  for (const [name, make] of PROBLEMS) {
+    try {
+      rows.push(benchProblem(name, make));
+    } catch (e) {
+      console.log(`${name}: skipped, it could not be built: ${(e as Error).message}`);
+    }
+  }
+  return rows;
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) main();
