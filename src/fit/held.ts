@@ -11,7 +11,7 @@ import type { CandidateTable } from './types.ts';
 /** Relative tolerance when matching a held value to a grid value. */
 const HELD_VALUE_RELATIVE = 1e-6;
 
-export function holdParameters(obs: ObservationVector, held: Readonly<Record<string, number>>, table: CandidateTable, axes: GridAxes, where: { file?: string } = {}): void {
+export function holdParameters(obs: ObservationVector, held: Readonly<Record<string, number>>, table: CandidateTable, axes: GridAxes, where: { file?: string } = {}, withMask = true): void {
   const names = Object.keys(held);
   if (names.length === 0) return;
   const mask = new Uint8Array(table.nModels).fill(1);
@@ -41,5 +41,5 @@ export function holdParameters(obs: ObservationVector, held: Readonly<Record<str
   if (!mask.includes(1)) {
     throw new UserError(`sightline ${obs.sightline}: no model of the store has ${names.map((n) => `${n} = ${obs.held[n]}`).join(' and ')} together. Rerun \`hoarfrost grid\` on this pipeline.`, { file: where.file });
   }
-  obs.modelMask = mask;
+  if (withMask) obs.modelMask = mask;
 }

@@ -171,7 +171,11 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   const vectors: ObservationVector[] = [];
   const warnings: string[] = [...observations.warnings];
   const unfitted: string[] = [];
-  for (const s of observations.sightlines) {
+  const isMap = observations.kind === 'map';
+  if (isMap && section.joint.length > 0) {
+    throw located(source, ['fit', 'joint'], 'joint groups combine sightlines of a table; this observation set is a map. Remove fit.joint, or fit a table of the positions to group.');
+  }
+  for (const s of isMap ? [] : observations.sightlines) {
     const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, options);
     if (usedCount(v) === 0) {
       unfitted.push(s.id);
@@ -180,7 +184,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     holdParameters(v, input.held?.[s.id] ?? {}, table, axes, { file: source?.file });
     vectors.push(v);
   }
-  if (unfitted.length > 0 && observations.kind !== 'map') {
+  if (unfitted.length > 0) {
     warnings.push(`${unfitted.length} sightline(s) have none of the fitted quantities and are not fitted: ${unfitted.slice(0, MAX_LISTED_PROBLEMS).join(', ')}${unfitted.length > MAX_LISTED_PROBLEMS ? ', ...' : ''}.`);
   }
 
@@ -188,7 +192,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   const profiles: SightlineProfiles[] = [];
   let map: MapFitImages | undefined;
   const tableLevel = options.levels.find((l) => l.level === TABLE_LEVEL)!;
-  if (observations.kind === 'map') {
+  if (isMap) {
     if (!observations.map) throw new RangeError('a map observation set has no geometry');
     const { nx, ny } = observations.map;
     const pixels: MapPixel[] = [];
@@ -196,7 +200,8 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
       if (!s.pixel) throw new RangeError(`map sightline ${s.id} has no pixel coordinates`);
       pixels.push({ x: s.pixel.x, y: s.pixel.y, obs: buildObservationVector(s.id, byId.get(s.id) ?? [], terms, options) });
     }
-    for (const px of pixels) holdParameters(px.obs, input.held?.[px.obs.sightline] ?? {}, table, axes, { file: source?.file });
+    // The map loop compares held values by key; it needs no per-pixel model mask.
+    for (const px of pixels) holdParameters(px.obs, input.held?.[px.obs.sightline] ?? {}, table, axes, { file: source?.file }, false);
     map = fitMap(ctx, nx, ny, pixels, tableLevel, { file: observations.file });
     warnings.push(...map.warnings);
   } else {

@@ -4,10 +4,8 @@ import { z } from 'zod';
 export const fitQuantity = z
   .object({
     species: z.string().min(1),
-    /** `abundance`: X = N/N_H; `ratio`: N/N(reference). */
+    /** `abundance`: X = N/N_H; `ratio`: N/N(reference), the reference being observations.reference. */
     as: z.enum(['abundance', 'ratio']).default('ratio'),
-    /** Reference species of a ratio; defaults to observations.reference. */
-    reference: z.string().min(1).optional(),
   })
   .strict();
 export type FitQuantity = z.infer<typeof fitQuantity>;

@@ -1,0 +1,132 @@
+/**
+ * `hoarfrost fit PIPELINE` end to end: a pipeline over an invented cloud, its
+ * observations table, and a model store written with invented analytic
+ * abundances (see test/fit/synthetic.ts), so no model has to run.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { defaultConditions } from '../../src/config/conditions.ts';
+import { ModelStore, type StoredModel } from '../../src/grid/store.ts';
+import { analyticAbundances, logSpaced } from '../fit/synthetic.ts';
+
+const ROOT = resolve(import.meta.dirname, '../..');
+const BIN = join(ROOT, 'bin', 'hoarfrost.mjs');
+const NETWORK = join(ROOT, 'config', 'networks', 'dark-cloud.yaml');
+const STORE_SPECIES = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'CO'];
+const DENSITIES = logSpaced(1e3, 1e6, 7);
+const TIMES = logSpaced(1e4, 1e7, 13);
+/** N_H/A_V of the pipeline (Bohlin, Savage & Drake 1978). */
+const NH_PER_AV = 1.87e21;
+/** Invented sightlines: name, A_V, true density index, true time index. */
+const STARS: [string, number, number, number][] = [
+  ['QM-1', 8, 2, 5],
+  ['QM-2', 12, 4, 8],
+  ['QM-3', 20, 5, 11],
+];
+
+function writeStore(file: string): void {
+  mkdirSync(resolve(file, '..'), { recursive: true });
+  const store = ModelStore.open(file);
+  const models: StoredModel[] = DENSITIES.map((density, i) => {
+    const abundances = new Float64Array(TIMES.length * STORE_SPECIES.length);
+    TIMES.forEach((t, k) => abundances.set(analyticAbundances(density, t), k * STORE_SPECIES.length));
+    return { id: `p${i}`, hash: `h${i}`, conditions: { ...defaultConditions(), density }, status: 'ok', abundances };
+  });
+  store.setGrid({ gridHash: 'g', species: STORE_SPECIES, timesYr: Float64Array.from(TIMES), points: models.map((m, index) => ({ id: m.id, hash: m.hash, index })), shard: '', toolVersion: '0.1.0', networkHash: 'n' });
+  store.write(models, 'run-1');
+  store.close();
+}
+
+/** A project folder: observations (exact columns from the true models, stated errors), column mapping, pipeline, store. */
+function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?: boolean } = {}): string {
+  const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-fit-cli-'));
+  const species = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)'];
+  const col = (s: string) => s.replace('(s)', '_ice');
+  const header = ['star', 'av', 'av_err', ...species.flatMap((s) => [`N_${col(s)}`, `N_${col(s)}_err`])];
+  const rows = STARS.map(([name, av, i, k]) => {
+    const x = analyticAbundances(DENSITIES[i], TIMES[k]);
+    const cells = species.flatMap((s, j) => {
+      if (s === 'NH3(s)') return ['1.0e16', '3.0e15'];
+      const n = x[j] * NH_PER_AV * av;
+      if (s === 'H2O(s)' && options.waterLimit) return [`<${n.toExponential(4)}`, ''];
+      return [n.toExponential(6), (0.25 * n).toExponential(3)];
+    });
+    return [name, String(av), '0.01', ...cells].join(',');
+  });
+  writeFileSync(join(dir, 'quillmarsh.csv'), `# INVENTED test data: the Quillmarsh Cloud is not a real object.\n${header.join(',')}\n${rows.join('\n')}\n`);
+  const mapping = ['id: star', 'av: av', 'av_error: av_err', 'species:', ...species.map((s) => `  "${s}": { value: N_${col(s)}, error: N_${col(s)}_err, unit: cm-2, limit_confidence: 0.997 }`)];
+  writeFileSync(join(dir, 'quillmarsh.columns.yaml'), mapping.join('\n') + '\n');
+  const fitSpecies = options.fitSpecies ?? ['CO(s)', 'CO2(s)', 'CH3OH(s)'];
+  const pipeline = [
+    'name: Quillmarsh Cloud (invented test)',
+    'output: out',
+    `network: ${NETWORK}`,
+    'observations:',
+    '  file: quillmarsh.csv',
+    `  nh_per_av: ${NH_PER_AV}`,
+    '  reference: H2O(s)',
+    'conditions:',
+    `  density: [${DENSITIES.join(', ')}]`,
+    `times: { start_yr: ${TIMES[0]}, end_yr: ${TIMES[TIMES.length - 1]}, count: ${TIMES.length} }`,
+    'fit:',
+    '  quantities:',
+    '    - { species: H2O(s), as: abundance }',
+    ...fitSpecies.map((s) => `    - { species: ${s}, as: ratio }`),
+    '  model_sigma_dex: 0.1',
+  ];
+  writeFileSync(join(dir, 'pipeline.yaml'), pipeline.join('\n') + '\n');
+  if (options.store !== false) writeStore(join(dir, 'out', 'store', 'models.sqlite'));
+  return dir;
+}
+
+function hoarfrost(dir: string, args: string[] = []) {
+  const r = spawnSync(process.execPath, [BIN, 'fit', join(dir, 'pipeline.yaml'), ...args], { cwd: dir, encoding: 'utf8', env: { ...process.env, HOARFROST_DEBUG: '' } });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+describe('hoarfrost fit', () => {
+  it('prints the best fits with intervals and writes the tables', () => {
+    const dir = project();
+    const r = hoarfrost(dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/Best fits, with 68\.3% intervals/);
+    expect(r.stdout).toMatch(/Cautions:/);
+    const csv = readFileSync(join(dir, 'out', 'fit', 'best_fits.csv'), 'utf8').trim().split('\n');
+    const header = csv[0].split(',');
+    for (const c of ['sightline', 'density', 'age_yr', 'chi2', 'dof', 'p_value', 'density_lo', 'density_hi', 'age_lo_yr', 'age_hi_yr', 'gas_temperature']) expect(header).toContain(c);
+    // Exact columns from the true models: each best fit is the truth.
+    STARS.forEach(([name, , i, k], row) => {
+      const cells = csv[row + 1].split(',');
+      expect(cells[header.indexOf('sightline')]).toBe(name);
+      expect(Number(cells[header.indexOf('density')])).toBeCloseTo(DENSITIES[i], 6);
+      expect(Number(cells[header.indexOf('age_yr')])).toBeCloseTo(TIMES[k], 6);
+      expect(r.stdout).toMatch(new RegExp(`^${name}\\s`, 'm'));
+    });
+    for (const f of ['fit.json', 'profiles.json', 'intervals.csv', 'residuals.csv']) expect(existsSync(join(dir, 'out', 'fit', f))).toBe(true);
+  });
+
+  it('a species the store lacks: a clear error, exit 2, no stack', () => {
+    const r = hoarfrost(project({ fitSpecies: ['CO(s)', 'NH3(s)'] }));
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/NH3\(s\)/);
+    expect(r.stderr).toMatch(/model store/);
+    expect(r.stderr).not.toMatch(/internal error|\n\s+at /);
+  });
+
+  it('ratios to a reference with only limits: a clear error', () => {
+    const r = hoarfrost(project({ waterLimit: true }));
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/H2O\(s\).*only as a limit/);
+    expect(r.stderr).not.toMatch(/internal error/);
+  });
+
+  it('no store yet: says which command makes it', () => {
+    const r = hoarfrost(project({ store: false }));
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/no model store at .*hoarfrost grid/);
+  });
+});
