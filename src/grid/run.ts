@@ -6,6 +6,8 @@
  * keeps every model already written.
  */
 import { randomUUID } from 'node:crypto';
+import { mkdirSync } from 'node:fs';
+import { dirname } from 'node:path';
 import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
 import type { ModelResult } from '../model/types.ts';
@@ -14,6 +16,7 @@ import { defaultWorkerCount, ModelPool, type PoolOutcome } from './pool.ts';
 import { shardLabel, type Shard } from './shard.ts';
 import { ModelStore, type StoredModel } from './store.ts';
 import { failureReason } from './status.ts';
+import { acquireRunLock } from './run-lock.ts';
 
 /** Results are committed when this many are waiting... */
 const BATCH_MAX_MODELS = 64;
@@ -82,7 +85,14 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
   const plan = options.plan ?? planGrid(pipeline, options.sightlineAv);
   const share = shardPoints(plan.points, options.shard);
   const storeFile = options.shard ? shardStoreFile(plan, options.shard) : mainStoreFile(plan);
-  const store = ModelStore.open(storeFile, { exclusive: options.shard !== undefined });
+  const release = options.shard ? () => undefined : (mkdirSync(dirname(storeFile), { recursive: true }), acquireRunLock(storeFile));
+  let store: ModelStore;
+  try {
+    store = ModelStore.open(storeFile, { exclusive: options.shard !== undefined });
+  } catch (e) {
+    release();
+    throw e;
+  }
   try {
     const previous = store.meta();
     if (options.shard && previous && previous.shard !== shardLabel(options.shard)) {
@@ -99,15 +109,16 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     });
     const existing = store.existing();
     const todo: PlannedPoint[] = [];
-    let stale = 0;
+    const staleIds = new Set<string>();
     for (const p of share) {
       const e = existing.get(p.id);
       if (!e) todo.push(p);
       else if (e.hash !== p.hash) {
-        stale++;
+        staleIds.add(p.id);
         todo.push(p);
       } else if (e.status === 'failed' && options.retryFailed) todo.push(p);
     }
+    const stale = staleIds.size;
     const upToDate = share.length - todo.length;
     const workers = Math.min(options.workers ?? defaultWorkerCount(), Math.max(1, todo.length));
     options.onStart?.({ storeFile, share: share.length, upToDate, todo: todo.length, stale, workers });
@@ -118,6 +129,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     const failureReasons: Record<string, number> = {};
     let ok = 0;
     let failed = 0;
+    let staleRecomputed = 0;
     let batch: StoredModel[] = [];
     let batchStarted = 0;
     const flush = () => {
@@ -143,6 +155,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
         (o) => {
           const point = byId.get(o.task.id)!;
           const stored = toStored(point, o, plan.species, expectedLength);
+          if (staleIds.has(point.id)) staleRecomputed++;
           if (stored.status === 'ok') ok++;
           else {
             failed++;
@@ -181,7 +194,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       gridPoints: plan.points.length,
       share: share.length,
       upToDate,
-      staleRecomputed: Math.min(stale, computed),
+      staleRecomputed,
       computed,
       ok,
       failed,
@@ -192,6 +205,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     };
   } finally {
     store.close();
+    release();
   }
 }
 

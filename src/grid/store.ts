@@ -252,7 +252,7 @@ export class ModelStore {
     })();
   }
 
-  /** Copy rows of another store (already attached or not) into this one, in one transaction. */
+  /** Copy the rows of the given ids from another store file into this one, in one transaction. */
   copyFrom(otherFile: string, ids: readonly string[]): void {
     if (ids.length === 0) return;
     this.db.prepare('ATTACH DATABASE ? AS other').run(otherFile);

@@ -1,4 +1,7 @@
 /** The pool and runGrid with a fake model in real worker threads: failures, crashes, stopping, resuming. */
+import { spawnSync } from 'node:child_process';
+import { existsSync, writeFileSync } from 'node:fs';
+import { hostname } from 'node:os';
 import { afterEach, describe, expect, it } from 'vitest';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { mainStoreFile, planGrid } from '../../src/grid/plan.ts';
@@ -89,5 +92,22 @@ describe('grid runs on a worker pool (fake model)', () => {
     expect(retried).toMatchObject({ computed: 2, ok: 2 });
     const plan = planGrid(pipeline);
     expect(gridStatus(mainStoreFile(plan), plan.points)).toMatchObject({ done: 18, failed: 0, missing: 0, stale: 0 });
+  });
+
+  it('refuses a second run on the same store, and takes over a lock left by a dead process', async () => {
+    process.env.FAKE_MODEL_DELAY_MS = '10';
+    const pipeline = loadPipeline(writePipeline(scratch(), GRID));
+    const lockFile = `${mainStoreFile(planGrid(pipeline))}.running`;
+    const first = runGrid(pipeline, { workers: 1, workerUrl: FAKE_WORKER });
+    await expect(runGrid(pipeline, { workers: 1, workerUrl: FAKE_WORKER })).rejects.toThrow(
+      new RegExp(`another hoarfrost grid \\(process ${process.pid}, started .*\\) is computing into this store`),
+    );
+    expect((await first).computed).toBe(18);
+    expect(existsSync(lockFile)).toBe(false);
+
+    const dead = spawnSync(process.execPath, ['-e', '']).pid!;
+    writeFileSync(lockFile, JSON.stringify({ pid: dead, host: hostname(), started: '2026-01-01T00:00:00Z' }));
+    expect((await runGrid(pipeline, { workers: 1, workerUrl: FAKE_WORKER, retryFailed: true })).upToDate).toBe(18);
+    expect(existsSync(lockFile)).toBe(false);
   });
 });
