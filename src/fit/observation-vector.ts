@@ -37,8 +37,11 @@ export interface ObservationVector {
 }
 
 /**
- * Aligns quantities to terms. Throws a RangeError on a zero total width (the
- * caller validates the options first, so a user never meets it).
+ * Aligns quantities to terms. A limit's confidence (0.997 for 3 sigma) stays
+ * with the quantity but does not set its width: a confidence in linear column
+ * density does not fix a width in dex, so every limit's width is the model
+ * floor with limit_sigma_dex in quadrature. Throws a RangeError on a zero
+ * total width (the stage validates the widths first, so a user never meets it).
  */
 export function buildObservationVector(sightline: string, quantities: readonly ObservedQuantity[], terms: readonly QuantityTerm[], widths: ScoringWidths): ObservationVector {
   const index = new Map(terms.map((t, i) => [t.key, i]));

@@ -32,6 +32,8 @@ import {
 
 /** The level of the bounds in best_fits.csv and of the map interval images: 68.3%, one Gaussian sigma (common practice); always computed. */
 export const TABLE_LEVEL = 0.683;
+/** A p-value above this, with more than one dof, means the errors are larger than the misfit (common practice: the other tail of the chi-square test). */
+const SUSPICIOUSLY_GOOD_P = 0.99;
 /** Problems listed one by one before the rest are counted. */
 const MAX_LISTED_PROBLEMS = 20;
 
@@ -118,6 +120,11 @@ function checkRatioReferences(observations: ObservationSet, quantities: readonly
 }
 
 function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
+  const broken = quantities.filter((q) => q.kind === 'detection' && Number.isFinite(q.log10) && !(q.sigmaLoDex >= 0 && q.sigmaHiDex >= 0 && Number.isFinite(q.sigmaLoDex) && Number.isFinite(q.sigmaHiDex)));
+  throwAll(
+    broken.map((q) => new UserError(`sightline ${q.sightline}: ${q.label} has error ${q.sigmaLoDex}/${q.sigmaHiDex} dex; an error must be a finite number, 0 or more. Check its error column.`, { field: q.label })),
+    'detections without a usable error',
+  );
   if (section.model_sigma_dex > 0) return;
   if (section.limit_sigma_dex === 0 && quantities.some((q) => q.kind !== 'detection')) {
     throw located(source, ['fit', 'model_sigma_dex'], 'limits need a width: with model_sigma_dex 0, set fit.limit_sigma_dex above 0 (dex) so the censored likelihood is defined.');
@@ -246,6 +253,12 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     jointProfiles.push(out.profiles);
   });
 
+  const tooGood = fits.filter((f) => f.pValue > SUSPICIOUSLY_GOOD_P && f.dof > 1).length;
+  if (tooGood > 0) {
+    warnings.push(
+      `${tooGood} of ${fits.length} fits have chi2 far below their dof (p > ${SUSPICIOUSLY_GOOD_P}): the errors, or the ${section.model_sigma_dex} dex model floor, exceed the scatter of the data about the models; the regions are then wider (more cautious) than the data alone would give.`,
+    );
+  }
   for (const f of fits) warnings.push(...f.warnings);
   for (const j of joint) warnings.push(...j.warnings);
   const fixedParameters: Record<string, number> = {};

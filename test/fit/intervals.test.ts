@@ -1,0 +1,73 @@
+import { describe, expect, it } from 'vitest';
+import { fitSection } from '../../src/config/sections/fit.ts';
+import { intervalFromProfile } from '../../src/fit/intervals.ts';
+import { runFitStage } from '../../src/fit/stage.ts';
+import type { Profile1D, RegionLevel } from '../../src/fit/types.ts';
+import { analyticAbundances, detection, logSpaced, observationSet, SPECIES, syntheticTable } from './synthetic.ts';
+
+const LEVEL: RegionLevel = { level: 0.683, parametersOfInterest: 2, deltaChi2: 2.3 };
+
+function profile(delta: (number | null)[]): Profile1D {
+  return { parameter: 'density', values: delta.map((_, i) => 10 ** (3 + i)), chi2Min: delta.map((d) => (d === null ? null : d + 5)), deltaChi2: delta };
+}
+
+describe('intervals from a profile (Delta chi^2 projection)', () => {
+  it('bounds are the outermost grid values inside the threshold', () => {
+    const iv = intervalFromProfile(profile([9, 2, 0, 1.5, 7]), 1e5, LEVEL);
+    expect([iv.lo, iv.hi, iv.loAtEdge, iv.hiAtEdge, iv.disjoint, iv.unresolved, iv.fixed]).toEqual([1e4, 1e6, false, false, false, false, false]);
+  });
+
+  it('flags the grid edges, a region in several parts, a single value, and skips missing cells', () => {
+    const edge = intervalFromProfile(profile([0, 1, 5]), 1e3, LEVEL);
+    expect([edge.loAtEdge, edge.hiAtEdge]).toEqual([true, false]);
+    const split = intervalFromProfile(profile([3, 0, 4, 2, 9]), 1e4, LEVEL);
+    expect([split.lo, split.hi, split.disjoint]).toEqual([1e4, 1e6, true]);
+    const single = intervalFromProfile(profile([8, 0, 8]), 1e4, LEVEL);
+    expect([single.lo, single.hi, single.unresolved]).toEqual([1e4, 1e4, true]);
+    // A missing cell (null) is never inside, even though null <= 2.3 in JavaScript.
+    const holes = intervalFromProfile(profile([null, 0, null]), 1e4, LEVEL);
+    expect([holes.lo, holes.hi, holes.loAtEdge, holes.hiAtEdge]).toEqual([1e4, 1e4, false, false]);
+    const fixed = intervalFromProfile(profile([0]), 1e3, LEVEL);
+    expect([fixed.fixed, fixed.loAtEdge, fixed.hiAtEdge, fixed.unresolved]).toEqual([true, false, false, false]);
+  });
+});
+
+describe('fit section defaults', () => {
+  it('model floor 0.3 dex, levels 68.3% and 95.4%, two parameters of interest, density x age pair', () => {
+    const s = fitSection.parse({ quantities: [{ species: 'CO(s)' }] });
+    expect(s.model_sigma_dex).toBe(0.3);
+    expect(s.levels).toEqual([0.683, 0.954]);
+    expect(s.parameters_of_interest).toBe(2);
+    expect(s.pairs).toEqual([['density', 'age_yr']]);
+    expect(s.agreement_factor).toBe(10);
+    expect(s.limits_in_dof).toBe(false);
+    expect(s.quantities[0].as).toBe('ratio');
+    expect(fitSection.safeParse({ quantities: [] }).success).toBe(false);
+    expect(fitSection.safeParse({ quantities: [{ species: 'CO(s)' }], levels: [1.2] }).success).toBe(false);
+  });
+
+  it('one parameter of interest gives the 1-parameter thresholds (Avni 1976: 1.00 at 68.3%)', () => {
+    const table = syntheticTable({ densities: logSpaced(1e3, 1e6, 5), times: logSpaced(1e4, 1e7, 6) });
+    const x = analyticAbundances(1e4, 1e5).map(Math.log10);
+    const q = SPECIES.map((s, j) => detection('s', s, x[j], 0.2));
+    const { result } = runFitStage({ table, section: fitSection.parse({ quantities: [{ species: 'CO(s)' }], parameters_of_interest: 1 }), observations: observationSet(['s']), quantities: q });
+    expect(result.levels.map((l) => Number(l.deltaChi2.toFixed(2)))).toEqual([1.0, 3.98]);
+  });
+});
+
+describe('joint fit sharing density', () => {
+  it('recovers the shared density with the ages free', () => {
+    const densities = logSpaced(1e3, 1e6, 7);
+    const times = logSpaced(1e4, 1e7, 10);
+    const table = syntheticTable({ densities, times });
+    const q = [2, 5, 8].flatMap((k, m) => {
+      const x = analyticAbundances(densities[3], times[k]).map(Math.log10);
+      return SPECIES.map((s, j) => detection(`m${m}`, s, x[j], 0.1));
+    });
+    const section = fitSection.parse({ quantities: [{ species: 'CO(s)' }], joint: [{ name: 'core', sightlines: ['m0', 'm1', 'm2'], share: 'density' }] });
+    const j = runFitStage({ table, section, observations: observationSet(['m0', 'm1', 'm2']), quantities: q }).result.joint[0];
+    expect(j.sharedBest).toEqual({ density: densities[3] });
+    expect(j.memberFits.map((m) => m.best.ageYr)).toEqual([times[2], times[5], times[8]]);
+    expect(j.intervals.every((iv) => iv.parameter === 'density')).toBe(true);
+  });
+});
