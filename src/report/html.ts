@@ -112,9 +112,10 @@ h1 { font-size: 1.6em; margin-bottom: 0.2em; } h2 { border-bottom: 1px solid #cc
 table { border-collapse: collapse; font-size: 0.85em; } th, td { border-bottom: 1px solid #ddd; padding: 0.3em 0.6em; text-align: left; vertical-align: top; }
 table.summary td { white-space: nowrap; } table.summary td.warnings { white-space: normal; font-size: 0.9em; color: #7a4a00; min-width: 18em; }
 td.warnings ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } .edge, .poor { color: #b00020; font-weight: bold; }
-.figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 30em; }
+.figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 34em; }
 figcaption { font-size: 0.85em; color: #333; } .files { font-size: 0.8em; }
 .vis svg text { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; }
+/* Figures are sized in points for a printed column; on screen they are drawn half as large again. */
 .vis > svg { height: auto; max-width: 100%; }
 .cautions li { margin-bottom: 0.5em; } code { font-size: 0.9em; word-break: break-all; }
 #embed-error { color: #b00020; font-weight: bold; }
@@ -123,9 +124,14 @@ figcaption { font-size: 0.85em; color: #333; } .files { font-size: 0.8em; }
 
 const MAIN_SCRIPT = `
 (function () {
+  var SCREEN_SCALE = 1.5;
   var figures = JSON.parse(document.getElementById('hoarfrost-figures').textContent);
   var jobs = figures.map(function (f) {
-    return vegaEmbed('#' + f.id, f.spec, { actions: false, renderer: 'svg' });
+    return vegaEmbed('#' + f.id, f.spec, { actions: false, renderer: 'svg' }).then(function (result) {
+      var svg = result.view.container().querySelector('svg');
+      if (svg) svg.style.width = (SCREEN_SCALE * Number(svg.getAttribute('width'))) + 'px';
+      return result;
+    });
   });
   Promise.all(jobs).then(function () {
     document.body.setAttribute('data-ready', 'true');
@@ -150,6 +156,7 @@ export function reportHtml(h: HtmlInput): string {
   const specs = h.figures.map((f, i) => ({ id: `vis-${i}`, spec: f.figure.spec as TopLevelSpec }));
   const specScript = jsonForScript(specs);
   const scripts = [...browserBundles(), MAIN_SCRIPT];
+  // Our own text (no user data): single quotes are safe inside the double-quoted attribute.
   const csp = [
     "default-src 'none'",
     `script-src ${scripts.map(scriptHash).join(' ')} 'unsafe-eval'`,
@@ -168,7 +175,7 @@ export function reportHtml(h: HtmlInput): string {
       ({ f, i }) =>
         `<figure id="figure-${i}"><div class="vis" id="vis-${i}"></div><figcaption><strong>${escapeHtml(f.figure.title)}.</strong> ${escapeHtml(f.figure.caption)}</figcaption><p class="files">${linksHtml(f.links)}</p></figure>`,
     );
-    return `<h3>${escapeHtml(heading[0].toUpperCase() + heading.slice(1))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
+    return `<h3>${escapeHtml(heading.replace(/^[a-z]/, (c) => c.toUpperCase()))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
   });
   const allWarnings = [...input.observations.warnings, ...input.fit.warnings, ...h.warnings];
   const fixed = Object.entries(input.fit.fixedParameters);
@@ -176,7 +183,7 @@ export function reportHtml(h: HtmlInput): string {
 <html lang="en">
 <head>
 <meta charset="utf-8">
-<meta http-equiv="Content-Security-Policy" content="${escapeHtml(csp)}">
+<meta http-equiv="Content-Security-Policy" content="${csp}">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <title>${escapeHtml(title)}</title>
 <style>${STYLE}</style>

@@ -143,7 +143,7 @@ function transpose(p: Profile2D): Profile2D {
 
 export const chi2MapFigure: FigureBuilder = {
   kind: 'chi2_map',
-  description: 'chi^2 map over density and age with the joint confidence regions',
+  description: 'χ² maps over density and age with the joint confidence regions',
   perSightline: true,
   unavailable(ctx) {
     if (!ctx.input.profiles) return 'it needs the fit profiles (profiles.json), which were not given';
@@ -166,7 +166,7 @@ export const chi2MapFigure: FigureBuilder = {
         name: sightlineFigureName(request, indexOf(ctx, id), request.sightlines.length, slug(id)),
         kind: 'chi2_map',
         title: `χ² map of ${id}`,
-        caption: `Δχ² over ${xName} and ${yName} for ${id} (minimised over every other parameter), with the joint ${ctx.levels.map(levelLabel).join(' and ')} regions and the best fit (cross).`,
+        caption: `Δχ² over ${plainName(xName)} and ${plainName(yName)} for ${id} (minimised over every other parameter), with the joint ${ctx.levels.map(levelLabel).join(' and ')} regions and the best fit (cross).`,
         sightline: id,
         spec: buildChi2MapSpec(ctx, fit, pair, transposed),
       });
@@ -174,6 +174,11 @@ export const chi2MapFigure: FigureBuilder = {
     return out;
   },
 };
+
+/** A parameter as running text: `age_yr` -> `age`, `gas_temperature` -> `gas temperature`. */
+function plainName(parameter: string): string {
+  return parameter === 'age_yr' ? 'age' : parameter.replace(/_/g, ' ');
+}
 
 function indexOf(ctx: FigureContext, id: string): number {
   return ctx.input.fit.fits.findIndex((f) => f.sightline === id);

@@ -98,7 +98,7 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
 
 export const fitVsAvFigure: FigureBuilder = {
   kind: 'fit_vs_av',
-  description: 'best-fit density and age against A_V across sightlines',
+  description: 'best-fit density and age against visual extinction across sightlines',
   perSightline: false,
   unavailable(ctx) {
     const withAv = new Set(ctx.input.observations.sightlines.filter((s) => s.av !== undefined).map((s) => s.id));

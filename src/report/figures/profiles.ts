@@ -81,7 +81,7 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
 
 export const profilesFigure: FigureBuilder = {
   kind: 'profiles',
-  description: 'chi^2 profile of each fitted parameter with the threshold lines',
+  description: 'χ² profiles of each fitted parameter with the confidence thresholds',
   perSightline: true,
   unavailable(ctx) {
     return ctx.input.profiles ? undefined : 'it needs the fit profiles (profiles.json), which were not given';

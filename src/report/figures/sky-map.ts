@@ -68,7 +68,7 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
 
 export const skyMapFigure: FigureBuilder = {
   kind: 'sky_map',
-  description: 'sky images of best age, density and chi^2 in pixel coordinates',
+  description: 'sky images of the best age, density and χ² in pixel coordinates',
   perSightline: false,
   unavailable(ctx) {
     return ctx.input.map ? undefined : `the observations (${ctx.input.observations.file}) are a table of sightlines, not a map`;

@@ -145,7 +145,7 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
 
 export const tracksFigure: FigureBuilder = {
   kind: 'tracks',
-  description: 'abundance or ratio tracks of the best-fit model against time with the observed values',
+  description: 'abundance or ratio tracks of the best-fit models against time with the observed values',
   perSightline: true,
   unavailable(ctx) {
     return ctx.input.tracks.length === 0 ? 'no model tracks were given for the best fits' : undefined;

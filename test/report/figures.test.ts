@@ -1,0 +1,126 @@
+/**
+ * Figure builders: every spec validates against the Vega-Lite JSON schema
+ * shipped in the vega-lite package (build/vega-lite-schema.json, the
+ * published schema of the version we pin), renders to SVG in Node with its
+ * axis titles present, and vega-lite and vega raise no warning over it.
+ */
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import { Ajv, type ValidateFunction } from 'ajv';
+import { XMLValidator } from 'fast-xml-parser';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { buildFigures } from '../../src/report/figures/index.ts';
+import type { BuiltFigure } from '../../src/report/figures/builder.ts';
+import { renderSvg, svgToPdf, svgToPng, solidDashesRemoved } from '../../src/report/render.ts';
+import { HOSTILE_NAMES, syntheticInput } from './fixture.ts';
+
+const require = createRequire(import.meta.url);
+const schemaFile = join(dirname(require.resolve('vega-lite')), 'vega-lite-schema.json');
+
+/** Axis titles each kind must show (units as design.md fixes them). */
+const EXPECTED_TITLES: Record<string, string[]> = {
+  chi2_map: ['Density (cm⁻³)', 'Chemical age (yr)', 'Δχ²'],
+  tracks: ['Chemical age (yr)', 'Ratio to H2O(s)'],
+  fit_vs_av: ['Visual extinction (mag)', 'Density (cm⁻³)', 'Chemical age (yr)'],
+  profiles: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Δχ²'],
+  sky_map: ['Pixel x', 'Pixel y'],
+};
+
+/** Text content of an SVG's <text> elements, entities decoded. */
+function svgTexts(svg: string): string[] {
+  return [...svg.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) =>
+    m[1].replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;|&apos;/g, "'").replace(/&amp;/g, '&'),
+  );
+}
+
+describe('figure builders', () => {
+  let figures: BuiltFigure[];
+  let validate: ValidateFunction;
+  beforeAll(() => {
+    const warnings: string[] = [];
+    figures = [...buildFigures(syntheticInput(), warnings), ...buildFigures(syntheticInput({ map: { nx: 6, ny: 5 }, config: { sightlines: ['Frostmere-01'] } }), warnings)];
+    expect(warnings).toEqual([]);
+    // The schema's uri formats are not what is checked here; without ajv-formats they are skipped quietly.
+    const ajv = new Ajv({ strict: false, allErrors: false, validateFormats: false });
+    validate = ajv.compile(JSON.parse(readFileSync(schemaFile, 'utf8')));
+  });
+
+  it('draws every kind for a table and a map', () => {
+    const kinds = new Set(figures.map((f) => f.kind));
+    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'profiles', 'sky_map', 'tracks']);
+    // Per-sightline kinds: one figure per sightline of the table (4) plus the one chosen map pixel.
+    expect(figures.filter((f) => f.kind === 'chi2_map')).toHaveLength(5);
+    expect(figures.filter((f) => f.kind === 'sky_map').map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2']);
+  });
+
+  it('gives every figure a safe, unique file name even for hostile sightline names', () => {
+    const names = figures.map((f) => f.name);
+    for (const n of names) expect(n).toMatch(/^[A-Za-z0-9_-][A-Za-z0-9._-]*$/);
+    expect(new Set(names.slice(0, 13)).size).toBe(13);
+  });
+
+  it('validates every spec against the Vega-Lite JSON schema', () => {
+    for (const f of figures) {
+      const ok = validate(f.spec);
+      expect(ok, `${f.name}: ${JSON.stringify(validate.errors?.slice(0, 3))}`).toBe(true);
+    }
+  });
+
+  it('rejects a spec with a misspelt mark (the schema check can fail)', () => {
+    const bad = { ...figures[0].spec, layer: undefined, mark: 'rectangle', encoding: {} };
+    expect(validate(bad)).toBe(false);
+  });
+
+  it('renders each kind to well-formed SVG with its axis titles and no vega warning', async () => {
+    const seen = new Set<string>();
+    for (const f of figures) {
+      if (seen.has(f.kind) && f.kind !== 'tracks') continue;
+      seen.add(f.kind);
+      const out = await renderSvg(f.spec);
+      expect(out.warnings, f.name).toEqual([]);
+      expect(XMLValidator.validate(out.svg), f.name).toBe(true);
+      const texts = svgTexts(out.svg);
+      for (const title of EXPECTED_TITLES[f.kind]) expect(texts, `${f.name} lacks '${title}'`).toContain(title);
+      // A figure for one printed column: 3.4 in = 245 pt, with a little room for legends.
+      expect(out.width).toBeGreaterThan(200);
+      expect(out.width).toBeLessThan(330);
+    }
+    expect(seen.size).toBe(5);
+  });
+
+  it('shows a hostile sightline name as text in the SVG, escaped, with no element made of it', async () => {
+    const f = figures.find((x) => x.kind === 'tracks' && x.sightline === HOSTILE_NAMES[0]);
+    expect(f).toBeDefined();
+    const out = await renderSvg(f!.spec);
+    expect(out.svg).not.toContain('<script');
+    expect(out.svg).toContain('&lt;script&gt;alert(1)&lt;/script&gt;');
+    expect(svgTexts(out.svg)).toContain(HOSTILE_NAMES[0]);
+    const g = figures.find((x) => x.kind === 'chi2_map' && x.sightline === HOSTILE_NAMES[1]);
+    const out2 = await renderSvg(g!.spec);
+    expect(svgTexts(out2.svg)).toContain(HOSTILE_NAMES[1]);
+    expect(XMLValidator.validate(out2.svg)).toBe(true);
+  });
+
+  it('writes a PNG with text (bundled fonts) and a vector PDF with DejaVu embedded', async () => {
+    const f = figures.find((x) => x.kind === 'chi2_map')!;
+    const out = await renderSvg(f.spec);
+    const png = svgToPng(out.svg, 144);
+    // PNG signature (ISO/IEC 15948, section 5.2) and the IHDR size: width at 144 dpi is twice the points.
+    expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    expect(png.readUInt32BE(16)).toBe(Math.round(out.width * 2));
+    // Without fonts resvg drops every text silently: the same SVG with its text removed must give a smaller PNG.
+    const noText = svgToPng(out.svg.replace(/<text[^>]*>[^<]*<\/text>/g, ''), 144);
+    expect(png.length).toBeGreaterThan(noText.length * 1.05);
+    const pdf = await svgToPdf(out, f.title);
+    expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
+    const text = pdf.toString('latin1');
+    expect(text).toMatch(/\/FontName \/[A-Z]{6}\+DejaVuSans/);
+    expect(text).toContain(`/MediaBox [0 0 ${out.width} ${out.height}]`);
+  });
+
+  it('drops only all-gap-zero dash patterns before the PDF', () => {
+    expect(solidDashesRemoved('<path stroke-dasharray="1,0" d="M0"/>')).toBe('<path d="M0"/>');
+    expect(solidDashesRemoved('<path stroke-dasharray="4,2" d="M0"/>')).toBe('<path stroke-dasharray="4,2" d="M0"/>');
+  });
+});

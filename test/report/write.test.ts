@@ -1,0 +1,259 @@
+/**
+ * writeReport end to end on synthetic fit results: every file listed exists,
+ * tables read back (CSV by d3-dsv, an RFC 4180 parser; JSON; LaTeX layout),
+ * the FITS maps read by astropy with the WCS kept, output names that would
+ * leave the output folder refused, and a figure that does not exist refused
+ * with a clear error.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readdirSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { csvParse } from 'd3-dsv';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { UserError } from '../../src/config/errors.ts';
+import { parseYamlText, validate } from '../../src/config/yaml.ts';
+import { reportSection } from '../../src/config/sections/report.ts';
+import { writeReport } from '../../src/report/index.ts';
+import { carriedCards } from '../../src/report/maps.ts';
+import { outputPath } from '../../src/report/paths.ts';
+import { latexNumber } from '../../src/report/tables.ts';
+import { deltaChi2Threshold } from '../../src/report/thresholds.ts';
+import type { ReportFiles } from '../../src/report/types.ts';
+import { HOSTILE_NAMES, SIGHTLINES, syntheticInput } from './fixture.ts';
+
+const scratch = (): string => mkdtempSync(join(tmpdir(), 'hoarfrost-report-'));
+
+function expectUserError(f: () => unknown, ...parts: (string | RegExp)[]): UserError {
+  let caught: unknown;
+  try {
+    f();
+  } catch (e) {
+    caught = e;
+  }
+  expect(caught).toBeInstanceOf(UserError);
+  for (const p of parts) expect((caught as Error).message).toMatch(p);
+  return caught as UserError;
+}
+
+async function expectUserErrorAsync(p: Promise<unknown>, ...parts: (string | RegExp)[]): Promise<void> {
+  const e = await p.then(
+    () => undefined,
+    (err: unknown) => err,
+  );
+  expect(e).toBeInstanceOf(UserError);
+  for (const part of parts) expect((e as Error).message).toMatch(part);
+}
+
+describe('writeReport on a table of sightlines', () => {
+  let dir: string;
+  let files: ReportFiles;
+  beforeAll(async () => {
+    dir = scratch();
+    files = await writeReport(syntheticInput({ config: { formats: ['svg', 'png', 'pdf'], png_dpi: 150 } }), join(dir, 'report'));
+  });
+
+  it('writes every file it lists, inside the report folder, and nothing else', () => {
+    const root = resolve(dir, 'report');
+    for (const f of files.all) {
+      expect(existsSync(f), f).toBe(true);
+      expect(f.startsWith(root + '/')).toBe(true);
+    }
+    const onDisk = [
+      ...readdirSync(join(root, 'figures')).map((f) => join(root, 'figures', f)),
+      ...readdirSync(join(root, 'tables')).map((f) => join(root, 'tables', f)),
+      join(root, 'index.html'),
+    ].sort();
+    expect(onDisk).toEqual(files.all);
+    expect(files.warnings).toEqual([]);
+  });
+
+  it('saves each figure as NAME.svg, NAME.png and NAME.pdf beside NAME.vl.json', () => {
+    expect(files.figures).toHaveLength(13);
+    for (const f of files.figures) {
+      const stem = f.spec.replace(/\.vl\.json$/, '');
+      expect(f.rendered).toEqual({ svg: `${stem}.svg`, png: `${stem}.png`, pdf: `${stem}.pdf` });
+      expect(JSON.parse(readFileSync(f.spec, 'utf8')).$schema).toMatch(/vega-lite\/v6/);
+    }
+  });
+
+  it('writes a CSV an RFC 4180 reader gives back exactly, hostile names included', () => {
+    const rows = csvParse(readFileSync(files.tables.csv, 'utf8'));
+    expect(rows.map((r) => r.sightline)).toEqual(SIGHTLINES);
+    const input = syntheticInput();
+    rows.forEach((r, i) => {
+      const fit = input.fit.fits[i];
+      expect(Number(r.density)).toBe(fit.best.parameters.density);
+      expect(Number(r.age_yr)).toBe(fit.best.ageYr);
+      expect(Number(r.chi2)).toBe(fit.best.chi2);
+      const iv = fit.intervals.find((x) => x.parameter === 'density' && x.level === 0.683)!;
+      expect([Number(r.density_lo), Number(r.density_hi)]).toEqual([iv.lo, iv.hi]);
+      expect(r.density_at_edge).toBe(String(iv.loAtEdge || iv.hiAtEdge));
+    });
+    expect(rows.columns.slice(0, 6)).toEqual(['sightline', 'av_mag', 'density', 'density_lo', 'density_hi', 'density_at_edge']);
+  });
+
+  it('writes JSON with the same rows', () => {
+    const json = JSON.parse(readFileSync(files.tables.json, 'utf8'));
+    expect(json.format).toBe('hoarfrost-report-table/1');
+    expect(json.level).toBe(0.683);
+    expect(json.rows.map((r: { sightline: string }) => r.sightline)).toEqual(SIGHTLINES);
+  });
+
+  it('writes an AASTeX deluxetable with one escaped row per sightline', () => {
+    const tex = readFileSync(files.tables.latex, 'utf8');
+    expect(tex).toMatch(/\\begin\{deluxetable\*\}\{lrcccrr\}/);
+    const body = tex.slice(tex.indexOf('\\startdata') + '\\startdata'.length, tex.indexOf('\\enddata')).trim();
+    const rows = body.split(' \\\\\n');
+    expect(rows).toHaveLength(SIGHTLINES.length);
+    // AASTeX: no row separator after the last row.
+    expect(body.endsWith('\\\\')).toBe(false);
+    expect(rows[1].startsWith('\\textless{}script\\textgreater{}alert(1)\\textless{}/script\\textgreater{} & ')).toBe(true);
+    expect(rows[2].startsWith('50\\%\\_\\&\\_\\#1 & ')).toBe(true);
+    // Columns: sightline, A_V, three parameters, chi2/dof, p: six separators a row.
+    for (const r of rows) expect(r.match(/(?<!\\)&/g)).toHaveLength(6);
+    expect(tex).toContain('\\tablenotetext{a}');
+    expect(tex).not.toContain('<script');
+  });
+
+  it('writes the same tables again byte for byte', async () => {
+    const again = await writeReport(syntheticInput({ config: { formats: ['svg'] } }), join(scratch(), 'report'));
+    for (const k of ['csv', 'json', 'latex'] as const) expect(readFileSync(again.tables[k])).toEqual(readFileSync(files.tables[k]));
+  });
+
+  it('escapes hostile names in the HTML and inlines the browser bundles', () => {
+    const html = readFileSync(files.html, 'utf8');
+    expect(html).toContain('<th scope="row">&lt;script&gt;alert(1)&lt;/script&gt;</th>');
+    expect(html).toContain('<th scope="row">50%_&amp;_#1</th>');
+    // The only <script elements are ours: three bundles, the figure data and the main script.
+    expect(html.match(/<script/gi)).toHaveLength(5);
+    expect(html).not.toMatch(/src="http|href="http/);
+    expect(html).toContain("default-src 'none'");
+  });
+});
+
+describe('writeReport on a map', () => {
+  it('writes FITS images with the WCS of the observed maps (astropy reads them)', async (t) => {
+    const dir = scratch();
+    const files = await writeReport(syntheticInput({ map: { nx: 6, ny: 5 }, config: { formats: ['svg'] } }), join(dir, 'report'));
+    expect(files.maps.map((m) => m.split('/').pop())).toEqual(['best_age_yr.fits', 'best_density.fits', 'best_chi2.fits', 'density_width_dex.fits', 'age_width_dex.fits']);
+    expect(files.figures.map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2', 'fit_vs_av']);
+    const probe = spawnSync('/usr/bin/python3', ['-c', 'import astropy'], { encoding: 'utf8' });
+    if (probe.status !== 0) {
+      if (process.env.HOARFROST_REQUIRE_ASTROPY === '1') throw new Error('astropy is required (HOARFROST_REQUIRE_ASTROPY=1) but /usr/bin/python3 cannot import it');
+      t.skip();
+      return;
+    }
+    const script = String.raw`
+import json, sys, math
+from astropy.io import fits
+from astropy.wcs import WCS
+out = {}
+for f in sys.argv[1:]:
+    with fits.open(f) as h:
+        h.verify('exception')
+        d = h[0].data
+        hd = h[0].header
+        w = WCS(hd)
+        out[f.split('/')[-1]] = {'shape': list(d.shape), 'bunit': hd.get('BUNIT'), 'object': hd.get('OBJECT'), 'ctype': [hd['CTYPE1'], hd['CTYPE2']],
+            'crpix': [hd['CRPIX1'], hd['CRPIX2']], 'world': [float(v) for v in w.pixel_to_world_values(3.5, 2.5)],
+            'corner': None if math.isnan(d[4, 0]) else float(d[4, 0]), 'x5y0': float(d[0, 5])}
+print(json.dumps(out))
+`;
+    const r = spawnSync('/usr/bin/python3', ['-c', script, ...files.maps], { encoding: 'utf8' });
+    expect(r.stderr).toBe('');
+    const got = JSON.parse(r.stdout);
+    const density = got['best_density.fits'];
+    expect(density.shape).toEqual([5, 6]);
+    expect(density.bunit).toBe('cm-3');
+    expect(density.ctype).toEqual(['RA---TAN', 'DEC--TAN']);
+    expect(density.crpix).toEqual([4.5, 3.5]);
+    // At the reference pixel (FITS 1-based 4.5, 3.5 = 0-based 3.5, 2.5) the world coordinates are CRVAL (FITS WCS Paper I).
+    expect(density.world[0]).toBeCloseTo(83.8, 10);
+    expect(density.world[1]).toBeCloseTo(-5.4, 10);
+    // The pixel without a fit (x 0, y 4) is NaN; pixel (5, 0) holds 10^(3 + 3 * 5 / 5) = 1e6.
+    expect(density.corner).toBeNull();
+    expect(density.x5y0).toBeCloseTo(1e6, 6);
+    // A header value with markup characters is carried as written: in FITS it is plain text.
+    expect(got['best_age_yr.fits'].object).toBe('Frostmere <map> & "50%"');
+    expect(got['best_age_yr.fits'].bunit).toBe('yr');
+  });
+});
+
+describe('header cards carried to the map outputs', () => {
+  it('makes values printable ASCII, drops invalid keywords and structural ones, and says so', () => {
+    const warnings: string[] = [];
+    const cards = carriedCards({ OBJECT: 'Frøstmere', 'bad key': 1, NAXIS1: 5, BUNIT: 'MJy/sr', CRVAL1: 83.8, EQUINOX: 2000 }, warnings);
+    expect(cards).toEqual([
+      { key: 'OBJECT', value: 'Fr?stmere' },
+      { key: 'CRVAL1', value: 83.8 },
+      { key: 'EQUINOX', value: 2000 },
+    ]);
+    expect(warnings).toHaveLength(2);
+    expect(warnings[0]).toMatch(/OBJECT/);
+    expect(warnings[1]).toMatch(/bad key/);
+  });
+});
+
+describe('refusing bad requests', () => {
+  it('refuses output names that leave the output folder', () => {
+    const root = scratch();
+    for (const bad of ['../../x', '/etc/x', 'a/b', '..', '.hidden', 'a\\b', '', 'x\u0000y']) {
+      expectUserError(() => outputPath(root, bad), 'not allowed', 'inside the output folder');
+    }
+    expect(outputPath(root, 'fig2_chi2_map.v1')).toBe(join(root, 'fig2_chi2_map.v1'));
+  });
+
+  it('refuses a figure named ../../x with the field named, writing nothing', async () => {
+    const dir = scratch();
+    const input = syntheticInput({ config: { figures: [{ kind: 'fit_vs_av', name: '../../x' }] } });
+    await expectUserErrorAsync(writeReport(input, join(dir, 'report')), "field 'report.figures[0].name'", "'../../x' is not allowed", 'pipelines/frostmere.yaml');
+    expect(existsSync(join(dir, 'report'))).toBe(false);
+  });
+
+  it('refuses a figure kind that does not exist, listing the kinds', async () => {
+    const input = syntheticInput({ config: { figures: ['histogram' as 'tracks'] } });
+    await expectUserErrorAsync(writeReport(input, join(scratch(), 'report')), "no figure kind 'histogram'", 'chi2_map', 'sky_map', "report.figures[0].kind");
+  });
+
+  it('refuses, at the pipeline file, a figure kind that does not exist with its line', () => {
+    const yaml = parseYamlText('report:\n  formats: [svg]\n  figures:\n    - tracks\n    - kind: histogram\n', 'p.yaml');
+    const e = expectUserError(() => validate(reportSection, yaml, ['report'], (yaml.data as { report: unknown }).report), 'unknown figure kind', 'chi2_map, tracks, fit_vs_av, profiles, sky_map');
+    expect(e.location.line).toBe(5);
+  });
+
+  it('refuses a sky map for a table, and sightlines without a fit', async () => {
+    await expectUserErrorAsync(writeReport(syntheticInput({ config: { figures: ['sky_map'] } }), join(scratch(), 'r')), "'sky_map' cannot be drawn", 'not a map');
+    await expectUserErrorAsync(writeReport(syntheticInput({ config: { figures: [{ kind: 'tracks', sightlines: ['Nowhere-9'] }] } }), join(scratch(), 'r')), "'Nowhere-9' has no fit", 'Frostmere-01');
+  });
+
+  it('refuses two figures of one name', async () => {
+    const input = syntheticInput({ config: { figures: [{ kind: 'fit_vs_av', name: 'fig1' }, { kind: 'tracks', name: 'fig1', sightlines: [HOSTILE_NAMES[0]] }] } });
+    await expectUserErrorAsync(writeReport(input, join(scratch(), 'r')), "'fig1' is used twice");
+  });
+
+  it('keeps a given name for a one-sightline figure', async () => {
+    const files = await writeReport(syntheticInput({ config: { formats: ['svg'], figures: [{ kind: 'chi2_map', name: 'fig3', sightlines: ['Frostmere-01'] }] } }), join(scratch(), 'r'));
+    expect(files.figures.map((f) => f.name)).toEqual(['fig3']);
+  });
+});
+
+describe('numbers and thresholds', () => {
+  it('prints numbers for LaTeX with two significant figures', () => {
+    expect(latexNumber(31622.7)).toBe('3.2\\times10^{4}');
+    expect(latexNumber(0.045)).toBe('0.045');
+    expect(latexNumber(9.96e-5)).toBe('1\\times10^{-4}');
+    expect(latexNumber(Number.NaN)).toBe('\\nodata');
+  });
+
+  it('gives the Delta chi^2 thresholds of Avni (1976) / Numerical Recipes section 15.6', () => {
+    // Table of NR 15.6 (and physics.md section 6): p = 1: 1.00, 2.71, 4.00, 6.63; p = 2: 2.30, 4.61, 6.18, 9.21.
+    const cases: [number, 1 | 2, number][] = [
+      [0.683, 1, 1.0], [0.9, 1, 2.71], [0.9545, 1, 4.0], [0.99, 1, 6.63],
+      [0.683, 2, 2.3], [0.9, 2, 4.61], [0.9545, 2, 6.18], [0.99, 2, 9.21],
+    ];
+    for (const [level, p, value] of cases) expect(Math.abs(deltaChi2Threshold(level, p) - value)).toBeLessThan(0.006);
+    // A threshold the fit stage stated wins over the computed one.
+    expect(deltaChi2Threshold(0.683, 1, [{ level: 0.683, parametersOfInterest: 1, deltaChi2: 1.5 }])).toBe(1.5);
+  });
+});
