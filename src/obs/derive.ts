@@ -69,8 +69,9 @@ export function modelAv(sightline: Sightline, section: Pick<ObservationsSection,
   return section.model_av_fraction * sightline.av;
 }
 
-function log10Quantity(value: number, relLo: number, relHi: number): { log10: number; sigmaLoDex: number; sigmaHiDex: number } {
-  return { log10: Math.log10(value), sigmaLoDex: relLo / Math.LN10, sigmaHiDex: relHi / Math.LN10 };
+/** A relative error in dex: sigma_log10 = (sigma / X) / ln 10. */
+function dex(relative: number): number {
+  return relative / Math.LN10;
 }
 
 /** Kind of N1/N2 from the kinds of N1 and N2; undefined when the ratio is not bounded. */
@@ -114,6 +115,7 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
     }
     if (w.as === 'abundance') {
       const noIce: string[] = [];
+      const label = `X(${w.species})`;
       for (const s of set.sightlines) {
         const m = s.columns[w.species];
         if (!m) continue;
@@ -127,17 +129,13 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
           continue;
         }
         const x = m.value / hydrogenColumn(avEff, section);
-        const base = { sightline: s.id, label: `X(${w.species})`, numerator: w.species, kind: m.kind };
+        const q: ObservedQuantity = { sightline: s.id, label, numerator: w.species, kind: m.kind, log10: Math.log10(x), sigmaLoDex: 0, sigmaHiDex: 0 };
         if (m.kind === 'detection') {
           const relAv = s.avErr !== undefined ? s.avErr / avEff : 0;
-          const lo = Math.hypot(m.errLo! / m.value, relAv);
-          const hi = Math.hypot(m.errHi! / m.value, relAv);
-          quantities.push({ ...base, ...log10Quantity(x, lo, hi) });
-        } else {
-          const q: ObservedQuantity = { ...base, log10: Math.log10(x), sigmaLoDex: 0, sigmaHiDex: 0 };
-          if (m.confidence !== undefined) q.confidence = m.confidence;
-          quantities.push(q);
-        }
+          q.sigmaLoDex = dex(Math.hypot(m.errLo! / m.value, relAv));
+          q.sigmaHiDex = dex(Math.hypot(m.errHi! / m.value, relAv));
+        } else if (m.confidence !== undefined) q.confidence = m.confidence;
+        quantities.push(q);
       }
       if (noIce.length > 0) {
         warnings.push(`${set.file}: A_V is at or below the ice threshold (${section.ice_threshold_av} mag) toward ${names(noIce)}; no abundance of '${w.species}' derived there (no ice is expected below the threshold).`);
@@ -149,6 +147,7 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
       continue;
     }
     const noRef: string[] = [];
+    const label = `${w.species}/${ref}`;
     const unbounded: string[] = [];
     for (const s of set.sightlines) {
       const n = s.columns[w.species];
@@ -163,18 +162,15 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
         unbounded.push(`${s.id} (${n.kind} / ${d.kind} limit)`);
         continue;
       }
-      const r = n.value / d.value;
-      const base = { sightline: s.id, label: `${w.species}/${ref}`, numerator: w.species, denominator: ref, kind };
+      const q: ObservedQuantity = { sightline: s.id, label, numerator: w.species, denominator: ref, kind, log10: Math.log10(n.value / d.value), sigmaLoDex: 0, sigmaHiDex: 0 };
       if (kind === 'detection') {
-        const lo = Math.hypot(n.errLo! / n.value, d.errHi! / d.value);
-        const hi = Math.hypot(n.errHi! / n.value, d.errLo! / d.value);
-        quantities.push({ ...base, ...log10Quantity(r, lo, hi) });
+        q.sigmaLoDex = dex(Math.hypot(n.errLo! / n.value, d.errHi! / d.value));
+        q.sigmaHiDex = dex(Math.hypot(n.errHi! / n.value, d.errLo! / d.value));
       } else {
-        const q: ObservedQuantity = { ...base, log10: Math.log10(r), sigmaLoDex: 0, sigmaHiDex: 0 };
         const c = limitConfidence(n, d);
         if (c !== undefined) q.confidence = c;
-        quantities.push(q);
       }
+      quantities.push(q);
     }
     if (noRef.length > 0) warnings.push(`${set.file}: the reference '${ref}' is not observed toward ${names(noRef)}; no ratio ${w.species}/${ref} there.`);
     if (unbounded.length > 0) warnings.push(`${set.file}: ${w.species}/${ref} is unusable toward ${names(unbounded)}: two limits of the same kind bound nothing.`);

@@ -308,30 +308,40 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
   const sightlines: Sightline[] = [];
   const seen = new Map<string, string>();
   let extinctionOnly = 0;
+  const usedCols = [...plan.used];
+  const isBlank = (c: Cell) => c === null || c === undefined || (typeof c === 'number' ? Number.isNaN(c) : parseCell(c).kind === 'blank');
 
-  for (let r = 0; r < table.nrows; r++) {
-    const cells = [...plan.used].map((c) => parseCell(cellAt(c, r)));
-    if (cells.every((c) => c.kind === 'blank')) continue;
-    if (table.map && plan.species.every((sp) => parseCell(cellAt(sp.value ?? sp.tau, r)).kind === 'blank')) {
+  // The row being read; the helpers below report problems at it. They are made once, not per row.
+  let r = 0;
+  let place: RowPlace = { text: '', loc: {}, source: { file: table.file } };
+  const fail = (col: number | undefined, msg: string) => {
+    problems.push(new UserError(table.map ? `${place.text}: ${msg}` : msg, { ...place.loc, field: col === undefined ? undefined : colName(col) }));
+  };
+  const warn = (col: number, msg: string) => warnings.push(`${table.file}, ${place.text}, ${table.map ? 'image' : 'column'} '${colName(col)}': ${msg}`);
+  // A plain number or blank; anything else is a problem at (row, column).
+  const plainNumber = (col: number | undefined, what: string): number | undefined => {
+    if (col === undefined) return undefined;
+    const raw = cellAt(col, r);
+    const p = parseCell(raw);
+    if (p.kind === 'blank') return undefined;
+    if (p.kind === 'bad') return fail(col, `cannot read ${describeCell(raw)} as ${what}; expected a number such as 1.2e17, or a blank cell.`), undefined;
+    if (p.kind !== 'detection') return fail(col, `${what} cannot be a limit (found ${describeCell(raw)}).`), undefined;
+    return p.value;
+  };
+  const ext = (col: number | undefined, what: string) => {
+    const v = plainNumber(col, what);
+    return v === undefined || col === undefined ? v : v * (plan.extinctionFactors.get(col) ?? 1);
+  };
+  const rowBlank = (c: number) => isBlank(cellAt(c, r));
+  const speciesBlank = (sp: SpeciesPlan) => isBlank(cellAt(sp.value ?? sp.tau, r));
+
+  for (r = 0; r < table.nrows; r++) {
+    if (usedCols.every(rowBlank)) continue;
+    if (table.map && plan.species.every(speciesBlank)) {
       extinctionOnly++;
       continue;
     }
-    const place = table.place(r);
-    const fail = (col: number | undefined, msg: string) => {
-      problems.push(new UserError(table.map ? `${place.text}: ${msg}` : msg, { ...place.loc, field: col === undefined ? undefined : colName(col) }));
-    };
-    const warn = (col: number, msg: string) => warnings.push(`${table.file}, ${place.text}, ${table.map ? 'image' : 'column'} '${colName(col)}': ${msg}`);
-
-    // A plain number or blank; anything else is a problem at (row, column).
-    const plainNumber = (col: number | undefined, what: string): number | undefined => {
-      if (col === undefined) return undefined;
-      const raw = cellAt(col, r);
-      const p = parseCell(raw);
-      if (p.kind === 'blank') return undefined;
-      if (p.kind === 'bad') return fail(col, `cannot read ${describeCell(raw)} as ${what}; expected a number such as 1.2e17, or a blank cell.`), undefined;
-      if (p.kind !== 'detection') return fail(col, `${what} cannot be a limit (found ${describeCell(raw)}).`), undefined;
-      return p.value;
-    };
+    place = table.place(r);
 
     let id: string;
     const idCell = cellAt(plan.id, r);
@@ -344,10 +354,6 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
 
     const s: Sightline = { id, columns: {}, source: place.source };
     if (place.pixel) s.pixel = place.pixel;
-    const ext = (col: number | undefined, what: string) => {
-      const v = plainNumber(col, what);
-      return v === undefined || col === undefined ? v : v * (plan.extinctionFactors.get(col) ?? 1);
-    };
     const av = ext(plan.av, 'A_V');
     const avErr = ext(plan.avError, 'the A_V error');
     const ak = ext(plan.ak, 'A_K');
