@@ -1,0 +1,113 @@
+/**
+ * The HTML report in a real headless Chromium (Debian's chromium driven by
+ * playwright-core): it loads from file:// with no console error, no page
+ * error and no network request, every figure renders (SVG marks counted),
+ * and hostile sightline names show as text and run nothing. Without
+ * chromium the test is skipped with a message; with
+ * HOARFROST_REQUIRE_CHROMIUM=1 (CI) it fails instead.
+ */
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { chromium, type BrowserContext } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { writeReport } from '../../src/report/index.ts';
+import type { ReportFiles } from '../../src/report/types.ts';
+import { HOSTILE_NAMES, syntheticInput } from './fixture.ts';
+
+const CHROMIUM = '/usr/bin/chromium';
+const HAVE_CHROMIUM = existsSync(CHROMIUM);
+const REQUIRED = process.env.HOARFROST_REQUIRE_CHROMIUM === '1';
+if (!HAVE_CHROMIUM && !REQUIRED) {
+  console.warn(`HTML report browser tests skipped: ${CHROMIUM} not found (install Debian's chromium; CI sets HOARFROST_REQUIRE_CHROMIUM=1 and then fails instead).`);
+}
+/** Flags from figures-notes.md: no sandbox (root in a container), no GPU, nothing fetched in the background. */
+const FLAGS = ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const READY_TIMEOUT_MS = 30_000;
+
+interface PageRun {
+  messages: string[];
+  requests: string[];
+  dialogs: string[];
+  ready: string | null;
+  svgs: number;
+  /** Marks per figure: path/line/text elements inside the vega mark groups. */
+  marksPerFigure: number[];
+  summaryText: string;
+  scriptsInBody: number;
+}
+
+async function loadReport(context: BrowserContext, html: string): Promise<PageRun> {
+  const page = await context.newPage();
+  const messages: string[] = [];
+  const requests: string[] = [];
+  const dialogs: string[] = [];
+  page.on('console', (m) => {
+    if (m.type() === 'error' || m.type() === 'warning') messages.push(`${m.type()}: ${m.text()}`);
+  });
+  page.on('pageerror', (e) => messages.push(`pageerror: ${e.message}`));
+  page.on('dialog', (d) => {
+    dialogs.push(d.message());
+    void d.dismiss();
+  });
+  page.on('request', (r) => {
+    if (!r.url().startsWith('file:')) requests.push(r.url());
+  });
+  await page.goto(pathToFileURL(html).href);
+  await page.waitForFunction(() => document.body.getAttribute('data-ready') !== 'false', null, { timeout: READY_TIMEOUT_MS });
+  const ready = await page.getAttribute('body', 'data-ready');
+  const svgs = await page.locator('.vis svg').count();
+  const marksPerFigure = await page.$$eval('.vis svg', (list) => list.map((svg) => svg.querySelectorAll('g.mark-rect path, g.mark-symbol path, g.mark-line path, g.mark-rule line').length));
+  const summaryText = (await page.textContent('table.summary')) ?? '';
+  const scriptsInBody = await page.locator('script').count();
+  await page.close();
+  return { messages, requests, dialogs, ready, svgs, marksPerFigure, summaryText, scriptsInBody };
+}
+
+describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', () => {
+  let context: BrowserContext;
+  let userDataDir: string;
+  let table: ReportFiles;
+  let map: ReportFiles;
+  beforeAll(async () => {
+    if (!HAVE_CHROMIUM) throw new Error(`HOARFROST_REQUIRE_CHROMIUM=1 but ${CHROMIUM} is missing: install Debian's chromium`);
+    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-html-'));
+    table = await writeReport(syntheticInput({ config: { formats: ['svg'] } }), join(dir, 'table'));
+    map = await writeReport(syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'], sightlines: ['Frostmere-01'] } }), join(dir, 'map'));
+    userDataDir = mkdtempSync(join(tmpdir(), 'hoarfrost-chromium-'));
+    context = await chromium.launchPersistentContext(userDataDir, { executablePath: CHROMIUM, headless: true, args: FLAGS });
+  });
+  afterAll(async () => {
+    await context?.close();
+    if (userDataDir) rmSync(userDataDir, { recursive: true, force: true });
+  });
+
+  it('loads the table report with no console error and draws every figure', async () => {
+    const run = await loadReport(context, table.html);
+    expect(run.messages).toEqual([]);
+    expect(run.requests).toEqual([]);
+    expect(run.ready).toBe('true');
+    expect(run.svgs).toBe(table.figures.length);
+    // Every figure has marks: cells, contour segments, points, lines (a figure that failed to draw has none).
+    for (const [i, n] of run.marksPerFigure.entries()) expect(n, table.figures[i].name).toBeGreaterThan(5);
+  });
+
+  it('shows hostile sightline names as text and runs none of them', async () => {
+    const run = await loadReport(context, table.html);
+    expect(run.dialogs).toEqual([]);
+    for (const name of HOSTILE_NAMES) expect(run.summaryText).toContain(name);
+    // Three bundles, the figure data and the main script: no script element came from the data.
+    expect(run.scriptsInBody).toBe(5);
+  });
+
+  it('loads the map report and draws the sky images', async () => {
+    const run = await loadReport(context, map.html);
+    expect(run.messages).toEqual([]);
+    expect(run.ready).toBe('true');
+    expect(run.svgs).toBe(map.figures.length);
+    const sky = map.figures.findIndex((f) => f.name === 'sky_map_best_density');
+    // 8 x 6 pixels, one without a fit: 47 cells.
+    expect(run.marksPerFigure[sky]).toBeGreaterThanOrEqual(47);
+  });
+});
