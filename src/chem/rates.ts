@@ -21,6 +21,7 @@ import {
   surfaceReactionCoefficient,
 } from './grain-surface.ts';
 import type { Network, Reaction } from './network-types.ts';
+import { NH_PER_AV } from './shielding.ts';
 import type { Species } from './species.ts';
 
 /**
@@ -28,8 +29,9 @@ import type { Species } from './species.ts';
  * product of its reactants' densities. 'monolayer-photodesorption': the
  * first-order rate k below one monolayer, saturating to a fixed rate per grain
  * above it. 'parametric-h2': event rate k n_H n(H), using both listed H atoms.
+ * 'h2-self-shielding': H2 photodissociation at k f(N(H2)) (Draine & Bertoldi 1996).
  */
-export type RateForm = 'mass-action' | 'monolayer-photodesorption' | 'parametric-h2';
+export type RateForm = 'mass-action' | 'monolayer-photodesorption' | 'parametric-h2' | 'h2-self-shielding';
 
 export interface ReactionRate {
   reaction: Reaction;
@@ -50,6 +52,13 @@ export interface RateSet {
   /** One note per reaction whose gas temperature was clamped to its valid range. */
   clampNotes: string[];
   grain: GrainProperties;
+  /** Column of H nuclei to the cloud edge, N_H = (N_H/A_V) A_V, cm^-2: N(H2) = x(H2) N_H for self-shielding. */
+  columnToEdge: number;
+}
+
+export interface RateOptions {
+  /** Shield the external-UV photodissociation of H2 by its own column (default true; Draine & Bertoldi 1996). */
+  selfShielding?: boolean;
 }
 
 /** Gas species that do not stay on a grain: helium binds at about 100 K (physics.md section 3). */
@@ -147,8 +156,14 @@ function isHPlusH(r: Reaction, data: SurfaceData): boolean {
   return r.reactants.length === 2 && r.reactants.every((n) => data.species(n).gasName === 'H');
 }
 
+/** H2 -> H + H by the external field: the reaction H2 shields itself from. */
+function isH2Photodissociation(r: Reaction, data: SurfaceData): boolean {
+  return r.reactants.length === 1 && r.reactants[0] === 'H2' && r.products.length === 2 && r.products.every((n) => data.species(n).name === 'H');
+}
+
 /** Evaluate every reaction's coefficient (physics.md sections 1-3). */
-export function computeRates(network: Network, c: PhysicalConditions, grain: GrainOptions): RateSet {
+export function computeRates(network: Network, c: PhysicalConditions, grain: GrainOptions, options: RateOptions = {}): RateSet {
+  const selfShielding = options.selfShielding ?? true;
   const props = grainProperties(c);
   const grainDensity = props.abundance * c.density;
   const data = new SurfaceData(network, c);
@@ -197,9 +212,11 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
       case 'cosmic-ray-uv':
         rates.push({ reaction: r, k: cosmicRayRate(p.alpha, c.cr_ionisation_rate), form: 'mass-action' });
         break;
-      case 'interstellar-uv':
-        rates.push({ reaction: r, k: interstellarUvRate(p.alpha, p.gamma, c.uv_field, c.visual_extinction), form: 'mass-action' });
+      case 'interstellar-uv': {
+        const shielded = selfShielding && isH2Photodissociation(r, data);
+        rates.push({ reaction: r, k: interstellarUvRate(p.alpha, p.gamma, c.uv_field, c.visual_extinction), form: shielded ? 'h2-self-shielding' : 'mass-action' });
         break;
+      }
       case 'accretion': {
         const s = data.species(r.reactants[0]);
         if (NON_STICKING.has(s.gasName)) {
@@ -249,5 +266,5 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
       }
     }
   }
-  return { rates, skipped, clampNotes, grain: props };
+  return { rates, skipped, clampNotes, grain: props, columnToEdge: NH_PER_AV * c.visual_extinction };
 }

@@ -13,11 +13,13 @@
  * time together with the position of every contribution in it.
  *
  * Processes that are not mass-action are terms of their own (NonMassActionTerm):
- * photodesorption above one monolayer and the parametric H2 formation rate.
+ * photodesorption above one monolayer, H2 self-shielding and the parametric H2
+ * formation rate.
  */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
 import { computeRates, type RateSet, type SkippedReaction } from './rates.ts';
+import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
 export interface CsrPattern {
   rowPtr: Int32Array;
@@ -58,6 +60,8 @@ export interface EmittedSystem {
 export interface CompileOptions {
   /** Leave out every non-mass-action term (they are still named in `omitted`). */
   massActionOnly?: boolean;
+  /** H2 self-shielding (default true; Draine & Bertoldi 1996). */
+  selfShielding?: boolean;
 }
 
 export interface CompiledSystem {
@@ -198,9 +202,50 @@ class ParametricH2 implements NonMassActionTerm {
   }
 }
 
+/**
+ * H2 photodissociation shielded by the H2 column to the cloud edge,
+ * rate = k f(x_H2 N_H) x_H2 with f of Draine & Bertoldi (1996): the rate is not
+ * linear in x_H2.
+ */
+class H2SelfShielding implements NonMassActionTerm {
+  readonly entries: [number, number][] = [];
+  private readonly rows: Int32Array;
+  private readonly rowSign: Float64Array;
+  private positions: Int32Array = new Int32Array(0);
+
+  constructor(
+    readonly name: string,
+    private readonly h2: number,
+    products: Int32Array,
+    private readonly k: number,
+    private readonly columnToEdge: number,
+  ) {
+    this.rows = Int32Array.from([h2, ...products]);
+    this.rowSign = Float64Array.from([-1, ...Array.from(products, () => 1)]);
+    for (const row of this.rows) this.entries.push([row, h2]);
+  }
+
+  bind(positions: Int32Array): void {
+    this.positions = positions;
+  }
+
+  addRhs(y: Float64Array, dydt: Float64Array): void {
+    const x = y[this.h2];
+    const rate = this.k * h2ShieldingFactor(x * this.columnToEdge) * x;
+    for (let q = 0; q < this.rows.length; q++) dydt[this.rows[q]] += this.rowSign[q] * rate;
+  }
+
+  addJacobian(y: Float64Array, values: Float64Array): void {
+    const x = y[this.h2];
+    const column = x * this.columnToEdge;
+    const d = this.k * (h2ShieldingFactor(column) + x * this.columnToEdge * h2ShieldingDerivative(column));
+    for (let q = 0; q < this.rows.length; q++) values[this.positions[q]] += this.rowSign[q] * d;
+  }
+}
+
 /** Compile a network for fixed conditions (see the module comment). */
 export function compile(network: Network, conditions: PhysicalConditions, grain: GrainOptions, options: CompileOptions = {}): CompiledSystem {
-  const rateSet = computeRates(network, conditions, grain);
+  const rateSet = computeRates(network, conditions, grain, { selfShielding: options.selfShielding });
   const n = network.species.length;
   const species = network.species.map((s) => s.name);
   const index = (name: string): number => {
@@ -242,9 +287,10 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
       nonMassAction.push(new MonolayerPhotodesorption(`photodesorption with the monolayer treatment (${photo.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
     }
     special.forEach((rate, q) => {
-      if (rate.form !== 'parametric-h2') return;
       const r = rate.reaction;
-      nonMassAction.push(new ParametricH2(omitted[q], index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), Int32Array.from(r.products.map(index)), rate.k * nH));
+      const products = Int32Array.from(r.products.map(index));
+      if (rate.form === 'parametric-h2') nonMassAction.push(new ParametricH2(omitted[q], index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), products, rate.k * nH));
+      else if (rate.form === 'h2-self-shielding') nonMassAction.push(new H2SelfShielding(omitted[q], index(r.reactants[0]), products, rate.k, rateSet.columnToEdge));
     });
   }
 

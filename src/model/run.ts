@@ -40,7 +40,7 @@ function checkTimes(timesYr: Float64Array): void {
 export function runModel(input: ModelInput): ModelResult {
   const started = performance.now();
   checkTimes(input.timesYr);
-  const system = compile(input.network, input.conditions, input.grain, { massActionOnly: input.massActionOnly });
+  const system = compile(input.network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
   const y0 = initialState(input);
   const n = system.n;
   const count = input.timesYr.length;

@@ -20,6 +20,8 @@ export interface ModelInput {
   solver: SolverSettings;
   /** Leave out the terms that are not mass-action (photodesorption above a monolayer, self-shielding). */
   massActionOnly?: boolean;
+  /** Shield H2 photodissociation by the H2 column (Draine & Bertoldi 1996); default true. */
+  selfShielding?: boolean;
 }
 
 export interface ConservationReport {

@@ -4,7 +4,7 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { createRequire } from 'node:module';
-import Ajv from 'ajv';
+import AjvModule from 'ajv';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { EmittedSystem } from '../../src/chem/system.ts';
 import { integrate } from '../../src/solve/index.ts';
@@ -77,7 +77,7 @@ describe('hoarfrost model', () => {
     expect(spec.encoding.y.scale.type).toBe('log');
     // The spec is valid Vega-Lite (the package's own JSON schema).
     const schemaFile = join(dirname(createRequire(import.meta.url).resolve('vega-lite')), 'vega-lite-schema.json');
-    const validate = new Ajv({ strict: false, allErrors: true }).compile(JSON.parse(readFileSync(schemaFile, 'utf8')));
+    const validate = new AjvModule.default({ strict: false, allErrors: true }).compile(JSON.parse(readFileSync(schemaFile, 'utf8')));
     expect(validate(spec), JSON.stringify(validate.errors?.slice(0, 3))).toBe(true);
     expect(run.stdout).toMatch(/most abundant at 1\.000e\+6 yr/);
     expect(run.stdout).toMatch(/conservation: largest relative drift/);

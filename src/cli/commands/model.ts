@@ -27,6 +27,7 @@ interface ModelOptions {
   species?: string;
   emitSystem?: string;
   massActionOnly?: boolean;
+  selfShielding?: boolean;
 }
 
 export function register(program: Command, ctx: CommandContext): void {
@@ -38,7 +39,8 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--out <dir>', 'output folder (default: <output of the pipeline>/model)')
     .option('--species <list>', `comma-separated species for the figure (default: those of ${DEFAULT_FIGURE_SPECIES.join(', ')} in the network)`)
     .option('--emit-system <file>', 'also write the compiled mass-action system as JSON (species, y0, times_s, terms, omitted)')
-    .option('--mass-action-only', 'leave out the terms that are not mass-action (photodesorption above a monolayer, parametric H2)')
+    .option('--mass-action-only', 'leave out the terms that are not mass-action (photodesorption above a monolayer, H2 self-shielding, parametric H2)')
+    .option('--no-self-shielding', 'photodissociate H2 at the unshielded rate (default: shielded by its column, Draine & Bertoldi 1996)')
     .action(async (file: string, opts: ModelOptions) => {
       await runModelCommand(file, opts, ctx);
     });
@@ -73,9 +75,10 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     timesYr,
     solver: { rtol: cfg.solver.rtol, atol: cfg.solver.atol, maxSteps: cfg.solver.max_steps },
     massActionOnly: opts.massActionOnly ?? false,
+    selfShielding: opts.selfShielding ?? true,
   };
   if (opts.emitSystem) {
-    const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly });
+    const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
     const emitted = system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
     writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n', writeFileSync, UserError);
   }
@@ -89,6 +92,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     conditions,
     grain: cfg.grain,
     mass_action_only: input.massActionOnly,
+    self_shielding: input.selfShielding,
     status: result.status,
     failure: result.failure ?? null,
     species: result.species,
