@@ -416,17 +416,19 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
         }
       }
       const factor = sp.factors.get(valueCol) ?? 1;
-      const scale = sp.band ? factor / sp.band.strength : factor;
-      const value = p.value * scale;
+      // N = tau_int / A for optical depths (physics.md section 5).
+      const toColumn = (x: number) => (sp.band ? x / sp.band.strength : x);
+      const value = toColumn(p.value * factor);
       if (!(p.value > 0)) {
         fail(valueCol, `a ${sp.tau !== undefined ? 'optical depth' : 'column density'} must be positive, found ${describeCell(raw)}. Leave the cell blank if '${sp.name}' was not observed, or give an upper limit (<value).`);
         continue;
       }
       const errCols = sp.tau !== undefined ? [sp.tauError] : [sp.error, sp.errorLo, sp.errorHi];
-      const errs = errCols.map((c) => {
+      const rawErrs = errCols.map((c) => {
         const v = plainNumber(c, 'an error');
-        return v === undefined || c === undefined ? undefined : v * (sp.factors.get(c) ?? 1) * (sp.band ? 1 / sp.band.strength : 1);
+        return v === undefined || c === undefined ? undefined : v * (sp.factors.get(c) ?? 1);
       });
+      const errs = rawErrs.map((e) => (e === undefined ? undefined : toColumn(e)));
       const given = errCols.filter((c, i) => c !== undefined && errs[i] !== undefined) as number[];
       const meas: Measurement = { kind, value };
       if (kind !== 'detection') {
@@ -466,9 +468,8 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
         meas.errHi = hi;
       }
       if (sp.band) {
-        const tauErr = errs[0];
         meas.fromTau = { tauInt: p.value * factor, band: sp.band.name, bandStrength: sp.band.strength };
-        if (tauErr !== undefined) meas.fromTau.tauIntErr = tauErr * sp.band.strength;
+        if (rawErrs[0] !== undefined) meas.fromTau.tauIntErr = rawErrs[0];
       }
       s.columns[sp.name] = meas;
     }

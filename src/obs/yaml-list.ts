@@ -109,6 +109,22 @@ export function readYamlList(file: string, text: string): { table: RawTable; map
       }
     }
   });
+  // A species written with a symmetric error in one sightline and asymmetric errors in another:
+  // the symmetric ones become equal lower and upper errors.
+  for (const [sp, m] of species) {
+    if (m.error === undefined || (m.error_lo === undefined && m.error_hi === undefined)) continue;
+    const n = `N(${sp})`;
+    for (const side of ['_errlo', '_errhi'] as const) {
+      const col = `${n}${side}`;
+      list.forEach((_, r) => {
+        const sym = cols.get(`${n}_err`)?.[r];
+        if (sym !== undefined && sym !== null) put(col, r, sym);
+      });
+    }
+    m.error_lo = `${n}_errlo`;
+    m.error_hi = `${n}_errhi`;
+    delete m.error;
+  }
   const names = [...cols.keys()];
   const mapping: ColumnMapping = { id: 'id', av: 'av', av_error: 'av_err', ak: 'ak', ak_error: 'ak_err', ra: 'ra', dec: 'dec', species: Object.fromEntries(species) };
   return {

@@ -44,6 +44,19 @@ describe('hoarfrost observations', () => {
     expect(r.stdout).toMatch(/168 pixels have an extinction but no column density/);
   });
 
+  it('reads the example YAML list and VOTable', () => {
+    const y = hoarfrost(['pipelines/examples/frostmere-few.yaml']);
+    expect(y.code).toBe(0);
+    expect(y.stdout).toMatch(/yaml table of 2 sightlines, 4 species/);
+    // FM-12: A_V = 1.95 / 0.112 = 17.4 mag; CO2(s) = 13.1 cm-1 / 7.6e-17 cm = 1.72e17 cm-2 (band strength: memory).
+    expect(y.stdout).toMatch(/FM-12\s+17\.4 ± 0\.89 \(A_K\).*1\.72e17 ± 1\.8e16/);
+    const v = hoarfrost(['pipelines/examples/frostmere-few.vot']);
+    expect(v.code).toBe(0);
+    // N(CO(s)) in units of 10+17cm-2 (CDS): 3.1 -> 3.10e17 cm-2.
+    expect(v.stdout).toMatch(/FM-21\s+11\.2 ± 0\.60\s+1\.05e18 ± 9\.0e16\s+3\.10e17 ± 5\.0e16/);
+    expect(v.stdout).toMatch(/FM-22 .*<1\.00e17/);
+  });
+
   it('--json gives the set and the quantities', () => {
     const r = hoarfrost([TABLE, '--json']);
     expect(r.code).toBe(0);

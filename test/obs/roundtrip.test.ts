@@ -177,9 +177,24 @@ ${rows.join('\n')}
     const file = write(dir, 'tau.csv', 'id,AV,AV_err,tau(H2O(s)),tau(H2O(s))_err\nt1,10,1,0.4,0.04\n');
     const set = loadObservations(section({ file }), dir);
     const m = set.sightlines[0].columns['H2O(s)'];
-    expect(m.value).toBeCloseTo(2e15, 0);
-    expect(m.errLo).toBeCloseTo(2e14, -1);
+    expect(m.value).toBe(0.4 / 2.0e-16);
+    expect(m.value / 2e15).toBeCloseTo(1, 14);
+    expect(m.errLo).toBe(0.04 / 2.0e-16);
     expect(m.fromTau).toMatchObject({ tauInt: 0.4, tauIntErr: 0.04, band: 'H2O-3.0um', bandStrength: 2.0e-16 });
+  });
+
+  it('a YAML species with a symmetric error in one sightline and asymmetric errors in another', () => {
+    const file = write(dir, 'mixed.yaml', stringify({ sightlines: [
+      { id: 'a', av: 5, columns: { 'CO(s)': { value: 1e17, error: 1e16 } } },
+      { id: 'b', av: 5, columns: { 'CO(s)': { value: 2e17, error_lo: 2e16, error_hi: 3e16 } } },
+      { id: 'c', av: 5, columns: { 'CO(s)': '<5e16' } },
+    ] }));
+    const set = loadObservations(section({ file }), dir);
+    expect(set.sightlines.map((s) => s.columns['CO(s)'])).toEqual([
+      { kind: 'detection', value: 1e17, errLo: 1e16, errHi: 1e16 },
+      { kind: 'detection', value: 2e17, errLo: 2e16, errHi: 3e16 },
+      { kind: 'upper', value: 5e16 },
+    ]);
   });
 
   it('A_K converted to A_V with A_K/A_V = 0.112 (Rieke & Lebofsky 1985)', () => {
