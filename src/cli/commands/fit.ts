@@ -44,18 +44,19 @@ function intervalText(fit: SightlineFit, parameter: string, best: number): strin
 }
 
 /** The printed summary: best fits with 68.3% intervals, joint fits, warnings, cautions. */
-export function formatFitSummary(result: FitStageResult, output: FitStageOutput, maxRows = DEFAULT_ROWS): string {
+export function formatFitSummary(result: FitStageResult, output: FitStageOutput, maxRows = DEFAULT_ROWS, held: Readonly<Record<string, Readonly<Record<string, number>>>> = {}): string {
   const out: string[] = [];
-  const heldEverywhere = result.fits.length > 0 ? result.fittedParameters.filter((p) => result.fits.every((f) => p in f.heldParameters)) : [];
+  const heldSets = Object.values(held);
+  const heldEverywhere = heldSets.length > 0 ? result.fittedParameters.filter((p) => heldSets.every((h) => p in h)) : [];
   const fitted = result.fittedParameters.filter((p) => !heldEverywhere.includes(p));
   const levels = result.levels.map((l) => `${(l.level * 100).toFixed(1)}% (Delta chi2 ${l.deltaChi2.toFixed(2)})`).join(', ');
-  const held = heldEverywhere.length > 0 ? `; held at each sightline's own value: ${heldEverywhere.join(', ')}` : '';
-  out.push(`${result.nCandidates} candidates; fitted parameters: ${fitted.join(', ')}${held}; regions for ${result.levels[0].parametersOfInterest} parameters of interest at ${levels}; model floor ${result.modelSigmaDex} dex.`);
+  const heldText = heldEverywhere.length > 0 ? `; held at each sightline's own value: ${heldEverywhere.join(', ')}` : '';
+  out.push(`${result.nCandidates} candidates; fitted parameters: ${fitted.join(', ')}${heldText}; regions for ${result.levels[0].parametersOfInterest} parameters of interest at ${levels}; model floor ${result.modelSigmaDex} dex.`);
   if (output.map) {
     const m = output.map;
     out.push(`Map of ${m.nx} x ${m.ny} pixels: ${m.fittedPixels} fitted. Images of best density, best age, chi2, p-value and ${(m.level.level * 100).toFixed(1)}% interval widths are in fit/map_*.fits and fit/map.json.`);
   } else {
-    const others = result.fittedParameters.filter((p) => p !== 'density' && p !== 'age_yr');
+    const others = fitted.filter((p) => p !== 'density' && p !== 'age_yr');
     const header = ['sightline', 'density (cm-3)', 'age (yr)', ...others, 'chi2/dof', 'p', 'agree'];
     const shown = result.fits.slice(0, maxRows);
     const rows = shown.map((f) => [
@@ -100,6 +101,8 @@ function writeText(outDir: string, rel: string, data: string | Uint8Array): void
 
 export interface FitCommandResult {
   output: FitStageOutput;
+  /** Grid parameters held per sightline (model A_V tied to the sightlines). */
+  held: Record<string, Record<string, number>>;
   outDir: string;
   written: string[];
 }
@@ -134,12 +137,13 @@ export async function runFitCommand(pipelineFile: string): Promise<FitCommandRes
     if (q.denominator) species.add(q.denominator);
   }
   const table = loadCandidates(storeFile, [...species].sort());
+  const held = heldParameters(pipeline, observations) ?? {};
   const output = runFitStage({
     table,
     section: sections.fit,
     observations,
     quantities,
-    held: heldParameters(pipeline, observations),
+    held,
     source: { file: pipeline.file, lineOf: pipeline.yaml.lineOf },
   });
   const written: string[] = [];
@@ -156,7 +160,7 @@ export async function runFitCommand(pipelineFile: string): Promise<FitCommandRes
       written.push(rel);
     }
   }
-  return { output, outDir, written: written.sort() };
+  return { output, held, outDir, written: written.sort() };
 }
 
 export function register(program: Command, ctx: CommandContext): void {
@@ -170,8 +174,8 @@ export function register(program: Command, ctx: CommandContext): void {
       return n;
     })
     .action(async (file: string, opts: Options) => {
-      const { output, outDir, written } = await runFitCommand(file);
-      ctx.stdout.write(`${formatFitSummary(output.result, output, opts.rows ?? DEFAULT_ROWS)}\n\n`);
+      const { output, held, outDir, written } = await runFitCommand(file);
+      ctx.stdout.write(`${formatFitSummary(output.result, output, opts.rows ?? DEFAULT_ROWS, held)}\n\n`);
       const rel = relative(process.cwd(), outDir) || '.';
       ctx.stdout.write(`written under ${rel}: ${written.join(', ')}\n`);
     });
