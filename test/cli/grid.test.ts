@@ -84,6 +84,8 @@ describe('hoarfrost grid in a child process', () => {
     expect(status.code).toBe(0);
     expect(status.stdout).toMatch(new RegExp(`done\\s+${survivors.length}\\n`));
     expect(status.stdout).toMatch(new RegExp(`missing\\s+${plan.points.length - survivors.length}\\n`));
+    const json = JSON.parse(hoarfrost(['grid', file, '--status', '--json'], dir).stdout) as Record<string, unknown>;
+    expect(json).toMatchObject({ points: 300, done: survivors.length, failed: 0, missing: 300 - survivors.length, stale: 0, gridHash: plan.gridHash });
 
     const rerun = hoarfrost(['grid', file, '--workers', '2'], dir);
     expect(rerun.code).toBe(0);

@@ -30,8 +30,9 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--workers <n>', 'worker threads (default: one per core)', parseWorkers)
     .option('--shard <K/N>', 'compute only shard K of N (1-based) into its own store, for batch systems')
     .option('--status', 'report done, failed (by reason), missing and stale models; compute nothing')
+    .option('--json', 'with --status: print the counts as JSON')
     .option('--retry-failed', 'recompute models that failed before')
-    .action(async (file: string, opts: { workers?: number; shard?: string; status?: boolean; retryFailed?: boolean }) => {
+    .action(async (file: string, opts: { workers?: number; shard?: string; status?: boolean; json?: boolean; retryFailed?: boolean }) => {
       const { loadPipeline } = await import('../../config/pipeline.ts');
       const { parseShard, shardLabel } = await import('../../grid/shard.ts');
       const { mainStoreFile, shardStoreFile, shardPoints } = await import('../../grid/plan.ts');
@@ -45,6 +46,10 @@ export function register(program: Command, ctx: CommandContext): void {
         const { findShardStores } = await import('../../grid/merge.ts');
         const storeFile = shard ? shardStoreFile(plan, shard) : mainStoreFile(plan);
         const s = gridStatus(storeFile, shardPoints(plan.points, shard));
+        if (opts.json) {
+          ctx.stdout.write(JSON.stringify({ pipeline: pipeline.file, shard: shard ? shardLabel(shard) : null, gridHash: plan.gridHash, ...s }, null, 2) + '\n');
+          return;
+        }
         const out = [
           `grid of ${pipeline.file}${shard ? `, shard ${shardLabel(shard)}` : ''}: ${s.points} points (${plan.grid.varied.length > 0 ? `varied: ${plan.grid.varied.join(', ')}` : 'a single point'}${plan.grid.excluded > 0 ? `; ${plan.grid.excluded} excluded` : ''})`,
           `store: ${storeFile}${s.storeExists ? '' : ' (not created yet)'}`,
