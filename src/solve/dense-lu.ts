@@ -55,28 +55,28 @@ export class DenseLU {
     return true;
   }
 
-  /** Solves A x = b in place (b becomes x), using the last factorisation. */
-  solve(b: Float64Array): void {
+  /** Solves A x = b in place (b becomes x), using the last factorisation; x occupies b[offset .. offset + n). */
+  solve(b: Float64Array, offset = 0): void {
     const { n, lu, pivotRow } = this;
     for (let k = 0; k < n; k++) {
       const p = pivotRow[k];
       if (p !== k) {
-        const tmp = b[k];
-        b[k] = b[p];
-        b[p] = tmp;
+        const tmp = b[offset + k];
+        b[offset + k] = b[offset + p];
+        b[offset + p] = tmp;
       }
     }
     for (let i = 1; i < n; i++) {
       const ri = i * n;
-      let s = b[i];
-      for (let j = 0; j < i; j++) s -= lu[ri + j] * b[j];
-      b[i] = s;
+      let s = b[offset + i];
+      for (let j = 0; j < i; j++) s -= lu[ri + j] * b[offset + j];
+      b[offset + i] = s;
     }
     for (let i = n - 1; i >= 0; i--) {
       const ri = i * n;
-      let s = b[i];
-      for (let j = i + 1; j < n; j++) s -= lu[ri + j] * b[j];
-      b[i] = s / lu[ri + i];
+      let s = b[offset + i];
+      for (let j = i + 1; j < n; j++) s -= lu[ri + j] * b[offset + j];
+      b[offset + i] = s / lu[ri + i];
     }
   }
 }

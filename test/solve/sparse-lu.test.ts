@@ -151,6 +151,30 @@ describe('sparse LU', () => {
     expect(relativeResidual(third, x3, b)).toBeLessThan(1e-12);
   });
 
+  it('gives the same solution with and without the dense tail, also after refactorisation', () => {
+    // Fairly full rows: the cost model hands the last steps to the dense LU.
+    const m = randomSparse(200, 25, 41, 'strong');
+    const random = seededRandom(42);
+    const b = Float64Array.from({ length: m.n }, () => 2 * random() - 1);
+    const withTail = new SparseLU(m.n, m.pattern);
+    const withoutTail = new SparseLU(m.n, m.pattern, { denseTail: false });
+    for (const values of [m.values, m.values.map((v) => v * (1 + 0.2 * (random() - 0.5)))]) {
+      expect(withTail.factor(values)).toBe(true);
+      expect(withoutTail.factor(values)).toBe(true);
+      const x1 = Float64Array.from(b);
+      const x2 = Float64Array.from(b);
+      withTail.solve(x1);
+      withoutTail.solve(x2);
+      expect(relativeResidual({ ...m, values }, x1, b)).toBeLessThan(1e-12);
+      expect(relativeResidual({ ...m, values }, x2, b)).toBeLessThan(1e-12);
+      expect(maxRelativeDifference(x1, x2)).toBeLessThan(1e-10);
+    }
+    expect(withTail.stats.denseTail).toBeGreaterThan(0);
+    expect(withTail.stats.denseTail).toBeLessThan(m.n);
+    expect(withoutTail.stats.denseTail).toBe(0);
+    expect(withTail.stats.refactorizations).toBe(1);
+  });
+
   it('reports a singular matrix instead of dividing by zero', () => {
     // Rows 0 and 1 are equal.
     const pattern = patternFromRows([new Set([0, 1]), new Set([0, 1]), new Set([2])]);
