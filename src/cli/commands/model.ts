@@ -5,10 +5,13 @@
  * (CSV, JSON), a figure of chosen species (SVG and its Vega-Lite spec), and a
  * summary on the terminal.
  */
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
 import type { Command } from 'commander';
 import type { TopLevelSpec } from 'vega-lite';
 import type { CommandContext } from '../main.ts';
-import type { PhysicalConditions } from '../../config/conditions.ts';
+import { CONDITION_NAMES, checkConditionValue, defaultConditions, isConditionName, type PhysicalConditions } from '../../config/conditions.ts';
+import { UserError, UserErrors } from '../../config/errors.ts';
 import type { Pipeline } from '../../config/pipeline.ts';
 import type { ModelResult } from '../../model/types.ts';
 import { logAxis } from '../../report/figures/axes.ts';
@@ -47,24 +50,21 @@ export function register(program: Command, ctx: CommandContext): void {
 }
 
 async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandContext): Promise<void> {
-  const { mkdirSync, writeFileSync } = await import('node:fs');
-  const { join, resolve } = await import('node:path');
   const { loadPipeline } = await import('../../config/pipeline.ts');
   const { loadNetwork } = await import('../../chem/network.ts');
   const { compile } = await import('../../chem/system.ts');
   const { YEAR_SECONDS } = await import('../../chem/constants.ts');
   const { loadInitialComposition, outputTimesYr, runModel, initialState } = await import('../../model/run.ts');
-  const { UserError } = await import('../../config/errors.ts');
 
   const pipeline = loadPipeline(file);
   const cfg = pipeline.config;
-  const conditions = await resolveConditions(pipeline, opts.set ?? []);
+  const conditions = resolveConditions(pipeline, opts.set ?? []);
   const network = loadNetwork(pipeline.resolvePath(cfg.network));
   const initialNotes: string[] = [];
   const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes);
   const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
   const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation };
-  const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name), UserError);
+  const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
 
   const input = {
@@ -80,13 +80,17 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   if (opts.emitSystem) {
     const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
     const emitted = system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
-    writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n', writeFileSync, UserError);
+    writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n');
   }
   const result = runModel(input);
 
-  mkdirSync(outDir, { recursive: true });
+  try {
+    mkdirSync(outDir, { recursive: true });
+  } catch (e) {
+    throw new UserError(`cannot create the output folder: ${(e as Error).message}. Choose another with --out.`, { file: outDir });
+  }
   const reached = reachedRows(result);
-  writeOutput(join(outDir, 'abundances.csv'), abundanceCsv(result, reached), writeFileSync, UserError);
+  writeOutput(join(outDir, 'abundances.csv'), abundanceCsv(result, reached));
   const json = {
     network: { name: network.name, file: network.file, content_hash: network.contentHash },
     conditions,
@@ -104,13 +108,13 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     notes: [...initialNotes, ...result.clampNotes, ...(result.skippedNotes ?? [])],
     wall_ms: result.wallMs,
   };
-  writeOutput(join(outDir, 'abundances.json'), JSON.stringify(json, null, 1) + '\n', writeFileSync, UserError);
+  writeOutput(join(outDir, 'abundances.json'), JSON.stringify(json, null, 1) + '\n');
 
   const spec = figureSpec(result, reached, figureSpecies, `${network.name}: n_H = ${conditions.density} cm⁻³, T = ${conditions.gas_temperature} K, A_V = ${conditions.visual_extinction} mag`);
   const { renderSvg } = await import('../../report/render.ts');
   const rendered = await renderSvg(spec);
-  writeOutput(join(outDir, 'abundances.vl.json'), JSON.stringify(spec, null, 1) + '\n', writeFileSync, UserError);
-  writeOutput(join(outDir, 'abundances.svg'), rendered.svg, writeFileSync, UserError);
+  writeOutput(join(outDir, 'abundances.vl.json'), JSON.stringify(spec, null, 1) + '\n');
+  writeOutput(join(outDir, 'abundances.svg'), rendered.svg);
 
   ctx.stdout.write(summary(result, reached, network.name, outDir, opts.emitSystem, initialNotes));
   ctx.setExitCode(result.status === 'ok' ? 0 : 1);
@@ -121,11 +125,9 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
  * conditions, then --set (which may also stand in for a grid axis of the
  * pipeline); every value checked.
  */
-async function resolveConditions(pipeline: Pipeline, sets: string[]): Promise<PhysicalConditions> {
-  const { CONDITION_NAMES, checkConditionValue, defaultConditions, isConditionName } = await import('../../config/conditions.ts');
-  const { UserError, UserErrors } = await import('../../config/errors.ts');
+function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditions {
   const conditions = defaultConditions();
-  const problems: InstanceType<typeof UserError>[] = [];
+  const problems: UserError[] = [];
   const known = `Known conditions: ${CONDITION_NAMES.join(', ')}.`;
 
   const overrides = new Map<string, number>();
@@ -194,7 +196,7 @@ async function resolveConditions(pipeline: Pipeline, sets: string[]): Promise<Ph
   return conditions;
 }
 
-function chooseSpecies(list: string | undefined, names: string[], UserErrorClass: typeof import('../../config/errors.ts').UserError): string[] {
+function chooseSpecies(list: string | undefined, names: string[]): string[] {
   if (list === undefined) {
     const present = DEFAULT_FIGURE_SPECIES.filter((s) => names.includes(s));
     return present.length > 0 ? present : names.slice(0, SUMMARY_COUNT);
@@ -204,18 +206,18 @@ function chooseSpecies(list: string | undefined, names: string[], UserErrorClass
     .map((s) => s.trim())
     .filter((s) => s !== '');
   const missing = wanted.filter((s) => !names.includes(s));
-  if (wanted.length === 0) throw new UserErrorClass('--species needs at least one species name, e.g. --species CO,H2O(s).', { field: '--species' });
+  if (wanted.length === 0) throw new UserError('--species needs at least one species name, e.g. --species CO,H2O(s).', { field: '--species' });
   if (missing.length > 0) {
-    throw new UserErrorClass(`the network has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s)).`, { field: '--species' });
+    throw new UserError(`the network has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s)).`, { field: '--species' });
   }
   return wanted;
 }
 
-function writeOutput(path: string, text: string, write: typeof import('node:fs').writeFileSync, UserErrorClass: typeof import('../../config/errors.ts').UserError): void {
+function writeOutput(path: string, text: string): void {
   try {
-    write(path, text);
+    writeFileSync(path, text);
   } catch (e) {
-    throw new UserErrorClass(`cannot write output: ${(e as Error).message}. Check that the folder exists and is writable.`, { file: path });
+    throw new UserError(`cannot write output: ${(e as Error).message}. Check that the folder exists and is writable.`, { file: path });
   }
 }
 
