@@ -52,3 +52,24 @@ export function parseFlag(cell: Cell): 'detection' | 'upper' | 'lower' | 'bad' {
 export function describeCell(cell: Cell): string {
   return typeof cell === 'string' ? `'${cell}'` : String(cell);
 }
+
+/**
+ * An angle in degrees from a cell: a number of degrees, or sexagesimal text
+ * (`04:40:24.5`, `04 40 24.5`, `04h40m24.5s`; right ascension in hours,
+ * declination in degrees `+25:49:01`). Undefined when the text is neither.
+ */
+export function parseAngle(cell: Cell, axis: 'ra' | 'dec'): number | undefined {
+  if (typeof cell === 'number') return cell;
+  if (typeof cell !== 'string') return undefined;
+  const t = cell.trim();
+  const plain = parseNumberText(t);
+  if (plain !== undefined) return plain;
+  const m = /^([+-]?)(\d{1,3})[\s:hHdD\u00b0]+(\d{1,2})[\s:mM']+(\d{1,2}(?:\.\d*)?)\s*[sS"]?$/.exec(t);
+  if (!m) return undefined;
+  const [, sign, a, b, c] = m;
+  const minutes = Number(b);
+  const seconds = Number(c);
+  if (minutes >= 60 || seconds >= 60) return undefined;
+  const value = (Number(a) + minutes / 60 + seconds / 3600) * (axis === 'ra' ? 15 : 1);
+  return sign === '-' ? -value : value;
+}

@@ -44,7 +44,10 @@ export function readFitsObservations(file: string, hdu: string | number | undefi
   const images = f.hdus.filter(isImage);
   const tables = f.hdus.filter((h) => h.kind === 'bintable');
   if (images.length === 0) {
-    if (tables.length === 0) throw new UserError('the FITS file holds neither a binary table nor 2-D images to read observations from.', { file });
+    if (tables.length === 0) {
+      const ascii = f.hdus.some((h) => h.kind === 'table');
+      throw new UserError(`the FITS file holds neither a binary table nor 2-D images to read observations from${ascii ? ' (ASCII TABLE extensions are not read: save the table as a BINTABLE)' : ''}.`, { file });
+    }
     const t = tableOf(f, tables[0]);
     if (tables.length > 1) t.warnings!.push(`${file}: ${tables.length} binary tables; only ${label(tables[0])} is read (choose another with 'hdu').`);
     return t;

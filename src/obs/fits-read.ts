@@ -26,6 +26,7 @@
  */
 import { createRequire } from 'node:module';
 import { readFileSync } from 'node:fs';
+import { gunzipSync } from 'node:zlib';
 import { UserError } from '../config/errors.ts';
 
 const FITS_BLOCK = 2880;
@@ -175,11 +176,14 @@ export function readFits(file: string, bytes?: Uint8Array): FitsFile {
   let data: Uint8Array;
   try {
     // A plain Uint8Array view: Buffer#slice shares memory, Uint8Array#slice copies.
-    const b = bytes ?? readFileSync(file);
+    let b: Uint8Array = bytes ?? readFileSync(file);
+    // gzip-compressed FITS (.fits.gz, common in archives): the gzip magic bytes 1f 8b (RFC 1952).
+    if (b[0] === 0x1f && b[1] === 0x8b) b = gunzipSync(b);
     data = new Uint8Array(b.buffer, b.byteOffset, b.byteLength);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new UserError(code === 'ENOENT' ? 'FITS file not found. Check the path.' : `cannot read the FITS file: ${(e as Error).message}`, { file });
+    const why = code === 'ENOENT' ? 'FITS file not found. Check the path.' : code === 'Z_BUF_ERROR' || code === 'Z_DATA_ERROR' ? 'the gzip-compressed FITS file is damaged or truncated; copy it again.' : `cannot read the FITS file: ${(e as Error).message}`;
+    throw new UserError(why, { file });
   }
   const warnings: string[] = [];
   if (data.length === 0) throw new UserError('the FITS file is empty.', { file });

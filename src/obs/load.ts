@@ -30,16 +30,17 @@ const EXTENSIONS: Record<string, ObservationFormat> = {
   '.fts': 'fits',
 };
 
-/** Reader for a file name: `.csv`, `.tsv`/`.tab`, `.yaml`/`.yml`, `.xml`/`.vot`, `.fits`/`.fit`/`.fts`. */
+/** Reader for a file name: `.csv`, `.tsv`/`.tab`, `.yaml`/`.yml`, `.xml`/`.vot`, `.fits`/`.fit`/`.fts` (also gzip-compressed, `.fits.gz`). */
 export function formatOf(file: string): ObservationFormat | undefined {
-  const lower = file.toLowerCase();
+  const lower = file.toLowerCase().replace(/\.gz$/, '');
   const ext = lower.endsWith('.vot.xml') ? '.vot' : extname(lower);
+  if (lower !== file.toLowerCase() && EXTENSIONS[ext] !== 'fits') return undefined;
   return EXTENSIONS[ext];
 }
 
 /** `<data file without extension>.columns.yaml`, the sidecar mapping looked for beside a table. */
 export function sidecarPath(dataFile: string): string {
-  const ext = extname(dataFile);
+  const ext = /\.fits?\.gz$|\.fts\.gz$/i.exec(dataFile)?.[0] ?? extname(dataFile);
   return join(dirname(dataFile), `${basename(dataFile, ext)}.columns.yaml`);
 }
 

@@ -8,7 +8,7 @@ import { erf } from 'simple-statistics';
 import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
 import type { ColumnMapping, ObservationFormat, SpeciesColumns } from '../config/sections/observations.ts';
 import { parseSpecies } from '../chem/species.ts';
-import { parseCell, parseFlag, describeCell, type Cell } from './cells.ts';
+import { parseAngle, parseCell, parseFlag, describeCell, type Cell } from './cells.ts';
 import { parseUnit, CANONICAL_UNIT, type Dimension } from './units.ts';
 import type { BandTable } from './bands.ts';
 import type { Measurement, Sightline, MapGeometry, ObservationSet } from './types.ts';
@@ -380,10 +380,13 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
         if (akErr !== undefined) s.avErr = akErr / opts.akPerAv;
       }
     }
-    const ra = plainNumber(plan.ra, 'a right ascension');
-    const dec = plainNumber(plan.dec, 'a declination');
-    if (ra !== undefined) s.ra = ra;
-    if (dec !== undefined) s.dec = dec;
+    for (const [col, axis] of [[plan.ra, 'ra'], [plan.dec, 'dec']] as const) {
+      const raw = cellAt(col, r);
+      if (col === undefined || isBlank(raw)) continue;
+      const deg = parseAngle(raw, axis);
+      if (deg === undefined) fail(col, `cannot read ${describeCell(raw)} as ${axis === 'ra' ? 'a right ascension' : 'a declination'}; expected degrees (70.1021) or sexagesimal text (${axis === 'ra' ? '04:40:24.5, in hours' : '+25:48:51, in degrees'}).`);
+      else s[axis] = deg;
+    }
 
     for (const sp of plan.species) {
       const valueCol = (sp.value ?? sp.tau)!;

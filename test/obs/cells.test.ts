@@ -4,7 +4,7 @@
  * everyday tables (`cm^-2`, `/cm2`, `1e17 cm-2`); 1 m^-2 = 1e-4 cm^-2.
  */
 import { describe, expect, it } from 'vitest';
-import { parseCell, parseFlag } from '../../src/obs/cells.ts';
+import { parseAngle, parseCell, parseFlag } from '../../src/obs/cells.ts';
 import { parseUnit } from '../../src/obs/units.ts';
 
 describe('cells', () => {
@@ -65,5 +65,21 @@ describe('units', () => {
     expect(parseUnit('Jy')).toBeUndefined();
     expect(parseUnit('km/s')).toBeUndefined();
     expect(parseUnit('g cm-2')).toBeUndefined();
+  });
+});
+
+describe('angles', () => {
+  it('degrees or sexagesimal (RA in hours: 1 h = 15 deg; Dec in degrees)', () => {
+    // 04:40:24.0 = 4 + 40/60 + 24/3600 h = 4.673333 h = 70.1 deg
+    expect(parseAngle('04:40:24.0', 'ra')).toBeCloseTo(70.1, 10);
+    expect(parseAngle('04h40m24s', 'ra')).toBeCloseTo(70.1, 10);
+    expect(parseAngle('04 40 24', 'ra')).toBeCloseTo(70.1, 10);
+    // -25:48:54 = -(25 + 48/60 + 54/3600) = -25.815 deg
+    expect(parseAngle('-25:48:54', 'dec')).toBeCloseTo(-25.815, 10);
+    expect(parseAngle('+25d48m54s', 'dec')).toBeCloseTo(25.815, 10);
+    expect(parseAngle('70.1021', 'ra')).toBe(70.1021);
+    expect(parseAngle(12.5, 'dec')).toBe(12.5);
+    expect(parseAngle('04:75:00', 'ra')).toBeUndefined();
+    expect(parseAngle('north', 'dec')).toBeUndefined();
   });
 });

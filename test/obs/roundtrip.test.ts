@@ -5,9 +5,10 @@
  * require every value back to the last bit (Object.is).
  */
 import { describe, expect, it } from 'vitest';
+import { gzipSync } from 'node:zlib';
 import { stringify } from 'yaml';
 import { loadObservations } from '../../src/obs/load.ts';
-import { writeFits, writeFitsImages, writeFitsTable } from '../../src/report/fits.ts';
+import { encodeFits, writeFits, writeFitsImages, writeFitsTable } from '../../src/report/fits.ts';
 import type { ObservationSet } from '../../src/obs/types.ts';
 import { fullPrecisionValues, scratch, section, write } from './helpers.ts';
 
@@ -170,6 +171,22 @@ ${rows.join('\n')}
     expect(holed.sightlines).toHaveLength(N - 1);
     expect(holed.sightlines.find((s) => s.id === '2,1')).toBeUndefined();
     expect(holed.warnings.join('\n')).toMatch(/1 pixel has an extinction but no column density/);
+  });
+
+  it('gzip-compressed FITS (.fits.gz) reads the same, and sexagesimal coordinates are read as degrees', () => {
+    const bytes = encodeFits([{ type: 'table', columns: [
+      { name: 'id', data: ['g1'] },
+      { name: 'RA', data: ['04:40:24.0'] },
+      { name: 'DEC', data: ['+25:48:54'] },
+      { name: 'AV', data: new Float64Array([av[0]]), unit: 'mag' },
+      { name: 'N(CO(s))', data: new Float64Array([co[0]]), unit: 'cm-2' },
+      { name: 'N(CO(s))_err', data: new Float64Array([coLo[0]]), unit: 'cm-2' },
+    ] }]);
+    const file = write(dir, 'packed.fits.gz', gzipSync(bytes));
+    const s = loadObservations(section({ file }), dir).sightlines[0];
+    expect(Object.is(s.av, av[0]) && Object.is(s.columns['CO(s)'].value, co[0])).toBe(true);
+    expect(s.ra).toBeCloseTo(70.1, 10);
+    expect(s.dec).toBeCloseTo(25.815, 10);
   });
 
   it('integrated optical depth with the table band strength (memory): N = tau_int / A', () => {
