@@ -253,6 +253,11 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     jointProfiles.push(out.profiles);
   });
 
+  for (const [x, y] of options.pairs) {
+    const dropped = vectors.filter((v) => x in v.held || y in v.held).length;
+    const heldNames = [x, y].filter((n) => vectors.some((v) => n in v.held));
+    if (dropped > 0) warnings.push(`no 2-D profile of (${x}, ${y}) for ${dropped} sightline(s): ${heldNames.join(' and ')} is held at each sightline's own value there, not fitted.`);
+  }
   const tooGood = fits.filter((f) => f.pValue > SUSPICIOUSLY_GOOD_P && f.dof > 1).length;
   if (tooGood > 0) {
     warnings.push(

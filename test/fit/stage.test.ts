@@ -152,6 +152,9 @@ describe('ties and held parameters', () => {
     expect(out.heldParameters).toEqual({ uv_field: 0.5 });
     expect(out.fittedParameters).toBe(2);
     expect(out.intervals.some((iv) => iv.parameter === 'uv_field')).toBe(false);
+    const paired = runFitStage({ table, section: parse({ pairs: [['uv_field', 'age_yr'], ['density', 'age_yr']] }), observations: observationSet(['h']), quantities: q, held: { h: { uv_field: 0.5 } } });
+    expect(paired.profiles.sightlines[0].pairs.map((p) => p.x)).toEqual(['density']);
+    expect(paired.result.warnings.some((w) => w.includes('no 2-D profile of (uv_field, age_yr) for 1 sightline(s): uv_field is held'))).toBe(true);
     expect(() => runFitStage({ table, section: parse(), observations: observationSet(['h']), quantities: q, held: { h: { uv_field: 7 } } })).toThrow(/no models? at|has none there/);
   });
 });
