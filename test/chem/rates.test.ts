@@ -74,6 +74,10 @@ describe('gas-grain laws', () => {
     const flux = 1e8 * Math.exp(-20) + 1e4;
     expect(ratio(r.k, (1e-3 * flux) / (4 * c.site_density))).toBeCloseTo(1, 10);
   });
+  it('scales every photodesorption yield with the condition photodesorption_yield (default 1e-3, memory: Oberg et al. 2009 order)', () => {
+    const doubled = computeRates(net, { ...c, photodesorption_yield: 2e-3 }, DEFAULT_GRAIN_OPTIONS);
+    expect(byIndex(doubled, 4)!.k / byIndex(surface, 4)!.k).toBeCloseTo(2, 12);
+  });
   it('splits a surface channel with a reactive-desorption partner into 1 - f and f', () => {
     const hopH = hoppingRate(vibrationFrequency(c.site_density, 450, 1.008), 0.5 * 450, 10);
     const hopO = hoppingRate(vibrationFrequency(c.site_density, 800, 15.999), 0.5 * 800, 10);
