@@ -12,6 +12,7 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import type { TopLevelSpec } from 'vega-lite';
 import { escapeHtml, inlineScriptSource, jsonForScript } from './escape.ts';
+import { numberHtml } from './numbers.ts';
 import type { BuiltFigure } from './figures/builder.ts';
 import { FIGURE_BUILDERS } from './figures/index.ts';
 import type { ParameterCell, SummaryTable } from './tables.ts';
@@ -49,21 +50,10 @@ export interface HtmlInput {
   tableLinks: { label: string; href: string }[];
 }
 
-/** A number for HTML with `digits` significant figures, in x×10<sup>n</sup> form outside 0.01-1000. */
-export function htmlNumber(x: number | null, digits = 2): string {
-  if (x === null || !Number.isFinite(x)) return '–';
-  if (x === 0) return '0';
-  const e = Math.floor(Math.log10(Math.abs(x)));
-  if (e >= -2 && e < 3) return String(Number(x.toPrecision(digits)));
-  const [mantissa, exponent] = x.toExponential(digits - 1).split('e');
-  const n = Number(exponent);
-  return `${mantissa}×10<sup>${n < 0 ? '−' : ''}${Math.abs(n)}</sup>`;
-}
-
 function intervalCell(c: ParameterCell): string {
   const edge = c.loAtEdge || c.hiAtEdge ? ' <span class="edge" title="the interval reaches the edge of the model grid">‡</span>' : '';
-  const range = c.lo === null || c.hi === null ? '' : ` <span class="range">(${htmlNumber(c.lo)}–${htmlNumber(c.hi)})</span>`;
-  return `<td>${htmlNumber(c.best)}${range}${edge}</td>`;
+  const range = c.lo === null || c.hi === null ? '' : ` <span class="range">(${numberHtml(c.lo)}–${numberHtml(c.hi)})</span>`;
+  return `<td>${numberHtml(c.best)}${range}${edge}</td>`;
 }
 
 function summaryHtml(table: SummaryTable): string {
@@ -76,7 +66,7 @@ function summaryHtml(table: SummaryTable): string {
       `<td>${r.av === null ? '–' : escapeHtml(String(Number(r.av.toPrecision(3))))}</td>`,
       ...r.parameters.map(intervalCell),
       `<td>${escapeHtml(`${Number(r.chi2.toPrecision(3))}/${r.dof}`)}</td>`,
-      `<td${r.pValue < 0.01 ? ' class="poor"' : ''}>${htmlNumber(r.pValue)}</td>`,
+      `<td${r.pValue < 0.01 ? ' class="poor"' : ''}>${numberHtml(r.pValue)}</td>`,
       `<td>${Math.round(r.agreement * 100)}%</td>`,
       `<td class="warnings">${warn}</td>`,
       '</tr>',
@@ -191,7 +181,7 @@ export function reportHtml(h: HtmlInput): string {
 <body data-ready="false">
 <header>
 <h1>${escapeHtml(title)}</h1>
-<p>${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${htmlNumber(v, 3)}`).join(', ')}.` : ''}</p>
+<p>${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${numberHtml(v, 3)}`).join(', ')}.` : ''}</p>
 <p class="files">Tables: ${linksHtml(h.tableLinks)}</p>
 <p id="embed-error" hidden></p>
 </header>

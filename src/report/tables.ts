@@ -7,6 +7,7 @@
  */
 import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
 import { escapeLatex } from './escape.ts';
+import { numberLatex } from './numbers.ts';
 import type { ReportInput } from './types.ts';
 
 export interface ParameterCell {
@@ -127,25 +128,10 @@ const LATEX_HEADS: Record<string, [string, string]> = {
   reactive_desorption: ['$f_{\\rm RD}$', ''],
 };
 
-/** A number for LaTeX math with `digits` significant figures: 0.45, 12, 3.2\times10^{4}. */
-export function latexNumber(x: number, digits = 2): string {
-  if (!Number.isFinite(x)) return '\\nodata';
-  if (x === 0) return '0';
-  const e = Math.floor(Math.log10(Math.abs(x)));
-  if (e >= -2 && e < 3) return String(Number(x.toPrecision(digits)));
-  let m = Number((x / 10 ** e).toPrecision(digits));
-  let exp = e;
-  if (Math.abs(m) >= 10) {
-    m /= 10;
-    exp += 1;
-  }
-  return `${m}\\times10^{${exp}}`;
-}
-
 function latexCell(c: ParameterCell): string {
   const note = c.loAtEdge || c.hiAtEdge ? '\\tablenotemark{a}' : '';
-  if (c.lo === null || c.hi === null) return `$${latexNumber(c.best)}$${note}`;
-  return `$${latexNumber(c.best)}$ ($${latexNumber(c.lo)}$--$${latexNumber(c.hi)}$)${note}`;
+  if (c.lo === null || c.hi === null) return `$${numberLatex(c.best)}$${note}`;
+  return `$${numberLatex(c.best)}$ ($${numberLatex(c.lo)}$--$${numberLatex(c.hi)}$)${note}`;
 }
 
 export function summaryLatex(table: SummaryTable, caption: string | undefined): string {
@@ -163,7 +149,7 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
       r.av === null ? '\\nodata' : `${Number(r.av.toPrecision(3))}`,
       ...r.parameters.map(latexCell),
       `${Number(r.chi2.toPrecision(3))}/${r.dof}`,
-      `$${latexNumber(r.pValue)}$${poor}`,
+      `$${numberLatex(r.pValue)}$${poor}`,
     ];
     return cells.join(' & ');
   });

@@ -55,7 +55,7 @@ async function loadReport(context: BrowserContext, html: string): Promise<PageRu
     if (!r.url().startsWith('file:')) requests.push(r.url());
   });
   await page.goto(pathToFileURL(html).href);
-  await page.waitForFunction(() => document.body.getAttribute('data-ready') !== 'false', null, { timeout: READY_TIMEOUT_MS });
+  await page.waitForFunction("document.body.getAttribute('data-ready') !== 'false'", null, { timeout: READY_TIMEOUT_MS });
   const ready = await page.getAttribute('body', 'data-ready');
   const svgs = await page.locator('.vis svg').count();
   const marksPerFigure = await page.$$eval('.vis svg', (list) => list.map((svg) => svg.querySelectorAll('g.mark-rect path, g.mark-symbol path, g.mark-line path, g.mark-rule line').length));

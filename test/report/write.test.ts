@@ -17,7 +17,7 @@ import { reportSection } from '../../src/config/sections/report.ts';
 import { writeReport } from '../../src/report/index.ts';
 import { carriedCards } from '../../src/report/maps.ts';
 import { outputPath } from '../../src/report/paths.ts';
-import { latexNumber } from '../../src/report/tables.ts';
+import { numberHtml, numberLatex, numberText } from '../../src/report/numbers.ts';
 import { deltaChi2Threshold } from '../../src/report/thresholds.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
 import { HOSTILE_NAMES, SIGHTLINES, syntheticInput } from './fixture.ts';
@@ -240,10 +240,16 @@ describe('refusing bad requests', () => {
 
 describe('numbers and thresholds', () => {
   it('prints numbers for LaTeX with two significant figures', () => {
-    expect(latexNumber(31622.7)).toBe('3.2\\times10^{4}');
-    expect(latexNumber(0.045)).toBe('0.045');
-    expect(latexNumber(9.96e-5)).toBe('1\\times10^{-4}');
-    expect(latexNumber(Number.NaN)).toBe('\\nodata');
+    expect(numberLatex(31622.7)).toBe('3.2\\times10^{4}');
+    expect(numberLatex(0.045)).toBe('0.045');
+    expect(numberLatex(9.96e-5)).toBe('1.0\\times10^{-4}');
+    expect(numberLatex(1000)).toBe('1.0\\times10^{3}');
+    expect(numberLatex(12)).toBe('12');
+    expect(numberLatex(Number.NaN)).toBe('\\nodata');
+    expect(numberLatex(120)).toBe('120');
+    expect(numberLatex(0.5)).toBe('0.50');
+    expect(numberHtml(3.2e-5)).toBe('3.2×10<sup>−5</sup>');
+    expect(numberText(2.5e5)).toBe('2.5×10⁵');
   });
 
   it('gives the Delta chi^2 thresholds of Avni (1976) / Numerical Recipes section 15.6', () => {

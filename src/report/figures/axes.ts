@@ -2,6 +2,7 @@
  * Axis titles with units, log-or-linear choice and decade labels shared by
  * the figure builders.
  */
+import { decadeText } from '../numbers.ts';
 
 /** Axis properties a log axis gets (merged into a Vega-Lite axis). */
 export interface DecadeAxis {
@@ -66,22 +67,6 @@ export function cellEdges(kind: ScaleKind, values: readonly number[]): number[] 
   return edges.map((e) => fromScale(kind, e));
 }
 
-const SUPERSCRIPT: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };
-
-/** `10⁻⁶` for k = -6. */
-export function decadeLabel(k: number): string {
-  return `10${String(k).replace(/[-0-9]/g, (c) => SUPERSCRIPT[c])}`;
-}
-
-/** A number as text with two significant figures, in m×10ⁿ form outside 0.01 to 1000: `3.0×10⁵`. */
-export function sciText(x: number, digits = 2): string {
-  if (!Number.isFinite(x)) return String(x);
-  const e = x === 0 ? 0 : Math.floor(Math.log10(Math.abs(x)));
-  if (e >= -2 && e < 3) return String(Number(x.toPrecision(digits)));
-  const [mantissa, exponent] = x.toExponential(digits - 1).split('e');
-  return `${mantissa}×${decadeLabel(Number(exponent))}`;
-}
-
 /**
  * Axis properties for a log axis over [lo, hi]: ticks at the decades inside,
  * labelled 10ⁿ (vega's default labels write 0.000001), or nothing special when
@@ -98,7 +83,7 @@ export function logAxis(lo: number, hi: number): DecadeAxis {
     // Parsing `1e-7` gives the double nearest 10^-7; 10 ** -7 can be one ulp off.
     const v = Number(`1e${k}`);
     values.push(v);
-    labels[String(v)] = decadeLabel(k);
+    labels[String(v)] = decadeText(k);
   }
   return { values, labelExpr: `${JSON.stringify(labels)}[datum.value]` };
 }

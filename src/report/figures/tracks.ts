@@ -11,7 +11,8 @@ import type { ObservedQuantity } from '../../obs/types.ts';
 import { slug } from '../escape.ts';
 import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig, figureSize } from '../theme.ts';
 import type { ModelTrack } from '../types.ts';
-import { logAxis, paddedDomain, parameterTitle, sciText } from './axes.ts';
+import { numberText } from '../numbers.ts';
+import { logAxis, paddedDomain, parameterTitle } from './axes.ts';
 import { sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 /** Observations of different quantities are spread over this many dex in time around the best age. */
@@ -91,7 +92,7 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
   const y = { field: 'value', type: 'quantitative' as const, title: yTitle(observed.length > 0 ? observed : tracks.map(() => ({}))), scale: { type: 'log' as const, domain: yDomain, nice: false }, axis: logAxis(yDomain[0], yDomain[1]) };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: `best fit at ${sciText(bestAge)} yr (model ${shortId(fit.best.modelId)})` },
+    title: { text: fit.sightline, subtitle: `best fit at ${numberText(bestAge)} yr (model ${shortId(fit.best.modelId)})` },
     width: plotWidth,
     height: plotHeight,
     config: figureConfig(),
