@@ -60,6 +60,8 @@ const LU_REUSE_RATIO = 0.3;
 const LU_MAX_AGE = 20;
 /** A step increase below this factor is not worth a new factorisation: keep h (CVODE's THRESH). */
 const STEP_INCREASE_THRESHOLD = 1.5;
+/** Largest fall of the carried Newton rate per iteration (CVODE's CRDOWN). */
+const RATE_DECAY = 0.3;
 /** Give up after this many successive Newton failures on one step (CVODE's maxncf). */
 const MAX_NEWTON_FAILURES_PER_STEP = 10;
 /** Give up after this many successive error-test failures on one step. */
@@ -156,6 +158,13 @@ class BdfIntegrator {
   private factoredC = Number.NaN;
   /** Accepted steps since the last factorisation. */
   private factorizationAge = 0;
+  /**
+   * Newton contraction rate carried from step to step (CVODE's crate): it
+   * may fall by at most RATE_DECAY per iteration, and is 1 after any new
+   * factorisation or rejected step, so a first iterate is accepted only
+   * while the iteration has been contracting strongly on this matrix.
+   */
+  private newtonRate = 1;
   private jacobianAge = 0;
   private newtonIterations = 0;
   /** Whether the last Newton failure met a non-finite right-hand side. */
@@ -290,15 +299,17 @@ class BdfIntegrator {
       if (increment !== 1) for (let i = 0; i < n; i++) dy[i] *= increment;
       const dyNorm = rmsNorm(dy, scale, 0, n);
       if (!Number.isFinite(dyNorm)) return false;
-      const rate = k > 0 ? dyNorm / dyNormOld : 0;
+      if (k > 0) this.newtonRate = Math.max(RATE_DECAY * this.newtonRate, dyNorm / dyNormOld);
+      const rate = this.newtonRate;
       if (k > 0 && (rate >= 1 || (rate ** (NEWTON_MAXITER - k) / (1 - rate)) * dyNorm > this.newtonTol)) {
+        this.newtonRate = 1;
         return false;
       }
       for (let i = 0; i < n; i++) {
         yNew[i] += dy[i];
         correction[i] += dy[i];
       }
-      if (dyNorm === 0 || (k > 0 && (rate / (1 - rate)) * dyNorm < this.newtonTol)) return true;
+      if (dyNorm === 0 || (rate < 1 && (rate / (1 - rate)) * dyNorm < this.newtonTol)) return true;
       dyNormOld = dyNorm;
     }
     return false;
@@ -313,6 +324,7 @@ class BdfIntegrator {
     const ok = this.matrix.factor(this.jac, c);
     this.factoredC = ok ? c : Number.NaN;
     this.factorizationAge = 0;
+    this.newtonRate = 1;
     return ok;
   }
 
@@ -391,6 +403,7 @@ class BdfIntegrator {
       if (errorNorm <= 1) break;
 
       stats.failedSteps++;
+      this.newtonRate = 1;
       if (++errorFailures >= MAX_ERROR_FAILURES_PER_STEP) return Outcome.ErrorTestFailure;
       const safety = (SAFETY * (2 * NEWTON_MAXITER + 1)) / (2 * NEWTON_MAXITER + this.newtonIterations);
       let factor = Number.isFinite(errorNorm)
