@@ -56,6 +56,8 @@ export interface TableOptions {
 
 /** At most this many problems are listed one by one; the rest are counted. */
 const MAX_LISTED_PROBLEMS = 40;
+/** Row warnings of one kind and column listed one by one before the rest are counted. */
+const MAX_WARNINGS_EACH = 5;
 
 const DEFAULT_NAMES = {
   id: ['id', 'name', 'sightline', 'source', 'star', 'object', 'target'],
@@ -317,7 +319,14 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
   const fail = (col: number | undefined, msg: string) => {
     problems.push(new UserError(table.map ? `${place.text}: ${msg}` : msg, { ...place.loc, field: col === undefined ? undefined : colName(col) }));
   };
-  const warn = (col: number, msg: string) => warnings.push(`${table.file}, ${place.text}, ${table.map ? 'image' : 'column'} '${colName(col)}': ${msg}`);
+  // Row warnings are grouped by column and kind, so a map with many such pixels gives a few lines and a count.
+  const rowWarnings = new Map<string, { col: number; lines: string[] }>();
+  const warn = (col: number, kind: string, msg: string) => {
+    const key = `${col}\u0000${kind}`;
+    const g = rowWarnings.get(key) ?? { col, lines: [] };
+    rowWarnings.set(key, g);
+    g.lines.push(`${table.file}, ${place.text}, ${table.map ? 'image' : 'column'} '${colName(col)}': ${msg}`);
+  };
   // A plain number or blank; anything else is a problem at (row, column).
   const plainNumber = (col: number | undefined, what: string): number | undefined => {
     if (col === undefined) return undefined;
@@ -373,7 +382,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
         if (akErr < 0) fail(plan.akError, `the A_K error must not be negative, found ${akErr}.`);
         s.akErr = akErr;
       }
-      if (av !== undefined) warn(plan.ak!, `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
+      if (av !== undefined) warn(plan.ak!, 'both', `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
       else {
         // A_V = A_K / (A_K/A_V), A_K/A_V = 0.112 by default (Rieke & Lebofsky 1985).
         s.av = ak / opts.akPerAv;
@@ -394,7 +403,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
       const p = parseCell(raw);
       if (p.kind === 'blank') {
         for (const c of [sp.error, sp.errorLo, sp.errorHi, sp.tauError]) {
-          if (c !== undefined && parseCell(cellAt(c, r)).kind !== 'blank') warn(c, `an error is given but the value ('${colName(valueCol)}') is blank; read as not observed.`);
+          if (c !== undefined && parseCell(cellAt(c, r)).kind !== 'blank') warn(c, 'orphan-error', `an error is given but the value ('${colName(valueCol)}') is blank; read as not observed.`);
         }
         continue;
       }
@@ -466,7 +475,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
           continue;
         }
         const biggest = Math.max(lo, hi);
-        if (biggest > opts.maxErrorRatio * value) warn(given[given.length - 1], `the error (${biggest.toPrecision(3)}) is more than ${opts.maxErrorRatio} times the value (${value.toPrecision(3)}) of '${sp.name}'; check the units or the exponent.`);
+        if (biggest > opts.maxErrorRatio * value) warn(given[given.length - 1], 'error-ratio', `the error (${biggest.toPrecision(3)}) is more than ${opts.maxErrorRatio} times the value (${value.toPrecision(3)}) of '${sp.name}'; check the units or the exponent.`);
         meas.errLo = lo;
         meas.errHi = hi;
       }
@@ -479,6 +488,11 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
     sightlines.push(s);
   }
   if (problems.length > 0) throw collect(table.file, problems);
+  for (const g of rowWarnings.values()) {
+    warnings.push(...g.lines.slice(0, MAX_WARNINGS_EACH));
+    const more = g.lines.length - MAX_WARNINGS_EACH;
+    if (more > 0) warnings.push(`${table.file}: ... and ${more} more ${table.map ? 'pixels' : 'rows'} with the same warning for ${table.map ? 'image' : 'column'} '${colName(g.col)}'.`);
+  }
   if (extinctionOnly > 0) warnings.push(`${table.file}: ${extinctionOnly} pixel${extinctionOnly > 1 ? 's have' : ' has'} an extinction but no column density of any species; not read as sightlines.`);
   const set: ObservationSet = {
     file: table.file,

@@ -49,6 +49,14 @@ describe('bad observation input', () => {
     expect(set.warnings[0]).toMatch(/bigerror\.csv, line 2, column 'N\(CO\(s\)\)_err': the error \(2\.00e\+17\) is more than 10 times the value \(1\.00e\+16\)/);
   });
 
+  it('many suspicious errors in one column: five named, the rest counted', () => {
+    const rows = Array.from({ length: 12 }, (_, i) => `s${i},5,1e15,1e17`);
+    const set = load('manyerrors.csv', ['id,AV,N(CO(s)),N(CO(s))_err', ...rows].join('\n'));
+    expect(set.sightlines).toHaveLength(12);
+    expect(set.warnings).toHaveLength(6);
+    expect(set.warnings[5]).toMatch(/manyerrors\.csv: \.\.\. and 7 more rows with the same warning for column 'N\(CO\(s\)\)_err'/);
+  });
+
   it('a limit with an error', () => {
     const e = error(() => load('limiterr.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,<1e17,1e16\n'));
     expect(e.message).toMatch(/limiterr\.csv:2, field 'N\(CO\(s\)\)_err': 'CO\(s\)' is an upper limit \('<1e17'\) but has an error \('1e16'\)/);
