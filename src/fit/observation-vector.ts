@@ -11,6 +11,8 @@ import { termKey, type QuantityTerm } from './model-quantities.ts';
 export interface ScoringWidths {
   /** Model-uncertainty floor, dex. */
   modelSigmaDex: number;
+  /** Floors of single terms by term key where a quantity sets its own (fit.quantities[].model_sigma_dex). */
+  termModelSigmaDex?: ReadonlyMap<string, number>;
   /** Width of a limit, dex (added in quadrature to the floor). */
   limitSigmaDex: number;
 }
@@ -62,7 +64,6 @@ export function buildObservationVector(sightline: string, quantities: readonly O
   const det: number[] = [];
   const up: number[] = [];
   const low: number[] = [];
-  const floor2 = widths.modelSigmaDex ** 2;
   for (const q of quantities) {
     const j = index.get(termKey(q.numerator, q.denominator));
     if (j === undefined) throw new RangeError(`quantity ${q.label} of ${sightline} has no model term`);
@@ -70,6 +71,7 @@ export function buildObservationVector(sightline: string, quantities: readonly O
     if (!Number.isFinite(q.log10)) continue;
     v.quantities[j] = q;
     v.log10[j] = q.log10;
+    const floor2 = (widths.termModelSigmaDex?.get(terms[j].key) ?? widths.modelSigmaDex) ** 2;
     if (q.kind === 'detection') {
       const lo2 = q.sigmaLoDex ** 2 + floor2;
       const hi2 = q.sigmaHiDex ** 2 + floor2;

@@ -15,7 +15,7 @@ import { fitSightline } from './fit-sightline.ts';
 import { holdParameters } from './held.ts';
 import { fitJoint } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
-import { buildModelQuantities, collectTerms } from './model-quantities.ts';
+import { buildModelQuantities, collectTerms, termKey } from './model-quantities.ts';
 import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
 import { regionLevels } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
@@ -125,18 +125,33 @@ function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[
     broken.map((q) => new UserError(`sightline ${q.sightline}: ${q.label} has error ${q.sigmaLoDex}/${q.sigmaHiDex} dex; an error must be a finite number, 0 or more. Check its error column.`, { field: q.label })),
     'detections without a usable error',
   );
-  if (section.model_sigma_dex > 0) return;
-  if (section.limit_sigma_dex === 0 && quantities.some((q) => q.kind !== 'detection')) {
-    throw located(source, ['fit', 'model_sigma_dex'], 'limits need a width: with model_sigma_dex 0, set fit.limit_sigma_dex above 0 (dex) so the censored likelihood is defined.');
-  }
-  const zero = quantities.filter((q) => q.kind === 'detection' && (q.sigmaLoDex === 0 || q.sigmaHiDex === 0));
-  if (zero.length > 0) {
+  const floors = termFloors(section, quantities);
+  const floorOf = (q: ObservedQuantity) => floors.get(termKey(q.numerator, q.denominator)) ?? section.model_sigma_dex;
+  const unbounded = quantities.filter((q) => floorOf(q) === 0 && (q.kind === 'detection' ? q.sigmaLoDex === 0 || q.sigmaHiDex === 0 : section.limit_sigma_dex === 0));
+  if (unbounded.length > 0) {
+    const first = unbounded[0];
     throw located(
       source,
       ['fit', 'model_sigma_dex'],
-      `${zero.length} detection(s) have a zero error (first: ${zero[0].label} of ${zero[0].sightline}) and model_sigma_dex is 0, so chi^2 is undefined. Give the errors, or a model floor above 0.`,
+      `${unbounded.length} quantit${unbounded.length === 1 ? 'y has' : 'ies have'} no width at all (first: ${first.kind === 'detection' ? 'the detection' : 'the limit'} ${first.label} of ${first.sightline}): a zero error and a zero model floor leave chi^2 undefined. ` +
+        'Give the errors, a model floor above 0, or for limits fit.limit_sigma_dex above 0 (dex).',
     );
   }
+}
+
+/**
+ * Term floors set per quantity: a quantity `{ species: S, as: ratio }` is the
+ * term S/reference, `{ species: S, as: abundance }` the term S alone.
+ */
+function termFloors(section: FitSection, quantities: readonly ObservedQuantity[]): Map<string, number> {
+  const floors = new Map<string, number>();
+  for (const fq of section.quantities) {
+    if (fq.model_sigma_dex === undefined) continue;
+    for (const q of quantities) {
+      if (q.numerator === fq.species && (q.denominator !== undefined) === (fq.as === 'ratio')) floors.set(termKey(q.numerator, q.denominator), fq.model_sigma_dex);
+    }
+  }
+  return floors;
 }
 
 export function fitOptions(section: FitSection): FitOptions {
@@ -166,6 +181,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
   const model = buildModelQuantities(table, terms, { file: source?.file });
   const options = fitOptions(section);
+  options.termModelSigmaDex = termFloors(section, quantities);
   options.levels = regionLevels([...section.levels, TABLE_LEVEL], section.parameters_of_interest);
   const ctx: FitContext = { table, model, axes, options, chi2: new Float64Array(model.nCandidates) };
 

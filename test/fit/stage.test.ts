@@ -101,6 +101,15 @@ describe('profiles, intervals and degrees of freedom', () => {
     expect(result.cautions.length).toBeGreaterThan(0);
   });
 
+  it('a quantity may set its own model floor', () => {
+    const section = parse({ quantities: [{ species: 'CO', as: 'abundance', model_sigma_dex: 0.7 }] });
+    const out = runFitStage({ table, section, observations: observationSet(['s1']), quantities }).result.fits[0];
+    const sigma = (label: string) => out.residuals.find((r) => r.label === label)!.sigmaDex;
+    // sqrt(0.1^2 + 0.7^2) for X(CO), sqrt(0.1^2 + 0.3^2) for the rest (the default floor).
+    expect(sigma('X(CO)')).toBeCloseTo(Math.hypot(0.1, 0.7), 12);
+    expect(sigma('X(CO(s))')).toBeCloseTo(Math.hypot(0.1, 0.3), 12);
+  });
+
   it('a poor fit is flagged (p < 0.01)', () => {
     const bad = abundanceQuantities('s9', DENSITIES[3], TIMES[5], 0.05).map((q, j) => ({ ...q, log10: q.log10 + (j % 2 === 0 ? 1.5 : -1.5) }));
     const out = runFitStage({ table, section: parse(), observations: observationSet(['s9']), quantities: bad });

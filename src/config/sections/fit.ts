@@ -6,6 +6,8 @@ export const fitQuantity = z
     species: z.string().min(1),
     /** `abundance`: X = N/N_H; `ratio`: N/N(reference), the reference being observations.reference. */
     as: z.enum(['abundance', 'ratio']).default('ratio'),
+    /** This quantity's own model-uncertainty floor, dex, in place of fit.model_sigma_dex (a species whose chemistry is less certain). */
+    model_sigma_dex: z.number().min(0).optional(),
   })
   .strict();
 export type FitQuantity = z.infer<typeof fitQuantity>;
