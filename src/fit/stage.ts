@@ -185,6 +185,15 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   options.levels = regionLevels([...section.levels, TABLE_LEVEL], section.parameters_of_interest);
   const ctx: FitContext = { table, model, axes, options, chi2: new Float64Array(model.nCandidates) };
 
+  const seen = new Map<string, string>();
+  const duplicates: UserError[] = [];
+  for (const s of observations.sightlines) {
+    const where = s.source.row !== undefined ? `row ${s.source.row}` : s.source.line !== undefined ? `line ${s.source.line}` : s.pixel ? `pixel (${s.pixel.x}, ${s.pixel.y})` : 'an earlier entry';
+    const first = seen.get(s.id);
+    if (first !== undefined) duplicates.push(new UserError(`sightline id '${s.id}' is used twice (${first} and ${where}); each sightline needs its own id for its fit. Rename one.`, { file: s.source.file, row: s.source.row, line: s.source.line }));
+    else seen.set(s.id, where);
+  }
+  throwAll(duplicates, 'sightline ids used more than once');
   const byId = new Map<string, ObservedQuantity[]>();
   for (const q of quantities) {
     const list = byId.get(q.sightline);
@@ -220,7 +229,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     const { nx, ny } = observations.map;
     const pixels: MapPixel[] = [];
     for (const s of observations.sightlines) {
-      if (!s.pixel) throw new RangeError(`map sightline ${s.id} has no pixel coordinates`);
+      if (!s.pixel || s.pixel.x < 0 || s.pixel.x >= nx || s.pixel.y < 0 || s.pixel.y >= ny) throw new RangeError(`map sightline ${s.id} has no pixel inside the ${nx} x ${ny} map`);
       pixels.push({ x: s.pixel.x, y: s.pixel.y, obs: buildObservationVector(s.id, byId.get(s.id) ?? [], terms, options) });
     }
     // The map loop compares held values by key; it needs no per-pixel model mask.
@@ -244,6 +253,8 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   section.joint.forEach((g, i) => {
     const ids = g.sightlines === 'all' ? vectors.map((v) => v.sightline) : g.sightlines;
     const problems: UserError[] = [];
+    const twice = ids.filter((id, k) => ids.indexOf(id) !== k);
+    if (twice.length > 0) problems.push(located(source, ['fit', 'joint', i, 'sightlines'], `group ${g.name} lists ${[...new Set(twice)].join(', ')} more than once; each member counts once.`));
     const members: ObservationVector[] = [];
     ids.forEach((id, k) => {
       const v = vectorById.get(id);

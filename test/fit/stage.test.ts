@@ -283,6 +283,13 @@ describe('bad input', () => {
     expect(() => runFitStage({ table, section: parse({ joint: [{ name: 'g', sightlines: ['s', 'nope'], share: 'age_yr' }] }), observations: observationSet(['s']), quantities: q })).toThrow(/no sightline 'nope'/);
   });
 
+  it('a sightline id used twice, and a joint member listed twice', () => {
+    const q = abundanceQuantities('s', DENSITIES[1], TIMES[1], 0.1);
+    expect(() => runFitStage({ table, section: parse(), observations: observationSet(['s', 's']), quantities: q })).toThrow(/sightline id 's' is used twice \(row 2 and row 3\)/);
+    const q2 = [...q, ...abundanceQuantities('t', DENSITIES[1], TIMES[1], 0.1)];
+    expect(() => runFitStage({ table, section: parse({ joint: [{ name: 'g', sightlines: ['s', 't', 's'], share: 'age_yr' }] }), observations: observationSet(['s', 't']), quantities: q2 })).toThrow(/lists s more than once/);
+  });
+
   it('no sightline with any fitted quantity', () => {
     expect(() => runFitStage({ table, section: parse(), observations: observationSet(['s']), quantities: [] })).toThrow(/no sightline of invented-cloud.csv has a value/);
   });
