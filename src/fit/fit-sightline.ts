@@ -97,7 +97,7 @@ export function fitSightline(ctx: FitContext, obs: ObservationVector): Sightline
     warnings.push(`${id}: ${counts.detections} detection(s) for ${fittedParameters} fitted parameters: dof raised to 1, so the p-value does not test this fit (the parameters are not all constrained).`);
   }
   if (pValue < options.poorFitP) {
-    warnings.push(`${id}: poor fit: chi2 = ${chi2Best.toFixed(2)} for ${dof} dof (p = ${pValue.toExponential(2)} < ${options.poorFitP}): no model of the grid reproduces these data within their errors and the ${options.modelSigmaDex} dex model floor.`);
+    warnings.push(`${id}: poor fit: chi2 = ${chi2Best.toFixed(2)} for ${dof} dof (p = ${pValue.toExponential(2)} < ${options.poorFitP}): no model of the grid reproduces these data within their errors and the ${options.modelSigmaDex} dex model floor, and the Delta chi2 regions, which assume a good fit at the minimum, understate the uncertainty.`);
   }
   warnings.push(...edgeWarnings(id, intervals, firstLevel.level));
 
