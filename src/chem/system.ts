@@ -359,12 +359,15 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
 
   const rhs = (_t: number, y: Float64Array, dydt: Float64Array): void => {
     dydt.fill(0);
+    // Terms are stored back to back, so one running index walks each array.
+    let a = 0;
+    let q = 0;
     for (let t = 0; t < m; t++) {
       let rate = k[t];
-      for (let a = reactantStart[t]; a < reactantStart[t + 1]; a++) rate *= y[reactants[a]];
-      for (let q = netStart[t]; q < netStart[t + 1]; q++) dydt[rhsSpecies[q]] += rhsCoef[q] * rate;
+      for (const end = reactantStart[t + 1]; a < end; a++) rate *= y[reactants[a]];
+      for (const end = netStart[t + 1]; q < end; q++) dydt[rhsSpecies[q]] += rhsCoef[q] * rate;
     }
-    for (let q = 0; q < nonMassAction.length; q++) nonMassAction[q].addRhs(y, dydt);
+    for (let g = 0; g < nonMassAction.length; g++) nonMassAction[g].addRhs(y, dydt);
   };
 
   const jacobian = (_t: number, y: Float64Array, values: Float64Array): void => {
