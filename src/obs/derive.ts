@@ -28,7 +28,7 @@
  */
 import { UserError } from '../config/errors.ts';
 import type { ObservationsSection } from '../config/sections/observations.ts';
-import { isIceName } from '../chem/species.ts';
+import { isIceName } from './species-name.ts';
 import { collect } from './table.ts';
 import type { Measurement, MeasurementKind, ObservationSet, ObservedQuantity, Sightline } from './types.ts';
 

@@ -7,7 +7,7 @@
 import { erf } from 'simple-statistics';
 import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
 import type { ColumnMapping, ObservationFormat, SpeciesColumns } from '../config/sections/observations.ts';
-import { parseSpecies } from '../chem/species.ts';
+import { speciesNameProblem } from './species-name.ts';
 import { parseAngle, parseCell, parseFlag, describeCell, type Cell } from './cells.ts';
 import { parseUnit, CANONICAL_UNIT, type Dimension } from './units.ts';
 import type { BandTable } from './bands.ts';
@@ -222,10 +222,9 @@ function buildPlan(table: RawTable, opts: TableOptions, problems: UserError[], w
 
   for (const [name, cols, fromMapping] of entries) {
     const field = fromMapping ? `species.${name}` : `N(${name})`;
-    try {
-      parseSpecies(name);
-    } catch (e) {
-      problems.push(new UserError(`${(e as Error).message}`, { file, field }));
+    const bad = speciesNameProblem(name);
+    if (bad) {
+      problems.push(new UserError(`'${name}' is not a species name: ${bad}. Write a formula such as H2O, HCO+ or CO(s) (ices end in '(s)').`, { file, field }));
       continue;
     }
     if (opts.knownSpecies && !opts.knownSpecies.has(name)) {

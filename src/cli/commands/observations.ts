@@ -114,7 +114,7 @@ export function register(program: Command, ctx: CommandContext): void {
       let networkFile: string | undefined;
       let wanted: { species: string; as: 'abundance' | 'ratio' }[] | undefined;
       const isYaml = /\.ya?ml$/i.test(file);
-      const looksLikePipeline = isYaml && !opts.format && (() => {
+      const looksLikePipeline = isYaml && (() => {
         const data = parseYamlText(readTextFile(file, 'file'), file).data;
         return !!data && typeof data === 'object' && !Array.isArray(data) && 'observations' in data;
       })();
