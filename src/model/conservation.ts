@@ -5,6 +5,11 @@
 import type { Network } from '../chem/network-types.ts';
 import type { ConservationReport } from './types.ts';
 
+/** Whether drift d is worse than the worst so far; NaN (a failed state) is the worst of all and stays so. */
+function worse(d: number, worst: number): boolean {
+  return !Number.isNaN(worst) && (Number.isNaN(d) || d > worst);
+}
+
 export class ConservationCheck {
   readonly elements: string[];
   /** counts[e * n + i]: atoms of element e in species i. */
@@ -59,13 +64,13 @@ export class ConservationCheck {
     for (let e = 0; e < totals.length; e++) {
       const ref = this.initialTotals[e];
       const d = ref > 0 ? Math.abs(totals[e] - ref) / ref : Math.abs(totals[e]);
-      if (!(d <= this.drift[e])) this.drift[e] = d;
+      if (worse(d, this.drift[e])) this.drift[e] = d;
     }
     // Charge balance relative to the total positive charge (the electron budget).
     const scale = Math.max(this.initialPositive, this.positiveCharge(y));
     const dq = Math.abs(this.charge(y) - this.initialCharge);
     const rel = scale > 0 ? dq / scale : dq;
-    if (!(rel <= this.chargeDrift)) this.chargeDrift = rel;
+    if (worse(rel, this.chargeDrift)) this.chargeDrift = rel;
   }
 
   report(): ConservationReport {
@@ -74,7 +79,7 @@ export class ConservationCheck {
     let max = this.chargeDrift;
     this.elements.forEach((el, e) => {
       perElement[el] = this.drift[e];
-      if (!(this.drift[e] <= max)) {
+      if (worse(this.drift[e], max)) {
         max = this.drift[e];
         worst = el;
       }
