@@ -23,8 +23,8 @@ export const SEQUENTIAL_SCHEME = 'viridis' as const;
 export const MAP_SCHEME = 'cividis' as const;
 /** Category colours for species tracks: Okabe & Ito (2008) colour-blind-safe palette. */
 export const CATEGORY_COLOURS = ['#000000', '#E69F00', '#56B4E9', '#009E73', '#D55E00', '#0072B2', '#CC79A7', '#F0E442'];
-/** Dash patterns to tell tracks apart in greyscale as well as by colour. */
-export const CATEGORY_DASHES = [[1, 0], [4, 2], [1, 2], [6, 2, 1, 2], [2, 2], [8, 3], [3, 1, 1, 1], [5, 5]];
+/** Dash patterns to tell tracks apart in greyscale as well as by colour: seven against eight colours, so pairs repeat only after 56. */
+export const CATEGORY_DASHES = [[1, 0], [4, 2], [1, 2], [6, 2, 1, 2], [2, 2], [8, 3], [3, 1, 1, 1]];
 
 export interface FigureSize {
   /** Total width of the figure, pixels (= points). */

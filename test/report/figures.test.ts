@@ -21,7 +21,7 @@ const schemaFile = join(dirname(require.resolve('vega-lite')), 'vega-lite-schema
 /** Axis titles each kind must show (units as design.md fixes them). */
 const EXPECTED_TITLES: Record<string, string[]> = {
   chi2_map: ['Density (cm⁻³)', 'Chemical age (yr)', 'Δχ²'],
-  tracks: ['Chemical age (yr)', 'Ratio to H2O(s)'],
+  tracks: ['Chemical age (yr)', 'Ratio to H2O(s)', 'X relative to H'],
   fit_vs_av: ['Visual extinction (mag)', 'Density (cm⁻³)', 'Chemical age (yr)'],
   profiles: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Δχ²'],
   sky_map: ['Pixel x', 'Pixel y'],

@@ -66,10 +66,13 @@ const QUANTITIES = [
   { label: 'CO2(s)/H2O(s)', numerator: 'CO2(s)', denominator: 'H2O(s)' },
   { label: 'CH3OH(s)/H2O(s)', numerator: 'CH3OH(s)', denominator: 'H2O(s)' },
   { label: 'NH3(s)/H2O(s)', numerator: 'NH3(s)', denominator: 'H2O(s)' },
+  { label: 'X(CO)', numerator: 'CO' },
 ];
 
 /** A smooth invented ratio track: log10 rising with age towards a plateau. */
 function trackLog10(q: number, t: number, n: number): number {
+  // Gas-phase CO falls as it freezes out.
+  if (q === 4) return -4 - 1.5 * Math.max(0, Math.log10(t) - 5) - 0.2 * (Math.log10(n) - 4);
   const rise = Math.tanh((Math.log10(t) - 4.5 + 0.2 * q) / 1.2);
   return -1.2 - 0.3 * q + 0.6 * rise + 0.1 * (Math.log10(n) - 4);
 }

@@ -19,6 +19,10 @@ const X_PARAMETER = 'density';
 const Y_PARAMETER = 'age_yr';
 /** Dash patterns of the contour levels, innermost first. */
 const LEVEL_DASHES = [[1, 0], [4, 2], [1, 2]];
+/** Fraction of a cell by which it overlaps its upper neighbours. */
+const CELL_OVERLAP = 0.3;
+/** Values labelled on the Delta chi^2 colour legend (a symlog scale crowds the default ticks at the top). */
+const LEGEND_VALUES = [0, 1, 10, 100, 1000, 10000, 100000];
 /** Plot height over width: the legend below the contours needs room. */
 const MAP_ASPECT = 0.85;
 
@@ -43,7 +47,10 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
     for (let ix = 0; ix < nx; ix++) {
       const d = pair.deltaChi2[iy * nx + ix];
       if (d === null) continue;
-      cells.push({ x: xEdges[ix], x2: xEdges[ix + 1], y: yEdges[iy], y2: yEdges[iy + 1], dchi2: d, xv: pair.xValues[ix], yv: pair.yValues[iy] });
+      // Each cell reaches a little into its upper neighbours: abutting cells otherwise show hairline seams once antialiased.
+      const x2 = fromScale(xKind, toScale(xKind, xEdges[ix + 1]) + CELL_OVERLAP * (toScale(xKind, xEdges[ix + 1]) - toScale(xKind, xEdges[ix])));
+      const y2 = fromScale(yKind, toScale(yKind, yEdges[iy + 1]) + CELL_OVERLAP * (toScale(yKind, yEdges[iy + 1]) - toScale(yKind, yEdges[iy])));
+      cells.push({ x: xEdges[ix], x2, y: yEdges[iy], y2, dchi2: d, xv: pair.xValues[ix], yv: pair.yValues[iy] });
     }
   }
   const xs = pair.xValues.map((v) => toScale(xKind, v));
@@ -76,7 +83,7 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
     layer: [
       {
         data: { values: cells },
-        mark: { type: 'rect', tooltip: true },
+        mark: { type: 'rect', tooltip: true, clip: true },
         encoding: {
           x: { field: 'x', type: 'quantitative', scale: positionScale(xKind, xDomain), axis: xAxis },
           x2: { field: 'x2' },
@@ -88,7 +95,7 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
             title: DELTA_CHI2_TITLE,
             // Best (small Delta chi^2) bright, poor dark: the contours, drawn in black, sit on the bright part.
             scale: { type: 'symlog', scheme: MAP_SCHEME, reverse: true, domain: [0, maxDelta], nice: false },
-            legend: { orient: 'right', direction: 'vertical', gradientLength: 90 },
+            legend: { orient: 'right', direction: 'vertical', gradientLength: 90, values: LEGEND_VALUES.filter((v) => v <= maxDelta), format: 'd' },
           },
           tooltip: [
             { field: 'xv', type: 'quantitative', title: parameterTitle(pair.x), format: '.3~g' },

@@ -16,7 +16,11 @@ import { logAxis, paddedDomain, parameterTitle } from './axes.ts';
 import { sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 /** Observations of different quantities are spread over this many dex in time around the best age. */
-const OBSERVATION_SPREAD_DEX = 0.08;
+const OBSERVATION_SPREAD_DEX = 0.15;
+/** Abundances and ratios get a panel each; stacked panels are this much of a single panel's height, at least MIN_PANEL_HEIGHT. */
+const STACKED_PANEL_SCALE = 0.8;
+const MIN_PANEL_HEIGHT = 100;
+const PANEL_SPACING = 8;
 /** The y axis shows the observations and this many dex below them and above them of the tracks. */
 const Y_MARGIN_BELOW_DEX = 2;
 const Y_MARGIN_ABOVE_DEX = 1;
@@ -35,11 +39,12 @@ function wanted(label: string, numerator: string, species: readonly string[]): b
   return species.length === 0 || species.includes(label) || species.includes(numerator);
 }
 
+/** Short titles: vega reserves room for an axis title longer than its axis, which opens a gap in the figure. */
 export function yTitle(quantities: readonly { denominator?: string }[]): string {
   const denominators = [...new Set(quantities.map((q) => q.denominator ?? ''))];
-  if (denominators.length === 1 && denominators[0] === '') return 'Abundance relative to H';
+  if (denominators.length === 1 && denominators[0] === '') return 'X relative to H';
   if (denominators.length === 1) return `Ratio to ${denominators[0]}`;
-  return 'Abundance (rel. to H) or ratio';
+  return 'Abundance or ratio';
 }
 
 /**
@@ -55,6 +60,14 @@ function yRange(obsLog: number[], trackLog: number[]): [number, number] {
   const oHi = Math.max(...obsLog);
   if (trackLog.length === 0) return [oLo, oHi];
   return [Math.min(oLo, Math.max(oLo - Y_MARGIN_BELOW_DEX, tLo)), Math.max(oHi, Math.min(oHi + Y_MARGIN_ABOVE_DEX, tHi))];
+}
+
+/** A panel's quantities share a denominator (none: abundances relative to H), so they share a y axis. */
+function denominatorOf(label: string, observed: readonly ObservedQuantity[]): string {
+  const q = observed.find((o) => o.label === label);
+  if (q) return q.denominator ?? '';
+  const slash = label.indexOf('/');
+  return slash >= 0 ? label.slice(slash + 1) : '';
 }
 
 export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: ModelTrack[], observed: ObservedQuantity[], labels: string[]): TopLevelSpec {
@@ -81,67 +94,81 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
       detected: q.kind === 'detection',
     };
   });
-  const obsLog = observed.flatMap((q) => [q.log10 - q.sigmaLoDex, q.log10 + q.sigmaHiDex]);
-  const trackLog = lineRows.map((r) => Math.log10(r.value));
-  const yDomain = paddedDomain('log', yRange(obsLog, trackLog).map((l) => 10 ** l), 0.05);
   const times = lineRows.map((r) => r.t).concat(obsRows.map((r) => r.t));
   const xDomain = paddedDomain('log', times.length > 0 ? times : [bestAge], 0);
   const colour = { domain: labels, range: labels.map((_, i) => CATEGORY_COLOURS[i % CATEGORY_COLOURS.length]) };
   const dashes = { domain: labels, range: labels.map((_, i) => CATEGORY_DASHES[i % CATEGORY_DASHES.length]) };
-  const x = { field: 't', type: 'quantitative' as const, title: parameterTitle('age_yr'), scale: { type: 'log' as const, domain: xDomain, nice: false }, axis: logAxis(xDomain[0], xDomain[1]) };
-  const y = { field: 'value', type: 'quantitative' as const, title: yTitle(observed.length > 0 ? observed : tracks.map(() => ({}))), scale: { type: 'log' as const, domain: yDomain, nice: false }, axis: logAxis(yDomain[0], yDomain[1]) };
-  return {
-    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: `best fit at ${numberText(bestAge)} yr (model ${shortId(fit.best.modelId)})` },
-    width: plotWidth,
-    height: plotHeight,
-    config: figureConfig(),
-    layer: [
-      {
-        data: { values: ageInterval ? [{ lo: ageInterval.lo, hi: ageInterval.hi }] : [] },
-        mark: { type: 'rect', color: '#000000', opacity: 0.08 },
-        encoding: { x: { field: 'lo', type: 'quantitative' }, x2: { field: 'hi' } },
-      },
-      {
-        data: { values: [{ t: bestAge }] },
-        mark: { type: 'rule', color: '#777777', strokeWidth: 0.7, strokeDash: [2, 2] },
-        encoding: { x: { field: 't', type: 'quantitative' } },
-      },
-      ...(['runner-up', 'best'] as const).map((role) => ({
-        data: { values: lineRows.filter((r) => r.role === role) },
-        mark: { type: 'line' as const, strokeWidth: role === 'best' ? 1.2 : 0.8, opacity: role === 'best' ? 1 : RUNNER_UP_OPACITY, clip: true },
-        encoding: {
-          x,
-          y,
-          color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend: { orient: 'bottom' as const, columns: 2, symbolType: 'stroke', symbolOpacity: 1 } },
-          // Same field and title as the colour: vega-lite merges the two into one legend of dashed, coloured lines.
-          strokeDash: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: dashes, legend: { orient: 'bottom' as const, columns: 2, symbolType: 'stroke', symbolOpacity: 1 } },
-          detail: { field: 'model', type: 'nominal' as const },
+  const legend = { orient: 'bottom' as const, columns: 2, symbolType: 'stroke', symbolOpacity: 1 };
+  const groups = [...new Set(labels.map((l) => denominatorOf(l, observed)))].sort();
+  const height = groups.length > 1 ? Math.max(MIN_PANEL_HEIGHT, Math.round(plotHeight * STACKED_PANEL_SCALE)) : plotHeight;
+  const panels = groups.map((denominator, g) => {
+    const inGroup = new Set(labels.filter((l) => denominatorOf(l, observed) === denominator));
+    const lines = lineRows.filter((r) => inGroup.has(r.quantity));
+    const points = obsRows.filter((r) => inGroup.has(r.quantity));
+    const obsLog = observed.filter((q) => inGroup.has(q.label)).flatMap((q) => [q.log10 - q.sigmaLoDex, q.log10 + q.sigmaHiDex]);
+    const yDomain = paddedDomain('log', yRange(obsLog, lines.map((r) => Math.log10(r.value))).map((l) => 10 ** l), 0.05);
+    const last = g === groups.length - 1;
+    const x = {
+      field: 't',
+      type: 'quantitative' as const,
+      title: last ? parameterTitle('age_yr') : null,
+      scale: { type: 'log' as const, domain: xDomain, nice: false },
+      axis: { ...logAxis(xDomain[0], xDomain[1]), ...(last ? {} : { labels: false }) },
+    };
+    const y = { field: 'value', type: 'quantitative' as const, title: yTitle([{ denominator: denominator || undefined }]), scale: { type: 'log' as const, domain: yDomain, nice: false }, axis: logAxis(yDomain[0], yDomain[1]) };
+    return {
+      width: plotWidth,
+      height,
+      layer: [
+        {
+          data: { values: ageInterval ? [{ lo: ageInterval.lo, hi: ageInterval.hi }] : [] },
+          mark: { type: 'rect' as const, color: '#000000', opacity: 0.08 },
+          encoding: { x: { field: 'lo', type: 'quantitative' as const }, x2: { field: 'hi' } },
         },
-      })),
-      {
-        data: { values: obsRows.filter((r) => r.detected) },
-        mark: { type: 'rule', strokeWidth: 1, clip: true },
-        encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal', title: 'Quantity', scale: colour } },
-      },
-      {
-        data: { values: obsRows },
-        mark: { type: 'point', filled: true, size: 30, stroke: '#000000', strokeWidth: 0.5, opacity: 1, tooltip: true },
-        encoding: {
-          x,
-          y,
-          color: { field: 'quantity', type: 'nominal', title: 'Quantity', scale: colour },
-          // Shapes are explained in the caption: a second legend would make the figure wider than a column.
-          shape: { field: 'kind', type: 'nominal', title: 'Observed', scale: { domain: Object.values(KIND_NAMES), range: Object.values(KIND_SHAPES) }, legend: null },
-          tooltip: [
-            { field: 'quantity', type: 'nominal', title: 'quantity' },
-            { field: 'kind', type: 'nominal', title: 'observed' },
-            { field: 'value', type: 'quantitative', title: 'value', format: '.3~g' },
-          ],
+        {
+          data: { values: [{ t: bestAge }] },
+          mark: { type: 'rule' as const, color: '#777777', strokeWidth: 0.7, strokeDash: [2, 2] },
+          encoding: { x: { field: 't', type: 'quantitative' as const } },
         },
-      },
-    ],
-  };
+        ...(['runner-up', 'best'] as const).map((role) => ({
+          data: { values: lines.filter((r) => r.role === role) },
+          mark: { type: 'line' as const, strokeWidth: role === 'best' ? 1.2 : 0.8, opacity: role === 'best' ? 1 : RUNNER_UP_OPACITY, clip: true },
+          encoding: {
+            x,
+            y,
+            color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend },
+            // Same field and title as the colour: vega-lite merges the two into one legend of dashed, coloured lines.
+            strokeDash: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: dashes, legend },
+            detail: { field: 'model', type: 'nominal' as const },
+          },
+        })),
+        {
+          data: { values: points.filter((r) => r.detected) },
+          mark: { type: 'rule' as const, strokeWidth: 1, clip: true },
+          encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend } },
+        },
+        {
+          data: { values: points },
+          mark: { type: 'point' as const, filled: true, size: 30, stroke: '#000000', strokeWidth: 0.5, opacity: 1, tooltip: true, clip: true },
+          encoding: {
+            x,
+            y,
+            color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend },
+            // Shapes are explained in the caption: a second legend would make the figure wider than a column.
+            shape: { field: 'kind', type: 'nominal' as const, title: 'Observed', scale: { domain: Object.values(KIND_NAMES), range: Object.values(KIND_SHAPES) }, legend: null },
+            tooltip: [
+              { field: 'quantity', type: 'nominal' as const, title: 'quantity' },
+              { field: 'kind', type: 'nominal' as const, title: 'observed' },
+              { field: 'value', type: 'quantitative' as const, title: 'value', format: '.3~g' },
+            ],
+          },
+        },
+      ],
+    };
+  });
+  const title = { text: fit.sightline, subtitle: `best fit at ${numberText(bestAge)} yr (model ${shortId(fit.best.modelId)})` };
+  const head = { $schema: 'https://vega.github.io/schema/vega-lite/v6.json', title, config: figureConfig() } as const;
+  return panels.length === 1 ? { ...head, ...panels[0] } : { ...head, spacing: PANEL_SPACING, vconcat: panels };
 }
 
 export const tracksFigure: FigureBuilder = {
