@@ -169,16 +169,20 @@ function sightlineAvs(observations: ObservationSet, pipeline: Pipeline): number[
 }
 
 const grid: StageImpl<PipelineData, 'grid'> = {
-  inputs: ({ pipeline }) => {
+  inputs: async (ctx) => {
+    const { pipeline } = ctx;
     const c = pipeline.config;
-    const tied = needsSightlineTie(pipeline);
     const files: Record<string, string> = { network: pipeline.resolvePath(c.network) };
     if (typeof c.initial === 'string' && /[\\/]|\.ya?ml$/i.test(c.initial)) files.initial = pipeline.resolvePath(c.initial);
     else if (typeof c.initial === 'string') files.initial = join(TOOL_CONFIG_DIR, 'initial', `${c.initial}.yaml`);
+    // With model A_V tied to the sightlines, the grid depends on their A_V bins
+    // alone: a change of the observed columns leaves the grid as it is.
+    const held = needsSightlineTie(pipeline) ? heldParameters(pipeline, (await ctx.upstream('observe')).observations) : undefined;
+    const avBins = held ? [...new Set(Object.values(held).map((h) => h.visual_extinction))].sort((a, b) => a - b) : undefined;
     return {
-      config: { conditions: c.conditions, exclude: c.exclude, grain: c.grain, initial: c.initial, times: c.times, solver: c.solver, modelAvFraction: tied ? c.observations?.model_av_fraction : undefined },
+      config: { conditions: c.conditions, exclude: c.exclude, grain: c.grain, initial: c.initial, times: c.times, solver: c.solver, sightlineAvBins: avBins },
       files,
-      after: tied ? ['observe'] : [],
+      after: [],
     };
   },
   run: async (ctx) => {

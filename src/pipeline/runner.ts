@@ -16,7 +16,7 @@ import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { hashFiles, hashValue } from './hash.ts';
-import { STAGE_NAMES, type StageContext, type StageDataMap, type StageName, type StageSet } from './stages.ts';
+import { STAGE_NAMES, type StageContext, type StageDataMap, type StageInputs, type StageName, type StageSet } from './stages.ts';
 import { readState, writeState, type StageState } from './state.ts';
 
 export type StageStatus = 'ran' | 'skipped' | 'not run';
@@ -97,9 +97,16 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
   const fromIndex = options.from ? STAGE_NAMES.indexOf(options.from) : Infinity;
   for (const [index, name] of STAGE_NAMES.entries()) {
     const impl = impls[name];
-    const inputs = impl.inputs(ctx);
     const record = state[name];
     const selected = options.only === undefined || options.only === name;
+    let inputs: StageInputs;
+    try {
+      inputs = await impl.inputs(ctx);
+    } catch (e) {
+      if (selected) throw e;
+      // A stage left as it was whose inputs cannot be read now (an earlier stage never ran) is out of date.
+      inputs = { config: null, files: {}, after: [...STAGE_NAMES.slice(0, index)] };
+    }
     const forced = options.only === name || index >= fromIndex;
     const upstreamHashes: Record<string, string> = {};
     for (const u of inputs.after) {

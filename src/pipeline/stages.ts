@@ -60,7 +60,12 @@ export interface StageContext<M extends StageDataMap> {
 export type StageDataMap = Record<StageName, unknown>;
 
 export interface StageImpl<M extends StageDataMap, K extends StageName> {
-  inputs(ctx: StageContext<M>): StageInputs;
+  /**
+   * What the stage reads. Called in stage order, after the earlier stages
+   * have run or been skipped, so it may look at their data (the grid reads
+   * the sightlines' A_V bins, not the whole observation set).
+   */
+  inputs(ctx: StageContext<M>): StageInputs | Promise<StageInputs>;
   run(ctx: StageContext<M>): Promise<StageOutcome<M[K]>>;
   /** Rebuild the stage's data from its outputs on disk (used when it was skipped and a later stage needs it). */
   load(ctx: StageContext<M>): Promise<M[K]>;

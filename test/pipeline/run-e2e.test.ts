@@ -160,9 +160,8 @@ describe('hoarfrost run, end to end', () => {
     const obs = join(dir, 'tiny-obs.csv');
     writeFileSync(obs, readFileSync(obs, 'utf8').replace('T-2,10.0,0.8,9.5e17,1.2e17', 'T-2,10.0,0.8,9.5e18,1.2e18'));
     const moved = await run(pipeline, { check: lockFile });
-    // The grid reads the sightlines' A_V (its model A_V is tied to them), so it is checked again, and computes nothing.
-    expect(stageStatuses(moved.out)).toEqual(['observe ran', 'grid ran', 'fit ran', 'report ran']);
-    expect(moved.out).toMatch(/grid .*9 models \(0 computed, 9 from the store\)/);
+    // The grid reads only the sightlines' A_V bins, which did not change.
+    expect(stageStatuses(moved.out)).toEqual(['observe ran', 'grid unchanged', 'fit ran', 'report ran']);
     expect(moved.code).toBe(1);
     expect(moved.out).toMatch(/FAILED; \d sightlines? moved beyond 0\.1 dex/);
     expect(moved.out).toMatch(/\n {2}T-2: (best|density|age)/);
@@ -184,5 +183,14 @@ describe('hoarfrost run, end to end', () => {
     } finally {
       rmSync(other, { recursive: true, force: true });
     }
+  });
+
+  it("reruns the grid when a sightline's A_V moves to another model A_V bin, computing only the new models", async () => {
+    const obs = join(dir, 'tiny-obs.csv');
+    // T-3: A_V 16 -> 24 mag, model A_V 8 -> 12 mag: a new bin of 3 densities.
+    writeFileSync(obs, readFileSync(obs, 'utf8').replace('T-3,16.0,1.2', 'T-3,24.0,1.2'));
+    const r = await run(pipeline);
+    expect(stageStatuses(r.out)).toEqual(['observe ran', 'grid ran', 'fit ran', 'report ran']);
+    expect(r.out).toMatch(/grid .*9 models \(3 computed, 6 from the store\)/);
   });
 });
