@@ -34,16 +34,20 @@ export interface CandidateTable {
 
 /**
  * Files the fit stage writes, relative to the pipeline's output folder.
- * - best_fits.csv: one row per sightline (and per joint group member): columns
- *   `sightline, density, age_yr, chi2, dof, reduced_chi2, p_value, agreement,
- *   density_lo, density_hi, age_lo_yr, age_hi_yr`, then `<param>` and
- *   `<param>_lo, <param>_hi` for every other grid parameter, then
- *   `density_at_edge, age_at_edge` flags; the bounds are the 68.3% level.
+ * - best_fits.csv: one row per fitted sightline: columns `sightline, density,
+ *   age_yr, chi2, dof, reduced_chi2, p_value, agreement, density_lo,
+ *   density_hi, age_lo_yr, age_hi_yr`, then for every other grid parameter
+ *   `<param>` (and `<param>_lo, <param>_hi` when the grid varies it), then
+ *   `density_at_edge, age_at_edge, poor_fit, detections, upper_limits,
+ *   lower_limits, model_id`; the bounds are the 68.3% level. For a map, one
+ *   row per fitted pixel: `sightline, x, y, density, age_yr, chi2, dof,
+ *   reduced_chi2, p_value, density_lo, density_hi, age_lo_yr, age_hi_yr`,
+ *   every other grid parameter's best value, `at_edge, model_id`.
  * - intervals.csv: one row per sightline (or joint group) x parameter x level.
  * - residuals.csv: one row per sightline x quantity at the best fit.
  * - joint_fits.csv: one row per joint group member at the group's shared best values.
- * - fit.json: FitStageResult without the profiles (best fits, residuals,
- *   runner-ups, intervals, joint fits, warnings, cautions).
+ * - fit.json: FitStageResult (best fits, residuals, runner-ups, intervals,
+ *   joint fits, warnings, cautions; the profiles are in profiles.json).
  * - profiles.json: ProfilesJson (1-D and 2-D profiles per sightline and joint group).
  * - map.json and map_<image>.fits: for a map, MapFitJson and one FITS image per MapImageName.
  */
