@@ -129,6 +129,9 @@ describe('hoarfrost model: bad input', () => {
     pipeline(dir, 'axis.yaml', { conditions: '  density: [1.0e4, 1.0e5]' });
     expectCleanError(hoarfrost(['model', 'axis.yaml', '--out', 'o'], dir), /single number.*hoarfrost grid/);
   });
+  it('names figure species the network lacks', () => {
+    expectCleanError(hoarfrost(['model', 'good.yaml', '--out', 'o', '--species', 'CO,H2O(ice)'], dir), /no species 'H2O\(ice\)'.*H2O\(s\)/);
+  });
   it('names a species of the initial composition that the network lacks', () => {
     pipeline(dir, 'si.yaml', { initial: '  H2: 0.5\n  Si+: 8.0e-9' });
     expectCleanError(hoarfrost(['model', 'si.yaml', '--out', 'o'], dir), /'Si\+'.*network 'mini-test'.*does not have/);
