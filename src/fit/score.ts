@@ -4,7 +4,10 @@
  * log10 X_obs,j, sigma_j from the observational error on the side of d
  * (upper error when the model lies above) combined with the model floor,
  * plus the censored cost of every limit. The loop runs on typed arrays and
- * allocates nothing.
+ * allocates nothing. Quantities are scored as independent, as the sum of
+ * physics.md section 6 is: ratios to one reference share that reference's
+ * observational error, a correlation this sum leaves out (it matters when the
+ * reference's error is comparable to the others and the model floor small).
  */
 import { lowerLimitCost, upperLimitCost } from './censored.ts';
 import type { ModelQuantities } from './model-quantities.ts';
