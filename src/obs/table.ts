@@ -492,6 +492,10 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
     const more = g.lines.length - MAX_WARNINGS_EACH;
     if (more > 0) warnings.push(`${table.file}: ... and ${more} more ${table.map ? 'pixels' : 'rows'} with the same warning for ${table.map ? 'image' : 'column'} '${colName(g.col)}'.`);
   }
+  if (!sightlines.some((s) => Object.keys(s.columns).length > 0)) {
+    const what = table.map ? 'pixel' : 'row';
+    throw new UserError(table.nrows === 0 ? `the table has no rows.` : `none of its ${table.nrows} ${what}${table.nrows > 1 ? 's' : ''} holds a column density; every species value is blank or not observed.`, { file: table.file });
+  }
   if (extinctionOnly > 0) warnings.push(`${table.file}: ${extinctionOnly} pixel${extinctionOnly > 1 ? 's have' : ' has'} an extinction but no column density of any species; not read as sightlines.`);
   const set: ObservationSet = {
     file: table.file,

@@ -57,6 +57,11 @@ describe('bad observation input', () => {
     expect(set.warnings[5]).toMatch(/manyerrors\.csv: \.\.\. and 7 more rows with the same warning for column 'N\(CO\(s\)\)_err'/);
   });
 
+  it('a table without rows, or with nothing observed', () => {
+    expect(error(() => load('empty.csv', 'id,AV,N(CO(s)),N(CO(s))_err\n')).message).toMatch(/empty\.csv: the table has no rows/);
+    expect(error(() => load('blank.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,,\nb,,nan,\n')).message).toMatch(/blank\.csv: none of its 2 rows holds a column density/);
+  });
+
   it('a limit with an error', () => {
     const e = error(() => load('limiterr.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,<1e17,1e16\n'));
     expect(e.message).toMatch(/limiterr\.csv:2, field 'N\(CO\(s\)\)_err': 'CO\(s\)' is an upper limit \('<1e17'\) but has an error \('1e16'\)/);
