@@ -209,8 +209,13 @@ export function readFits(file: string, bytes?: Uint8Array): FitsFile {
           ended = true;
           break;
         }
+        const prev = cards[cards.length - 1];
         if (card.slice(8, 10) === '= ' && key !== 'COMMENT' && key !== 'HISTORY' && key !== '') cards.push({ key, ...parseCardValue(card.slice(10)) });
-        else if (key !== '' || card.trim() !== '') cards.push({ key, comment: card.slice(8).trimEnd() });
+        else if (key === 'CONTINUE' && prev && typeof prev.value === 'string' && prev.value.endsWith('&')) {
+          // Long strings continued over cards (FITS Standard 4.0 §4.2.1.2): drop the '&' and append.
+          const more = parseCardValue(card.slice(8));
+          if (typeof more.value === 'string') prev.value = prev.value.slice(0, -1) + more.value;
+        } else if (key !== '' || card.trim() !== '') cards.push({ key, comment: card.slice(8).trimEnd() });
       }
       pos += FITS_BLOCK;
     }

@@ -189,6 +189,12 @@ describe('reader: values back from every BITPIX, scaling, blanks', () => {
     expect(f.hdus[0].header.get('CRVAL1')).toBe(125);
     expect(f.hdus[0].header.get('CTYPE1')).toBe("it's a /slash");
     expect(f.hdus[0].header.get('BUNIT')).toBe('km /s');
+
+    // A long string continued on a CONTINUE card (§4.2.1.2).
+    const long = ascii(base).replace("BBBBBBBB= 'x       '".padEnd(80), "OBJECT  = 'Frostmere, an invented dark cloud seen through many background st&'".padEnd(80))
+      .replace("CCCCCCCC= 'y       '".padEnd(80), "CONTINUE  'ars' / end of the name".padEnd(80));
+    const g = readFits('mem.fits', Uint8Array.from(long, (c) => c.charCodeAt(0)));
+    expect(g.hdus[0].header.get('OBJECT')).toBe('Frostmere, an invented dark cloud seen through many background stars');
   });
 });
 
