@@ -21,6 +21,9 @@ import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig } from '../../report/th
 const DEFAULT_FIGURE_SPECIES = ['CO', 'CO(s)', 'H2O(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)', 'HCO+', 'e-'];
 /** Abundances below this are not drawn on the log axis (they are all in the CSV). */
 const FIGURE_FLOOR = 1e-14;
+/** Ices given relative to water ice in the summary, as observers quote them (Boogert, Gerakines & Whittet 2015). */
+const WATER_ICE = 'H2O(s)';
+const ICE_RATIO_SPECIES = ['CO(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)', 'CH4(s)'];
 /** Species listed in the terminal summary. */
 const SUMMARY_COUNT = 8;
 
@@ -288,6 +291,9 @@ function summary(result: ModelResult, rows: number, networkName: string, outDir:
     const last = result.species.map((s, i) => ({ s, x: result.abundances[k * n + i] })).sort((a, b) => b.x - a.x);
     lines.push(`most abundant at ${result.timesYr[k].toPrecision(4)} yr (relative to H):`);
     for (const { s, x } of last.slice(0, SUMMARY_COUNT)) lines.push(`  ${s.padEnd(12)} ${x.toExponential(3)}`);
+    const water = result.species.indexOf(WATER_ICE);
+    const ratios = ICE_RATIO_SPECIES.filter((s) => result.species.includes(s)).map((s) => `${s.replace('(s)', '')} ${(result.abundances[k * n + result.species.indexOf(s)] / result.abundances[k * n + water]).toPrecision(2)}`);
+    if (water >= 0 && result.abundances[k * n + water] > 0 && ratios.length > 0) lines.push(`ices relative to H2O: ${ratios.join(', ')}`);
   }
   const c = result.conservation;
   lines.push(`conservation: largest relative drift ${c.maxRelativeDrift.toExponential(2)} (${c.worst})`);
