@@ -8,11 +8,12 @@
  */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join, relative, sep } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { FIT_OUTPUT_FILES, MAP_IMAGE_NAMES, type FitStageResult, type MapFitJson, type ProfilesJson } from '../fit/types.ts';
+import { mainStoreFile } from '../grid/plan.ts';
+import { PRESET_DIR } from '../model/initial.ts';
 import { DEFAULT_BAND_TABLE, deriveQuantities, loadObservations, sidecarPath, type ObservationSet, type ObservedQuantity } from '../obs/index.ts';
 import type { ReportProvenance } from '../report/types.ts';
 import { hashFile, hashValue } from './hash.ts';
@@ -42,11 +43,11 @@ export interface PipelineData {
 
 const OBSERVATIONS_JSON = 'observations/observations.json';
 const QUANTITIES_CSV = 'observations/quantities.csv';
-const STORE_FILE = 'store/models.sqlite';
+/** The grid's store of a whole grid (src/grid/plan.ts names it). */
+const STORE_DIR = 'store';
 const REPORT_DIR = 'report';
 /** Progress lines of a grid that is not on a terminal: at most one per this many ms. */
 const GRID_PROGRESS_INTERVAL_MS = 5000;
-const TOOL_CONFIG_DIR = join(dirname(fileURLToPath(import.meta.url)), '../../config');
 
 function writeOutput(outDir: string, rel: string, text: string | Uint8Array): void {
   const file = join(outDir, rel);
@@ -174,7 +175,7 @@ const grid: StageImpl<PipelineData, 'grid'> = {
     const c = pipeline.config;
     const files: Record<string, string> = { network: pipeline.resolvePath(c.network) };
     if (typeof c.initial === 'string' && /[\\/]|\.ya?ml$/i.test(c.initial)) files.initial = pipeline.resolvePath(c.initial);
-    else if (typeof c.initial === 'string') files.initial = join(TOOL_CONFIG_DIR, 'initial', `${c.initial}.yaml`);
+    else if (typeof c.initial === 'string') files.initial = join(PRESET_DIR, `${c.initial}.yaml`);
     // With model A_V tied to the sightlines, the grid depends on their A_V bins
     // alone: a change of the observed columns leaves the grid as it is.
     const held = needsSightlineTie(pipeline) ? heldParameters(pipeline, (await ctx.upstream('observe')).observations) : undefined;
@@ -226,13 +227,13 @@ const grid: StageImpl<PipelineData, 'grid'> = {
       process.removeListener('SIGINT', onSigint);
     }
   },
-  load: async ({ outDir }) => ({ storeFile: join(outDir, STORE_FILE) }),
+  load: async ({ outDir }) => ({ storeFile: mainStoreFile({ storeDir: join(outDir, STORE_DIR) }) }),
   // The bytes of an SQLite file depend on write order; the store's content is
   // its grid and, per point, the model's content hash and status (models are
   // deterministic in their inputs, which the content hash covers).
   outputHash: async ({ outDir }) => {
     const { ModelStore } = await import('../grid/store.ts');
-    const store = ModelStore.open(join(outDir, STORE_FILE), { readonly: true });
+    const store = ModelStore.open(mainStoreFile({ storeDir: join(outDir, STORE_DIR) }), { readonly: true });
     try {
       const rows = store.db.prepare('SELECT g.id, g.hash, m.status FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx').raw(true).all();
       return hashValue({ grid: store.meta()?.gridHash, models: rows });
