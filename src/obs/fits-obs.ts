@@ -36,7 +36,8 @@ export function readFitsObservations(file: string, hdu: string | number | undefi
   const f = readFits(file);
   const isImage = (h: FitsHduInfo) => (h.kind === 'primary' || h.kind === 'image') && h.naxis.length >= 2;
   if (hdu !== undefined) {
-    const h = typeof hdu === 'number' ? f.hdus[hdu] : f.hdus.find((x) => x.name === hdu);
+    // EXTNAME matches exactly, else ignoring case (astropy upper-cases EXTNAME when it writes).
+    const h = typeof hdu === 'number' ? f.hdus[hdu] : f.hdus.find((x) => x.name === hdu) ?? f.hdus.find((x) => x.name?.toUpperCase() === hdu.toUpperCase());
     if (!h) throw new UserError(`the file has no HDU ${typeof hdu === 'number' ? `number ${hdu}` : `named '${hdu}'`}; it has ${f.hdus.map(label).join(', ')}.`, { file, field: 'hdu' });
     if (h.kind === 'bintable') return tableOf(f, h);
     if (!isImage(h)) throw new UserError(`${label(h)} is neither a binary table nor a 2-D image.`, { file, field: 'hdu' });

@@ -196,7 +196,7 @@ describe.skipIf(!HAVE_ASTROPY)('FITS against astropy.io.fits', () => {
     const cols = readFitsBinaryTable(f, f.hdus[1]);
     for (const c of cols) expect(c.values.map((v) => (typeof v === 'number' && Number.isNaN(v) ? null : v))).toEqual(py.astropy_table[c.name]);
     expect(cols.find((c) => c.name === 'AV')!.unit).toBe('mag');
-    const set = loadObservations(section({ file: `${dir}/astropy-table.fits` }), dir);
+    const set = loadObservations(section({ file: `${dir}/astropy-table.fits`, hdu: 'ices' }), dir);
     expect(set.sightlines.map((s) => s.id)).toEqual(['cA-1', 'cA-2', 'cA-3']);
     expect(set.sightlines.map((s) => s.columns['H2O(s)'].value)).toEqual(py.astropy_table['N(H2O(s))']);
     expect(set.sightlines.map((s) => s.avErr)).toEqual(py.astropy_table.AV_err);
