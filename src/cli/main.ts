@@ -19,7 +19,17 @@ export interface CommandContext {
 
 export type RegisterCommand = (program: Command, ctx: CommandContext) => void;
 
+/** A reader that closed the pipe (`hoarfrost ... | head`) is not an error of the run. */
+function quietOnClosedPipe(stream: NodeJS.WriteStream): void {
+  stream.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw e;
+  });
+}
+
 export async function main(argv: string[]): Promise<number> {
+  quietOnClosedPipe(process.stdout);
+  quietOnClosedPipe(process.stderr);
   let exitCode = 0;
   const ctx: CommandContext = {
     setExitCode: (code) => {
