@@ -150,7 +150,7 @@ function conventionSpecies(written: string, known: ReadonlySet<string> | undefin
 function buildPlan(table: RawTable, opts: TableOptions, problems: UserError[], warnings: string[]): Plan {
   const m = opts.mapping ?? {};
   const mapSrc = opts.mappingSource ?? 'the column mapping';
-  const what = table.map ? 'image (EXTNAME)' : 'column';
+  const what = table.map ? 'image' : 'column';
   const plan: Plan = { extinctionFactors: new Map(), species: [], used: new Set() };
   const file = table.file;
 
