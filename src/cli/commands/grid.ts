@@ -51,7 +51,7 @@ export function register(program: Command, ctx: CommandContext): void {
           return;
         }
         const out = [
-          `grid of ${pipeline.file}${shard ? `, shard ${shardLabel(shard)}` : ''}: ${s.points} points (${plan.grid.varied.length > 0 ? `varied: ${plan.grid.varied.join(', ')}` : 'a single point'}${plan.grid.excluded > 0 ? `; ${plan.grid.excluded} excluded` : ''})`,
+          `grid of ${pipeline.file}${shard ? `, shard ${shardLabel(shard)}` : ''}: ${s.points} point${s.points === 1 ? '' : 's'} (${plan.grid.varied.length > 0 ? `varied: ${plan.grid.varied.join(', ')}` : 'a single point'}${plan.grid.excluded > 0 ? `; ${plan.grid.excluded} excluded` : ''})`,
           `store: ${storeFile}${s.storeExists ? '' : ' (not created yet)'}`,
           `  done     ${s.done}`,
           `  failed   ${s.failed}`,
