@@ -4,10 +4,11 @@
  * before anything is copied. A point found in more than one shard is copied
  * once and reported; points no shard has are reported as missing.
  */
-import { readdirSync } from 'node:fs';
-import { basename, join } from 'node:path';
+import { mkdirSync, readdirSync } from 'node:fs';
+import { basename, dirname, join } from 'node:path';
 import { UserError, UserErrors } from '../config/errors.ts';
 import { mainStoreFile, type GridPlan } from './plan.ts';
+import { acquireRunLock } from './run-lock.ts';
 import { ModelStore } from './store.ts';
 
 const SHARD_FILE_PATTERN = /^shard-(\d+)-of-(\d+)\.sqlite$/;
@@ -94,7 +95,15 @@ export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStor
   if (problems.length === 1) throw problems[0];
   if (problems.length > 1) throw new UserErrors(`${problems.length} shard stores cannot be merged; nothing was copied:`, problems);
 
-  const store = ModelStore.open(storeFile);
+  mkdirSync(dirname(storeFile), { recursive: true });
+  const release = acquireRunLock(storeFile);
+  let store: ModelStore;
+  try {
+    store = ModelStore.open(storeFile);
+  } catch (e) {
+    release();
+    throw e;
+  }
   try {
     store.setGrid({
       gridHash: plan.gridHash,
@@ -147,5 +156,6 @@ export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStor
     };
   } finally {
     store.close();
+    release();
   }
 }

@@ -3,7 +3,8 @@
  * the process computing into it, so a second `hoarfrost grid` on the same
  * pipeline stops with a clear message instead of computing the same models
  * twice. A lock left by a killed process on this host is taken over.
- * (Shard stores need none: they are opened with SQLite's exclusive locking.)
+ * Merging takes the same lock. (Shard stores need none: they are opened
+ * with SQLite's exclusive locking.)
  */
 import { readFileSync, unlinkSync, writeFileSync } from 'node:fs';
 import { hostname } from 'node:os';
