@@ -167,7 +167,8 @@ export function reportHtml(h: HtmlInput): string {
     );
     return `<h3>${escapeHtml(heading.replace(/^[a-z]/, (c) => c.toUpperCase()))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
   });
-  const allWarnings = [...input.observations.warnings, ...input.fit.warnings, ...h.warnings];
+  // The fit stage repeats the observations' warnings: each is shown once.
+  const allWarnings = [...new Set([...input.observations.warnings, ...input.fit.warnings, ...h.warnings])];
   const fixed = Object.entries(input.fit.fixedParameters);
   return `<!DOCTYPE html>
 <html lang="en">
@@ -181,14 +182,14 @@ export function reportHtml(h: HtmlInput): string {
 <body data-ready="false">
 <header>
 <h1>${escapeHtml(title)}</h1>
-<p>${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${numberHtml(v, 3)}`).join(', ')}.` : ''}</p>
-<p class="files">Tables: ${linksHtml(h.tableLinks)}</p>
+<p>${input.map && h.table.rows.length === 0 ? `${input.map.fittedPixels} of ${input.map.nx * input.map.ny} map pixels` : `${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'}`} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${numberHtml(v, 3)}`).join(', ')}.` : ''}</p>
+<p class="files">Tables and images: ${linksHtml(h.tableLinks)}</p>
 <p id="embed-error" hidden></p>
 </header>
 <section id="summary">
 <h2>Best fits</h2>
-<div class="scroll">${summaryHtml(h.table)}</div>
-<p class="files">‡ the interval reaches the edge of the model grid. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>
+${h.table.rows.length > 0 ? `<div class="scroll">${summaryHtml(h.table)}</div>` : '<p>No sightline table: the per-pixel best fits of the map are in the sky maps below and in the FITS images linked above.</p>'}
+${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>' : ''}
 </section>
 <section id="cautions">
 <h2>Read these results with care</h2>

@@ -119,6 +119,21 @@ describe('figure builders', () => {
     expect(text).toContain(`/MediaBox [0 0 ${out.width} ${out.height}]`);
   });
 
+  it('draws a map without sightline fits against A_V from the map images, one point per pixel', async () => {
+    const input = syntheticInput({ map: { nx: 6, ny: 5 } });
+    input.fit.fits = [];
+    input.observations.sightlines = Array.from({ length: 30 }, (_, i) => ({ id: `${i % 6},${Math.floor(i / 6)}`, av: 3 + i, pixel: { x: i % 6, y: Math.floor(i / 6) }, columns: {}, source: { file: 'map.fits' } }));
+    const warnings: string[] = [];
+    const figs = buildFigures(input, warnings);
+    expect(figs.map((f) => f.kind)).toEqual(['sky_map', 'sky_map', 'sky_map', 'fit_vs_av']);
+    const spec = figs[3].spec as { vconcat: { data: { values: { value: number }[] } }[] };
+    // 30 pixels, one without a fit in the images (x 0, y 4).
+    expect(spec.vconcat[0].data.values).toHaveLength(29);
+    expect(spec.vconcat[0].data.values[5].value).toBeCloseTo(1e6, 6);
+    expect(validate(figs[3].spec)).toBe(true);
+    expect((await renderSvg(figs[3].spec)).warnings).toEqual([]);
+  });
+
   it('drops only all-gap-zero dash patterns before the PDF', () => {
     expect(solidDashesRemoved('<path stroke-dasharray="1,0" d="M0"/>')).toBe('<path d="M0"/>');
     expect(solidDashesRemoved('<path stroke-dasharray="4,2" d="M0"/>')).toBe('<path stroke-dasharray="4,2" d="M0"/>');

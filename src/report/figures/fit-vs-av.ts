@@ -5,14 +5,20 @@
  * lie outside the grid).
  */
 import type { TopLevelSpec } from 'vega-lite';
+import type { Sightline } from '../../obs/types.ts';
 import { figureConfig, figureSize } from '../theme.ts';
 import { AV_TITLE, logAxis, paddedDomain, parameterTitle, positionScale, scaleKind } from './axes.ts';
 import { bestValue, levelLabel, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 const PANEL_PARAMETERS = ['density', 'age_yr'] as const;
+const MAP_IMAGE_OF: Record<string, 'best_density' | 'best_age_yr'> = { density: 'best_density', age_yr: 'best_age_yr' };
 /** Short labels: vega estimates text widths generously, and a wide legend widens the figure past a column. */
 const EDGE_LABELS = { inside: 'within grid', edge: 'at grid edge' };
 const PANEL_ASPECT = 0.55;
+/** Above this many points (map pixels) the symbols shrink so that the cloud of points stays readable. */
+const MANY_POINTS = 60;
+const POINT_SIZE = 28;
+const SMALL_POINT_SIZE = 7;
 
 interface Row {
   sightline: string;
@@ -25,36 +31,54 @@ interface Row {
   interval: string;
 }
 
+function sightlineRows(ctx: FigureContext, parameter: string, av: Map<string, Sightline>, level: number): Row[] {
+  const rows: Row[] = [];
+  for (const fit of ctx.input.fit.fits) {
+    const s = av.get(fit.sightline);
+    const value = bestValue(fit, parameter);
+    if (s?.av === undefined || value === undefined) continue;
+    const iv = fit.intervals.find((i) => i.parameter === parameter && Math.abs(i.level - level) < 1e-9);
+    rows.push({
+      sightline: fit.sightline,
+      av: s.av,
+      avLo: s.av - (s.avErr ?? 0),
+      avHi: s.av + (s.avErr ?? 0),
+      value,
+      lo: iv?.lo ?? value,
+      hi: iv?.hi ?? value,
+      interval: iv && (iv.loAtEdge || iv.hiAtEdge) ? EDGE_LABELS.edge : EDGE_LABELS.inside,
+    });
+  }
+  return rows;
+}
+
+/** Map pixels: best values from the map images against each pixel's A_V; the images hold interval widths, not bounds, so no bars. */
+function pixelRows(ctx: FigureContext, parameter: string): Row[] {
+  const map = ctx.input.map;
+  if (!map) return [];
+  const image = map.images[MAP_IMAGE_OF[parameter]];
+  const rows: Row[] = [];
+  for (const s of ctx.input.observations.sightlines) {
+    if (!s.pixel || s.av === undefined) continue;
+    const value = image[s.pixel.y * map.nx + s.pixel.x];
+    if (value === null || value === undefined) continue;
+    const edge = map.images.at_edge[s.pixel.y * map.nx + s.pixel.x] === 1;
+    rows.push({ sightline: s.id, av: s.av, avLo: s.av, avHi: s.av, value, lo: value, hi: value, interval: edge ? EDGE_LABELS.edge : EDGE_LABELS.inside });
+  }
+  return rows;
+}
+
 export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
   const { plotWidth } = figureSize(ctx.input.config.column_width_in, false);
   const av = new Map(ctx.input.observations.sightlines.map((s) => [s.id, s] as const));
   const level = ctx.levels[0];
-  const panels = PANEL_PARAMETERS.map((parameter) => {
-    const rows: Row[] = [];
-    for (const fit of ctx.input.fit.fits) {
-      const s = av.get(fit.sightline);
-      const value = bestValue(fit, parameter);
-      if (s?.av === undefined || value === undefined) continue;
-      const iv = fit.intervals.find((i) => i.parameter === parameter && Math.abs(i.level - level) < 1e-9);
-      rows.push({
-        sightline: fit.sightline,
-        av: s.av,
-        avLo: s.av - (s.avErr ?? 0),
-        avHi: s.av + (s.avErr ?? 0),
-        value,
-        lo: iv?.lo ?? value,
-        hi: iv?.hi ?? value,
-        interval: iv && (iv.loAtEdge || iv.hiAtEdge) ? EDGE_LABELS.edge : EDGE_LABELS.inside,
-      });
-    }
-    return { parameter, rows };
-  });
+  const panels = PANEL_PARAMETERS.map((parameter) => ({ parameter, rows: ctx.input.fit.fits.length > 0 ? sightlineRows(ctx, parameter, av, level) : pixelRows(ctx, parameter) }));
   const allAv = panels[0].rows.flatMap((r) => [r.avLo, r.avHi]);
   const xDomain = paddedDomain('linear', allAv, 0.05);
   const xBase = { field: 'av', type: 'quantitative' as const, scale: { domain: xDomain, nice: false, zero: false } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: 'Best fits against extinction', subtitle: `error bars: ${levelLabel(level)} intervals` },
+    title: { text: 'Best fits against extinction', subtitle: ctx.input.fit.fits.length > 0 ? `error bars: ${levelLabel(level)} intervals` : 'one point per map pixel' },
     config: figureConfig(),
     vconcat: panels.map(({ parameter, rows }, p) => {
       const values = rows.flatMap((r) => [r.lo, r.hi]);
@@ -76,7 +100,7 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
           { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' } } },
           { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x: { ...x, field: 'avLo' }, x2: { field: 'avHi' }, y } },
           {
-            mark: { type: 'point', size: 28, filled: true, opacity: 1, stroke: '#000000', strokeWidth: 1, tooltip: true },
+            mark: { type: 'point', size: rows.length > MANY_POINTS ? SMALL_POINT_SIZE : POINT_SIZE, filled: true, opacity: 1, stroke: '#000000', strokeWidth: rows.length > MANY_POINTS ? 0.5 : 1, tooltip: true },
             encoding: {
               x,
               y,
@@ -101,8 +125,10 @@ export const fitVsAvFigure: FigureBuilder = {
   description: 'best-fit density and age against visual extinction across sightlines',
   perSightline: false,
   unavailable(ctx) {
-    const withAv = new Set(ctx.input.observations.sightlines.filter((s) => s.av !== undefined).map((s) => s.id));
-    return ctx.input.fit.fits.some((f) => withAv.has(f.sightline)) ? undefined : 'no fitted sightline has an observed A_V';
+    const withAv = ctx.input.observations.sightlines.filter((s) => s.av !== undefined);
+    if (ctx.input.fit.fits.length === 0 && ctx.input.map) return withAv.some((s) => s.pixel) ? undefined : 'no map pixel has an observed A_V';
+    const ids = new Set(withAv.map((s) => s.id));
+    return ctx.input.fit.fits.some((f) => ids.has(f.sightline)) ? undefined : 'no fitted sightline has an observed A_V';
   },
   build(ctx: FigureContext, request: FigureRequest): BuiltFigure[] {
     return [

@@ -25,8 +25,10 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
   table: ['fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
-  map: ['sky_map', 'fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+  map: ['sky_map', 'fit_vs_av'],
 };
+/** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
+const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'tracks'];
 
 export function figureContext(input: ReportInput, warnings: string[]): FigureContext {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
@@ -64,7 +66,7 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
   if (input.config.sightlines) checkSightlines(input.config.sightlines, 'report.sightlines');
   const raw: { cfg: Exclude<FigureRequestConfig, string> | { kind: string }; field: string; explicit: boolean }[] = input.config.figures
     ? input.config.figures.map((f, i) => ({ cfg: typeof f === 'string' ? { kind: f } : f, field: `report.figures[${i}]`, explicit: true }))
-    : DEFAULT_KINDS[input.observations.kind].map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
+    : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])].map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
   const requests: FigureRequest[] = [];
   const names = new Map<string, string>();
   for (const { cfg, field, explicit } of raw) {

@@ -9,6 +9,9 @@ import { figureConfig, figureSize, MAP_SCHEME, SEQUENTIAL_SCHEME } from '../them
 import { CHI2_TITLE, logAxis, scaleKind } from './axes.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
 
+/** Overlap of a pixel cell into its upper neighbours, pixels. */
+const CELL_OVERLAP = 0.3;
+
 interface SkyImage {
   image: MapImageName;
   title: string;
@@ -30,7 +33,8 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
     if (v === null || !Number.isFinite(v)) return;
     const px = i % map.nx;
     const py = Math.floor(i / map.nx);
-    rows.push({ x: px - 0.5, x2: px + 0.5, y: py - 0.5, y2: py + 0.5, px, py, value: v });
+    // Cells reach a little into their upper neighbours: abutting cells otherwise show hairline seams once antialiased.
+    rows.push({ x: px - 0.5, x2: px + 0.5 + CELL_OVERLAP, y: py - 0.5, y2: py + 0.5 + CELL_OVERLAP, px, py, value: v });
   });
   const kind = scaleKind(rows.map((r) => r.value));
   const finite = rows.map((r) => r.value);
@@ -44,7 +48,7 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
     height,
     config: figureConfig(),
     data: { values: rows },
-    mark: { type: 'rect', tooltip: true },
+    mark: { type: 'rect', tooltip: true, clip: true },
     encoding: {
       x: { field: 'x', type: 'quantitative', title: 'Pixel x', axis: { grid: false }, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } },
       x2: { field: 'x2' },
