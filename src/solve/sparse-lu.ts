@@ -40,7 +40,7 @@ export const PIVOT_THRESHOLD = 0.1;
 /** First guess of the room for L and U, in multiples of nnz(A). */
 const INITIAL_FILL_FACTOR = 4;
 /** A dense multiply-add in the factorisation costs about 1/DENSE_FACTOR_SPEEDUP of a sparse one (measured on Node 20). */
-const DENSE_FACTOR_SPEEDUP = 3;
+const DENSE_FACTOR_SPEEDUP = 4;
 /** In triangular solves a dense entry costs about 1/DENSE_SOLVE_SPEEDUP of a sparse one (measured). */
 const DENSE_SOLVE_SPEEDUP = 1.5;
 /** Newton solves per factorisation in a BDF run, to weigh solve cost against factorisation cost (measured: 10 to 20). */
