@@ -7,7 +7,8 @@
  * reload them instead of recomputing.
  */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { dirname, join, relative, sep } from 'node:path';
+import { basename, dirname, extname, join, relative, sep } from 'node:path';
+import { isTableFile } from '../chem/network-table.ts';
 import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
@@ -83,6 +84,13 @@ function fitSection(pipeline: Pipeline) {
   return section;
 }
 
+/** The network file and, for a CSV/TSV network, the column mapping beside it. */
+function networkFiles(pipeline: Pipeline): Record<string, string> {
+  const network = pipeline.resolvePath(pipeline.config.network);
+  if (!isTableFile(network)) return { network };
+  return { network, network_mapping: join(dirname(network), basename(network, extname(network)) + '.mapping.yaml') };
+}
+
 /** The files the observation readers read: the data, its column mapping, the band strengths. */
 function observationFiles(pipeline: Pipeline): Record<string, string> {
   const s = observationsSection(pipeline);
@@ -94,7 +102,7 @@ function observationFiles(pipeline: Pipeline): Record<string, string> {
       field: 'observations.file',
     });
   }
-  const files: Record<string, string> = { observations: data, network: pipeline.resolvePath(pipeline.config.network) };
+  const files: Record<string, string> = { observations: data, ...networkFiles(pipeline) };
   files.columns = s.columns_file ? pipeline.resolvePath(s.columns_file) : sidecarPath(data);
   files.band_strengths = s.band_strengths ? pipeline.resolvePath(s.band_strengths) : DEFAULT_BAND_TABLE;
   return files;
@@ -173,7 +181,7 @@ const grid: StageImpl<PipelineData, 'grid'> = {
   inputs: async (ctx) => {
     const { pipeline } = ctx;
     const c = pipeline.config;
-    const files: Record<string, string> = { network: pipeline.resolvePath(c.network) };
+    const files: Record<string, string> = networkFiles(pipeline);
     if (typeof c.initial === 'string' && /[\\/]|\.ya?ml$/i.test(c.initial)) files.initial = pipeline.resolvePath(c.initial);
     else if (typeof c.initial === 'string') files.initial = join(PRESET_DIR, `${c.initial}.yaml`);
     // With model A_V tied to the sightlines, the grid depends on their A_V bins
