@@ -99,6 +99,8 @@ export function massActionNetwork(options: MassActionOptions): {
   problem: OdeProblem;
   y0: Float64Array;
   reactions: number;
+  /** The reactions, for cross-checks with other integrators; index -1 means none. */
+  reactionList: { reactant1: Int32Array; reactant2: Int32Array; product1: Int32Array; product2: Int32Array; rate: Float64Array };
 } {
   const n = options.species;
   const hubs = options.hubs ?? Math.min(12, Math.max(1, Math.floor(n / 10)));
@@ -217,5 +219,5 @@ export function massActionNetwork(options: MassActionOptions): {
   y0[0] = 0.5;
   for (let s = 1; s < hubs; s++) y0[s] = logUniform(-4, -2);
   for (let s = hubs; s < n; s++) y0[s] = random() < 0.8 ? logUniform(-12, -6) : 0;
-  return { problem, y0, reactions: nr };
+  return { problem, y0, reactions: nr, reactionList: { reactant1: R1, reactant2: R2, product1: P1, product2: P2, rate: K } };
 }
