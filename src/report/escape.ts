@@ -62,13 +62,6 @@ export function escapeLatex(text: string): string {
   return text.replace(/[\u0000-\u001f\u007f]/g, ' ').replace(/[\\{}$&#%_^~<>|]/g, (c) => LATEX_SPECIALS[c]);
 }
 
-const XML_ENTITIES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&apos;' };
-
-/** Escape text for XML (SVG) content and attributes. */
-export function escapeXml(text: string): string {
-  return text.replace(/[&<>"']/g, (c) => XML_ENTITIES[c]);
-}
-
 /** A file-name fragment from user text (a sightline name): ASCII letters, digits, `-` and `_` only. */
 export function slug(text: string, maxLength = 40): string {
   const s = text

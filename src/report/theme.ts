@@ -8,8 +8,6 @@
 import type { Config } from 'vega-lite';
 
 export const FIGURE_FONT = 'DejaVu Sans';
-/** Width of one column of a two-column journal page, inches (common practice: 3.3 to 3.5 in). */
-export const DEFAULT_COLUMN_WIDTH_IN = 3.4;
 /** One Vega pixel is drawn as one point. */
 export const PIXELS_PER_INCH = 72;
 /** Room left for the y axis, its title and the colour legend beside a plot, pixels. */

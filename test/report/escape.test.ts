@@ -1,9 +1,9 @@
 /**
- * Text from user files is data: escaped for HTML, XML, LaTeX and inline
- * scripts so that it shows as written and runs nothing.
+ * Text from user files is data: escaped for HTML, LaTeX and inline
+ * scripts (SVG text is escaped by vega: checked in figures.test.ts) so that it shows as written and runs nothing.
  */
 import { describe, expect, it } from 'vitest';
-import { escapeHtml, escapeLatex, escapeXml, inlineScriptSource, jsonForScript, slug } from '../../src/report/escape.ts';
+import { escapeHtml, escapeLatex, inlineScriptSource, jsonForScript, slug } from '../../src/report/escape.ts';
 
 describe('escapeHtml', () => {
   it('escapes the five characters HTML gives meaning to (HTML Living Standard, character references)', () => {
@@ -13,12 +13,6 @@ describe('escapeHtml', () => {
   });
   it('escapes an ampersand once, so an entity in the data stays visible as written', () => {
     expect(escapeHtml('&lt;')).toBe('&amp;lt;');
-  });
-});
-
-describe('escapeXml', () => {
-  it('escapes markup and both quotes', () => {
-    expect(escapeXml(`<g a="1">'&'</g>`)).toBe('&lt;g a=&quot;1&quot;&gt;&apos;&amp;&apos;&lt;/g&gt;');
   });
 });
 

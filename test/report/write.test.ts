@@ -50,7 +50,7 @@ describe('writeReport on a table of sightlines', () => {
   let files: ReportFiles;
   beforeAll(async () => {
     dir = scratch();
-    files = await writeReport(syntheticInput({ config: { formats: ['svg', 'png', 'pdf'], png_dpi: 150 } }), join(dir, 'report'));
+    files = await writeReport(syntheticInput({ config: { formats: ['svg', 'png', 'pdf'], png_dpi: 72 } }), join(dir, 'report'));
   });
 
   it('writes every file it lists, inside the report folder, and nothing else', () => {
@@ -225,6 +225,14 @@ describe('refusing bad requests', () => {
   it('refuses a sky map for a table, and sightlines without a fit', async () => {
     await expectUserErrorAsync(writeReport(syntheticInput({ config: { figures: ['sky_map'] } }), join(scratch(), 'r')), "'sky_map' cannot be drawn", 'not a map');
     await expectUserErrorAsync(writeReport(syntheticInput({ config: { figures: [{ kind: 'tracks', sightlines: ['Nowhere-9'] }] } }), join(scratch(), 'r')), "'Nowhere-9' has no fit", 'Frostmere-01');
+  });
+
+  it('refuses quantities that were not fitted, and draws only the asked ones', async () => {
+    await expectUserErrorAsync(writeReport(syntheticInput({ config: { species: ['HCN'] } }), join(scratch(), 'r')), "'HCN' is not among the fitted quantities", 'CO(s)/H2O(s)', "field 'report.species'");
+    const files = await writeReport(syntheticInput({ config: { formats: ['svg'], figures: [{ kind: 'tracks', name: 'co', sightlines: ['Frostmere-01'], species: ['CO(s)', 'X(CO)'] }] } }), join(scratch(), 'r'));
+    const spec = JSON.parse(readFileSync(files.figures[0].spec, 'utf8'));
+    const labels = new Set(JSON.stringify(spec).match(/"quantity":"[^"]+"/g));
+    expect([...labels].sort()).toEqual(['"quantity":"CO(s)/H2O(s)"', '"quantity":"X(CO)"']);
   });
 
   it('refuses two figures of one name', async () => {

@@ -64,6 +64,15 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
     }
   };
   if (input.config.sightlines) checkSightlines(input.config.sightlines, 'report.sightlines');
+  const quantityNames = new Set([...input.quantities.flatMap((q) => [q.label, q.numerator]), ...input.tracks.map((t) => t.label)]);
+  const checkSpecies = (list: string[], field: string): void => {
+    const missing = list.filter((s) => !quantityNames.has(s));
+    if (missing.length > 0) {
+      const labels = [...new Set(input.quantities.map((q) => q.label))].map((l) => `'${l}'`).join(', ');
+      problems.push(new UserError(`${missing.map((s) => `'${s}'`).join(', ')} ${missing.length > 1 ? 'are' : 'is'} not among the fitted quantities; name a quantity (${labels}) or its species.`, where(input, field)));
+    }
+  };
+  if (input.config.species) checkSpecies(input.config.species, 'report.species');
   const raw: { cfg: Exclude<FigureRequestConfig, string> | { kind: string }; field: string; explicit: boolean }[] = input.config.figures
     ? input.config.figures.map((f, i) => ({ cfg: typeof f === 'string' ? { kind: f } : f, field: `report.figures[${i}]`, explicit: true }))
     : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])].map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
@@ -95,6 +104,7 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
     names.set(name, field);
     const sightlines = full.sightlines ?? defaultSightlines(input);
     if (full.sightlines) checkSightlines(full.sightlines, `${field}.sightlines`);
+    if (full.species) checkSpecies(full.species, `${field}.species`);
     requests.push({ kind: builder.kind, name, named: full.name !== undefined, explicit, sightlines, species: full.species ?? input.config.species ?? [], formats: full.formats, field });
   }
   if (problems.length === 1) throw problems[0];

@@ -185,8 +185,9 @@ export const tracksFigure: FigureBuilder = {
       const fit = ctx.fits.get(id);
       if (!fit) continue;
       const runnerUpIds = new Set(fit.runnerUps.slice(0, runnerUps).map((r) => r.modelId));
+      const numerators = new Map(ctx.input.quantities.map((q) => [q.label, q.numerator] as const));
       const tracks = ctx.input.tracks.filter(
-        (t) => t.sightline === id && wanted(t.label, t.label.split('/')[0], request.species) && (t.role === 'best' || runnerUpIds.has(t.modelId)),
+        (t) => t.sightline === id && wanted(t.label, numerators.get(t.label) ?? t.label, request.species) && (t.role === 'best' || runnerUpIds.has(t.modelId)),
       );
       const observed = ctx.input.quantities.filter((q) => q.sightline === id && wanted(q.label, q.numerator, request.species));
       if (tracks.length === 0) {
