@@ -8,6 +8,8 @@
  *
  * To add a problem, call `benchProblem(name, makeProblem)` or append to
  * `PROBLEMS`; `makeProblem` builds everything outside the timed region.
+ * CPU time is printed beside wall time because the machine may be shared:
+ * under load the wall time says more about the neighbours than the solver.
  */
 import { pathToFileURL } from 'node:url';
 import { integrate, type IntegrateOptions, type IntegrateResult, type OdeProblem } from '../src/solve/index.ts';
@@ -16,6 +18,7 @@ import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../src/config/conditio
 import { loadNetwork } from '../src/chem/network.ts';
 import { compile } from '../src/chem/system.ts';
 import { initialState, loadInitialComposition } from '../src/model/run.ts';
+import { DENSE_MAX_N, SparseNewtonMatrix } from '../src/solve/newton-matrix.ts';
 
 /** Julian year in seconds (IAU). */
 const YEAR = 3.15576e7;
@@ -87,7 +90,19 @@ export function benchProblem(name: string, makeProblem: () => BenchCase, repeats
       `heap ${row.heapAfterMiB.toFixed(1)} MiB  peak rss ${row.peakRssMiB.toFixed(0)} MiB  ${row.status}`,
   );
   if (bench.note) console.log(`  ${bench.note}`);
+  if (row.n > DENSE_MAX_N) console.log(`  ${luStructure(bench)}`);
   return row;
+}
+
+/** Fill of the sparse LU of I - c J at the initial state, for the record. */
+function luStructure(bench: BenchCase): string {
+  const { problem, y0 } = bench;
+  const jacobian = new Float64Array(problem.pattern.rowPtr[problem.n]);
+  problem.jacobian(0, y0, jacobian);
+  const matrix = new SparseNewtonMatrix(problem.n, problem.pattern);
+  matrix.factor(jacobian, 1e10);
+  const { nnzL, nnzU, denseTail } = matrix.lu.stats;
+  return `sparse LU: nnz(L + U) = ${nnzL + nnzU - problem.n} of ${problem.n * problem.n}, dense tail ${denseTail}`;
 }
 
 const logSpaced = (from: number, to: number, count: number): number[] =>
