@@ -244,6 +244,38 @@ describe('a mass-action network on the sparse path', () => {
   });
 });
 
+describe('options', () => {
+  it('nonNegative clips the round-off negatives that loose tolerances give (Robertson, atol 1e-6)', () => {
+    const { problem, y0 } = robertson();
+    const times = logSpaced(1e-4, 1e11, 30);
+    const loose = { rtol: 1e-3, atol: 1e-6 };
+    const plain = integrate(problem, y0, times, loose);
+    const clipped = integrate(problem, y0, times, { ...loose, nonNegative: true });
+    expect(plain.status).toBe('ok');
+    expect(clipped.status).toBe('ok');
+    const smallest = (r: typeof plain): number => Math.min(...r.y.map((y) => Math.min(...y)));
+    expect(smallest(plain)).toBeLessThan(0);
+    expect(smallest(clipped)).toBe(0);
+    // Clipping moves mass by no more than about atol.
+    for (const y of clipped.y) expect(Math.abs(y[0] + y[1] + y[2] - 1)).toBeLessThan(1e-5);
+  });
+
+  it('honours maxStep, initialStep and a per-component atol', () => {
+    const { problem, y0 } = robertson();
+    const free = integrate(problem, y0, [1e3], { rtol: 1e-6, atol: 1e-12 });
+    const bounded = integrate(problem, y0, [1e3], { rtol: 1e-6, atol: 1e-12, maxStep: 5 });
+    expect(bounded.status).toBe('ok');
+    expect(bounded.stats.steps).toBeGreaterThanOrEqual(200);
+    expect(bounded.stats.steps).toBeGreaterThan(free.stats.steps);
+    const started = integrate(problem, y0, [1e3], { rtol: 1e-6, atol: 1e-12, initialStep: 1e-9 });
+    const perComponent = integrate(problem, y0, [1e3], { rtol: 1e-6, atol: Float64Array.from([1e-12, 1e-16, 1e-12]) });
+    for (const r of [bounded, started, perComponent]) {
+      expect(r.status).toBe('ok');
+      for (let i = 0; i < 3; i++) expect(Math.abs(r.y[0][i] / free.y[0][i] - 1)).toBeLessThan(1e-4);
+    }
+  });
+});
+
 describe('failures are statuses, never exceptions or endless loops', () => {
   it('reports a right-hand side that is NaN from the start', () => {
     const { problem, y0 } = robertson();
