@@ -240,6 +240,12 @@ describe('refusing bad requests', () => {
     await expectUserErrorAsync(writeReport(input, join(scratch(), 'r')), "'fig1' is used twice");
   });
 
+  it('says so when a survey has more sightlines than get figures by default', async () => {
+    const files = await writeReport(syntheticInput({ config: { formats: ['svg'], max_sightline_figures: 1, figures: ['profiles', 'chi2_map'] } }), join(scratch(), 'r'));
+    expect(files.figures.map((f) => f.name)).toEqual(['profiles_01_Frostmere-01', 'chi2_map_01_Frostmere-01']);
+    expect(files.warnings).toEqual(['per-sightline figures are drawn for the first 1 of 4 sightlines; list the ones you want in report.sightlines or raise report.max_sightline_figures.']);
+  });
+
   it('keeps a given name for a one-sightline figure', async () => {
     const files = await writeReport(syntheticInput({ config: { formats: ['svg'], figures: [{ kind: 'chi2_map', name: 'fig3', sightlines: ['Frostmere-01'] }] } }), join(scratch(), 'r'));
     expect(files.figures.map((f) => f.name)).toEqual(['fig3']);

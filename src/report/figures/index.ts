@@ -45,11 +45,14 @@ function where(input: ReportInput, field: string): { file?: string; field: strin
   return { file: input.configFile, field };
 }
 
-/** The sightlines that get per-sightline figures by default. */
-function defaultSightlines(input: ReportInput): string[] {
+/** The sightlines that get per-sightline figures by default (a cut is reported once). */
+function defaultSightlines(input: ReportInput, warnings: string[]): string[] {
   const cfg = input.config;
   if (cfg.sightlines) return cfg.sightlines;
   if (input.observations.kind === 'map') return [];
+  const n = input.fit.fits.length;
+  const cut = `per-sightline figures are drawn for the first ${cfg.max_sightline_figures} of ${n} sightlines; list the ones you want in report.sightlines or raise report.max_sightline_figures.`;
+  if (n > cfg.max_sightline_figures && !warnings.includes(cut)) warnings.push(cut);
   return input.fit.fits.slice(0, cfg.max_sightline_figures).map((f) => f.sightline);
 }
 
@@ -102,7 +105,7 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
       continue;
     }
     names.set(name, field);
-    const sightlines = full.sightlines ?? defaultSightlines(input);
+    const sightlines = full.sightlines ?? (builder.perSightline ? defaultSightlines(input, ctx.warnings) : []);
     if (full.sightlines) checkSightlines(full.sightlines, `${field}.sightlines`);
     if (full.species) checkSpecies(full.species, `${field}.species`);
     requests.push({ kind: builder.kind, name, named: full.name !== undefined, explicit, sightlines, species: full.species ?? input.config.species ?? [], formats: full.formats, field });
