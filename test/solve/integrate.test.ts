@@ -229,6 +229,45 @@ describe("random stiff linear system y' = A y, A = V D V^-1", () => {
   });
 });
 
+describe('a long decay chain on the sparse path', () => {
+  it('handles a pattern without diagonal entries and matches Bateman (1910) for its first members', () => {
+    // A_0 -> A_1 -> ... -> A_{n-1}, rates 1e3 down to 1e-11 s^-1; the last member
+    // is stable, so its row has no diagonal entry.
+    const n = DENSE_MAX_N + 6;
+    const rates = Float64Array.from({ length: n - 1 }, (_, i) => 10 ** (3 - (14 * i) / (n - 2)));
+    const rows = Array.from({ length: n }, (_, i) => new Set(i === 0 ? [0] : i === n - 1 ? [i - 1] : [i - 1, i]));
+    const problem: OdeProblem = {
+      n,
+      pattern: patternFromRows(rows),
+      rhs(_t, y, d) {
+        for (let i = 0; i < n; i++) d[i] = (i > 0 ? rates[i - 1] * y[i - 1] : 0) - (i < n - 1 ? rates[i] * y[i] : 0);
+      },
+      jacobian(_t, _y, v) {
+        let p = 0;
+        for (let i = 0; i < n; i++) {
+          if (i > 0) v[p++] = rates[i - 1];
+          if (i < n - 1) v[p++] = -rates[i];
+        }
+      },
+    };
+    const y0 = new Float64Array(n);
+    y0[0] = 1;
+    const rtol = 1e-8;
+    const atol = 1e-30;
+    const times = logSpaced(1e-5, 1e13, 37);
+    const result = integrate(problem, y0, times, { rtol, atol });
+    expect(result.status).toBe('ok');
+    for (let k = 0; k < times.length; k++) {
+      const [a, b] = bateman(rates[0], rates[1], times[k]);
+      expect(Math.abs(result.y[k][0] - a)).toBeLessThanOrEqual(PEAK_FACTOR * (rtol + atol));
+      expect(Math.abs(result.y[k][1] - b)).toBeLessThanOrEqual(PEAK_FACTOR * (rtol + atol));
+      expect(Math.abs(result.y[k].reduce((sum, v) => sum + v, 0) - 1)).toBeLessThan(1e-10);
+    }
+    // By 1e13 s everything with a rate above 1e-11 s^-1 has decayed into the last members.
+    expect(result.y[times.length - 1][n - 1]).toBeGreaterThan(0.5);
+  });
+});
+
 describe('a mass-action network on the sparse path', () => {
   it('conserves the number of particles and keeps abundances non-negative', () => {
     const { problem, y0 } = massActionNetwork({ species: 60, seed: 5 });
