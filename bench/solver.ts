@@ -1,7 +1,7 @@
 /**
  * Benchmark of the stiff integrator: `npm run bench:solver`.
  *
- * Each problem is integrated once to warm up, then BENCH_REPEATS times; the
+ * Each problem is integrated a few times to warm up, then BENCH_REPEATS times; the
  * median wall and CPU times are printed with the work counts of one run and
  * the memory. Targets (issue 3, one core): Robertson to 4e10 s under 5 ms,
  * a 300-species system to 1e7 yr under 50 ms.
@@ -23,6 +23,9 @@ import { DENSE_MAX_N, SparseNewtonMatrix } from '../src/solve/newton-matrix.ts';
 /** Julian year in seconds (IAU). */
 const YEAR = 3.15576e7;
 const BENCH_REPEATS = 5;
+/** Warm-up: this many untimed runs, or fewer if they take longer than WARMUP_MS, so the JIT has compiled the hot loops. */
+const WARMUP_RUNS = 5;
+const WARMUP_MS = 2000;
 
 export interface BenchCase {
   problem: OdeProblem;
@@ -58,6 +61,8 @@ export function benchProblem(name: string, makeProblem: () => BenchCase, repeats
   const bench = makeProblem();
   const run = (): IntegrateResult => integrate(bench.problem, bench.y0, bench.outputTimes, bench.options);
   let result = run();
+  const warmupStart = performance.now();
+  for (let w = 1; w < WARMUP_RUNS && performance.now() - warmupStart < WARMUP_MS; w++) result = run();
   const wall: number[] = [];
   const cpu: number[] = [];
   for (let r = 0; r < repeats; r++) {
@@ -154,7 +159,7 @@ export const PROBLEMS: [string, () => BenchCase][] = [
 ];
 
 export function main(): BenchRow[] {
-  console.log(`stiff integrator benchmark: median of ${BENCH_REPEATS} after one warm-up, Node ${process.version}`);
+  console.log(`stiff integrator benchmark: median of ${BENCH_REPEATS} runs after warm-up, Node ${process.version}`);
   const rows: BenchRow[] = [];
   for (const [name, make] of PROBLEMS) {
     try {
