@@ -343,6 +343,21 @@ describe('failures are statuses, never exceptions or endless loops', () => {
     expect(result.failureTime).toBeLessThanOrEqual(5);
   });
 
+  it('reports a Jacobian with NaN in it', () => {
+    const { problem, y0 } = robertson();
+    const bad: OdeProblem = {
+      ...problem,
+      jacobian(t, y, v) {
+        problem.jacobian(t, y, v);
+        if (t > 1) v[4] = Number.NaN;
+      },
+    };
+    const result = integrate(bad, y0, [0.5, 1e3], { rtol: 1e-6, atol: 1e-12 });
+    expect(result.status).toMatch(/non-finite values in the Jacobian/);
+    expect(result.y.length).toBe(1);
+    expect(result.failureTime).toBeGreaterThan(0.5);
+  });
+
   it('stops after maxSteps with a status', () => {
     const { problem, y0 } = robertson();
     const result = integrate(problem, y0, [1e-3, 1e10], { rtol: 1e-6, atol: 1e-12, maxSteps: 50 });
