@@ -73,10 +73,10 @@ export class SparseLU {
   private readonly cscOfCsr: Int32Array;
 
   // L (unit diagonal stored first in each column) and U (diagonal stored last), by columns.
-  private Lp: Int32Array;
+  private readonly Lp: Int32Array;
   private Li: Int32Array;
   private Lx: Float64Array;
-  private Up: Int32Array;
+  private readonly Up: Int32Array;
   private Ui: Int32Array;
   private Ux: Float64Array;
   /** pinv[row] = elimination step of that row. */
