@@ -16,6 +16,7 @@ import { numberHtml } from './numbers.ts';
 import type { BuiltFigure } from './figures/builder.ts';
 import { FIGURE_BUILDERS } from './figures/index.ts';
 import type { ParameterCell, SummaryTable } from './tables.ts';
+import type { JointFit } from '../fit/types.ts';
 import type { ReportInput, ReportProvenance } from './types.ts';
 import { parameterTitle } from './figures/axes.ts';
 
@@ -52,7 +53,12 @@ export interface HtmlInput {
 
 function intervalCell(c: ParameterCell): string {
   const edge = c.loAtEdge || c.hiAtEdge ? ' <span class="edge" title="the interval reaches the edge of the model grid">‡</span>' : '';
-  const range = c.lo === null || c.hi === null ? '' : ` <span class="range">(${numberHtml(c.lo)}–${numberHtml(c.hi)})</span>`;
+  const range =
+    c.lo === null || c.hi === null
+      ? ''
+      : c.unresolved
+        ? ' <span class="range" title="only the best grid value lies inside the interval">(narrower than the grid step)</span>'
+        : ` <span class="range">(${numberHtml(c.lo)}–${numberHtml(c.hi)})</span>`;
   return `<td>${numberHtml(c.best)}${range}${edge}</td>`;
 }
 
@@ -66,13 +72,30 @@ function summaryHtml(table: SummaryTable): string {
       `<td>${r.av === null ? '–' : escapeHtml(String(Number(r.av.toPrecision(3))))}</td>`,
       ...r.parameters.map(intervalCell),
       `<td>${escapeHtml(`${Number(r.chi2.toPrecision(3))}/${r.dof}`)}</td>`,
-      `<td${r.pValue < 0.01 ? ' class="poor"' : ''}>${numberHtml(r.pValue)}</td>`,
+      `<td${r.pValue < table.poorFitP ? ' class="poor"' : ''}>${numberHtml(r.pValue)}</td>`,
       `<td>${Math.round(r.agreement * 100)}%</td>`,
       `<td class="warnings">${warn}</td>`,
       '</tr>',
     ].join('');
   });
   return `<table class="summary"><thead><tr>${heads.map((h) => `<th scope="col">${h}</th>`).join('')}</tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
+}
+
+/** Groups of sightlines fitted as one with shared parameters. */
+function jointHtml(joint: readonly JointFit[], level: number): string {
+  const rows = joint.map((j) => {
+    const shared = j.shared
+      .map((p) => {
+        const iv = j.intervals.find((i) => i.parameter === p && Math.abs(i.level - level) < 1e-9);
+        const edge = iv && (iv.loAtEdge || iv.hiAtEdge) ? ' <span class="edge" title="the interval reaches the edge of the model grid">‡</span>' : '';
+        const range = iv ? ` <span class="range">(${numberHtml(iv.lo)}–${numberHtml(iv.hi)})</span>` : '';
+        return `${escapeHtml(parameterTitle(p))}: ${numberHtml(j.sharedBest[p] ?? null)}${range}${edge}`;
+      })
+      .join('<br>');
+    const warn = j.warnings.length === 0 ? '' : `<ul>${j.warnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul>`;
+    return `<tr><th scope="row">${escapeHtml(j.name)}</th><td>${j.members.map(escapeHtml).join(', ')}</td><td>${shared}</td><td>${escapeHtml(`${Number(j.chi2.toPrecision(3))}/${j.dof}`)}</td><td>${numberHtml(j.pValue)}</td><td class="warnings">${warn}</td></tr>`;
+  });
+  return `<table class="summary"><thead><tr><th scope="col">Group</th><th scope="col">Sightlines</th><th scope="col">Shared best values</th><th scope="col">χ²/dof</th><th scope="col">p</th><th scope="col">Warnings</th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
 }
 
 function provenanceHtml(p: ReportProvenance): string {
@@ -167,8 +190,9 @@ export function reportHtml(h: HtmlInput): string {
     );
     return `<h3>${escapeHtml(heading.replace(/^[a-z]/, (c) => c.toUpperCase()))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
   });
-  // The fit stage repeats the observations' warnings: each is shown once.
-  const allWarnings = [...new Set([...input.observations.warnings, ...input.fit.warnings, ...h.warnings])];
+  // The fit stage gathers every warning, the rows' too: the rows show theirs, this list the rest, each once.
+  const inRows = new Set([...input.fit.fits.flatMap((f) => f.warnings), ...input.fit.joint.flatMap((j) => j.warnings)]);
+  const allWarnings = [...new Set([...input.observations.warnings, ...input.fit.warnings, ...h.warnings])].filter((w) => !inRows.has(w));
   const fixed = Object.entries(input.fit.fixedParameters);
   return `<!DOCTYPE html>
 <html lang="en">
@@ -191,6 +215,7 @@ export function reportHtml(h: HtmlInput): string {
 ${h.table.rows.length > 0 ? `<div class="scroll">${summaryHtml(h.table)}</div>` : '<p>No sightline table: the per-pixel best fits of the map are in the sky maps below and in the FITS images linked above.</p>'}
 ${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>' : ''}
 </section>
+${input.fit.joint.length > 0 ? `<section id="joint">\n<h2>Joint fits</h2>\n<div class="scroll">${jointHtml(input.fit.joint, h.table.level)}</div>\n</section>` : ''}
 <section id="cautions">
 <h2>Read these results with care</h2>
 <ul class="cautions">${h.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>

@@ -17,6 +17,8 @@ export interface ParameterCell {
   hi: number | null;
   loAtEdge: boolean;
   hiAtEdge: boolean;
+  /** Only the best grid value lies inside: narrower than the grid spacing. */
+  unresolved: boolean;
 }
 
 export interface SummaryRow {
@@ -37,10 +39,9 @@ export interface SummaryTable {
   /** Fitted parameters, in the fit stage's order (grid conditions, then age_yr). */
   parameters: string[];
   rows: SummaryRow[];
+  /** p-value below which the fit stage calls a fit poor. */
+  poorFitP: number;
 }
-
-/** p-values below this mark a poor fit in the tables (the fit stage's warning level, common practice). */
-const POOR_FIT_P = 0.01;
 
 export function summaryTable(input: ReportInput): SummaryTable {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
@@ -58,7 +59,7 @@ export function summaryTable(input: ReportInput): SummaryTable {
     agreement: fit.agreementFraction,
     warnings: fit.warnings,
   }));
-  return { level, parameters, rows };
+  return { level, parameters, rows, poorFitP: input.fit.poorFitP };
 }
 
 /** Density and age first (the quantities a reader looks for), the rest in the fit's order. */
@@ -70,7 +71,7 @@ function orderParameters(fitted: readonly string[]): string[] {
 function cell(fit: SightlineFit, parameter: string, level: number): ParameterCell {
   const iv: ParameterInterval | undefined = fit.intervals.find((i) => i.parameter === parameter && Math.abs(i.level - level) < 1e-9);
   const best = parameter === 'age_yr' ? fit.best.ageYr : fit.best.parameters[parameter];
-  return { parameter, best, lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false };
+  return { parameter, best, lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false, unresolved: iv?.unresolved ?? false };
 }
 
 // ---------------------------------------------------------------- CSV
@@ -84,12 +85,12 @@ export function csvField(value: string | number | boolean | null): string {
 
 export function summaryCsv(table: SummaryTable): string {
   const header = ['sightline', 'av_mag'];
-  for (const p of table.parameters) header.push(p, `${p}_lo`, `${p}_hi`, `${p}_at_edge`);
+  for (const p of table.parameters) header.push(p, `${p}_lo`, `${p}_hi`, `${p}_at_edge`, `${p}_unresolved`);
   header.push('level', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'agreement', 'warnings');
   const lines = [header.join(',')];
   for (const r of table.rows) {
     const f: (string | number | boolean | null)[] = [r.sightline, r.av];
-    for (const c of r.parameters) f.push(c.best, c.lo, c.hi, c.loAtEdge || c.hiAtEdge);
+    for (const c of r.parameters) f.push(c.best, c.lo, c.hi, c.loAtEdge || c.hiAtEdge, c.unresolved);
     f.push(table.level, r.chi2, r.dof, r.reducedChi2, r.pValue, r.agreement, r.warnings.join('; '));
     lines.push(f.map(csvField).join(','));
   }
@@ -129,7 +130,7 @@ const LATEX_HEADS: Record<string, [string, string]> = {
 };
 
 function latexCell(c: ParameterCell): string {
-  const note = c.loAtEdge || c.hiAtEdge ? '\\tablenotemark{a}' : '';
+  const note = [c.loAtEdge || c.hiAtEdge ? 'a' : '', c.unresolved ? 'c' : ''].filter((n) => n !== '').map((n) => `\\tablenotemark{${n}}`).join('');
   if (c.lo === null || c.hi === null) return `$${numberLatex(c.best)}$${note}`;
   return `$${numberLatex(c.best)}$ ($${numberLatex(c.lo)}$--$${numberLatex(c.hi)}$)${note}`;
 }
@@ -143,7 +144,7 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
   const head2 = ['', '(mag)', ...heads.map((h) => h[1]), '', ''];
   const colheads = (cells: string[]) => cells.map((c) => `\\colhead{${c}}`).join(' & ');
   const body = table.rows.map((r) => {
-    const poor = r.pValue < POOR_FIT_P ? '\\tablenotemark{b}' : '';
+    const poor = r.pValue < table.poorFitP ? '\\tablenotemark{b}' : '';
     const cells = [
       escapeLatex(r.sightline),
       r.av === null ? '\\nodata' : `${Number(r.av.toPrecision(3))}`,
@@ -166,7 +167,8 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
     '\\enddata',
     `\\tablecomments{Intervals are the ranges of grid values inside the ${pct} confidence region of each parameter (profile $\\Delta\\chi^2$). A best fit is a statement about the model grid, not a measurement of the cloud.}`,
     '\\tablenotetext{a}{The interval reaches the edge of the model grid: the true range may extend beyond it.}',
-    `\\tablenotetext{b}{Poor fit: $p < ${POOR_FIT_P}$.}`,
+    `\\tablenotetext{b}{Poor fit: $p < ${table.poorFitP}$.}`,
+    '\\tablenotetext{c}{Only the best grid value lies inside the interval: it is narrower than the grid spacing there.}',
     '\\end{deluxetable*}',
     '',
   ].join('\n');

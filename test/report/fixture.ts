@@ -81,6 +81,8 @@ export interface FixtureOptions {
   sightlines?: string[];
   config?: Partial<ReportSection>;
   map?: { nx: number; ny: number };
+  /** Add a joint fit of the first two sightlines sharing one age, its group named with markup. */
+  joint?: boolean;
 }
 
 export function syntheticInput(options: FixtureOptions = {}): ReportInput {
@@ -150,6 +152,23 @@ export function syntheticInput(options: FixtureOptions = {}): ReportInput {
     warnings: [],
     cautions: [],
   };
+  if (options.joint) {
+    fit.joint.push({
+      name: '<b>core</b>',
+      members: names.slice(0, 2),
+      shared: ['age_yr'],
+      sharedBest: { age_yr: 1e5 },
+      chi2: 9.1,
+      dof: 3,
+      reducedChi2: 9.1 / 3,
+      pValue: 0.028,
+      fittedParameters: 5,
+      memberFits: [],
+      profiles: [],
+      intervals: [{ parameter: 'age_yr', level: 0.683, deltaChi2Threshold: 1, best: 1e5, lo: 3e4, hi: 3e5, loAtEdge: false, hiAtEdge: false, disjoint: false, fixed: false, unresolved: false }],
+      warnings: ['the group & its <members> share one age'],
+    });
+  }
   const observations: ObservationSet = { file: 'frostmere.csv', kind: options.map ? 'map' : 'table', sightlines, warnings: [] };
   let map: MapFitJson | undefined;
   if (options.map) {

@@ -35,6 +35,7 @@ interface PageRun {
   /** Marks per figure: path/line/text elements inside the vega mark groups. */
   marksPerFigure: number[];
   summaryText: string;
+  jointText: string;
   scriptsInBody: number;
 }
 
@@ -59,10 +60,11 @@ async function loadReport(context: BrowserContext, html: string): Promise<PageRu
   const ready = await page.getAttribute('body', 'data-ready');
   const svgs = await page.locator('.vis svg').count();
   const marksPerFigure = await page.$$eval('.vis svg', (list) => list.map((svg) => svg.querySelectorAll('g.mark-rect path, g.mark-symbol path, g.mark-line path, g.mark-rule line').length));
-  const summaryText = (await page.textContent('table.summary')) ?? '';
+  const summaryText = (await page.textContent('#summary table')) ?? '';
+  const jointText = (await page.locator('#joint').count()) > 0 ? ((await page.textContent('#joint table')) ?? '') : '';
   const scriptsInBody = await page.locator('script').count();
   await page.close();
-  return { messages, requests, dialogs, ready, svgs, marksPerFigure, summaryText, scriptsInBody };
+  return { messages, requests, dialogs, ready, svgs, marksPerFigure, summaryText, jointText, scriptsInBody };
 }
 
 describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', () => {
@@ -73,7 +75,7 @@ describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', ()
   beforeAll(async () => {
     if (!HAVE_CHROMIUM) throw new Error(`HOARFROST_REQUIRE_CHROMIUM=1 but ${CHROMIUM} is missing: install Debian's chromium`);
     const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-html-'));
-    table = await writeReport(syntheticInput({ config: { formats: ['svg'] } }), join(dir, 'table'));
+    table = await writeReport(syntheticInput({ joint: true, config: { formats: ['svg'] } }), join(dir, 'table'));
     map = await writeReport(syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'], sightlines: ['Frostmere-01'] } }), join(dir, 'map'));
     userDataDir = mkdtempSync(join(tmpdir(), 'hoarfrost-chromium-'));
     context = await chromium.launchPersistentContext(userDataDir, { executablePath: CHROMIUM, headless: true, args: FLAGS });
@@ -97,6 +99,7 @@ describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', ()
     const run = await loadReport(context, table.html);
     expect(run.dialogs).toEqual([]);
     for (const name of HOSTILE_NAMES) expect(run.summaryText).toContain(name);
+    expect(run.jointText).toContain('<b>core</b>');
     // Three bundles, the figure data and the main script: no script element came from the data.
     expect(run.scriptsInBody).toBe(5);
   });

@@ -121,6 +121,33 @@ describe('writeReport on a table of sightlines', () => {
     for (const k of ['csv', 'json', 'latex'] as const) expect(readFileSync(again.tables[k])).toEqual(readFileSync(files.tables[k]));
   });
 
+  it("marks unresolved intervals and poor fits at the fit stage's p-value", async () => {
+    const input = syntheticInput({ config: { formats: ['svg'], figures: ['fit_vs_av'] } });
+    const iv = input.fit.fits[0].intervals.find((i) => i.parameter === 'density' && i.level === 0.683)!;
+    Object.assign(iv, { lo: iv.best, hi: iv.best, loAtEdge: false, hiAtEdge: false, unresolved: true });
+    input.fit.poorFitP = 0.1;
+    const f = await writeReport(input, join(scratch(), 'r'));
+    const tex = readFileSync(f.tables.latex, 'utf8');
+    const rows = tex.slice(tex.indexOf('\\startdata'), tex.indexOf('\\enddata')).trim().split('\n').slice(1);
+    expect(rows[0].split(' & ')[2]).toMatch(/\\tablenotemark\{c\}$/);
+    // p-values of the fixture: exp(-chi2/2) = 0.20, 0.11, 0.075, 0.040: the last two are poor at p < 0.1.
+    expect(rows.map((r) => r.includes('\\tablenotemark{b}'))).toEqual([false, false, true, true]);
+    expect(tex).toContain('\\tablenotetext{b}{Poor fit: $p < 0.1$.}');
+    const html = readFileSync(f.html, 'utf8');
+    expect(html).toContain('(narrower than the grid step)');
+    expect(html.match(/<td class="poor">/g)).toHaveLength(2);
+    expect(csvParse(readFileSync(f.tables.csv, 'utf8'))[0].density_unresolved).toBe('true');
+  });
+
+  it('lists joint fits in the HTML, escaped', async () => {
+    const f = await writeReport(syntheticInput({ joint: true, config: { formats: ['svg'], figures: ['fit_vs_av'] } }), join(scratch(), 'r'));
+    const html = readFileSync(f.html, 'utf8');
+    expect(html).toContain('<h2>Joint fits</h2>');
+    expect(html).toContain('<th scope="row">&lt;b&gt;core&lt;/b&gt;</th>');
+    expect(html).toContain('the group &amp; its &lt;members&gt; share one age');
+    expect(html).toContain('1.0×10<sup>5</sup> <span class="range">(3.0×10<sup>4</sup>–3.0×10<sup>5</sup>)</span>');
+  });
+
   it('escapes hostile names in the HTML and inlines the browser bundles', () => {
     const html = readFileSync(files.html, 'utf8');
     expect(html).toContain('<th scope="row">&lt;script&gt;alert(1)&lt;/script&gt;</th>');

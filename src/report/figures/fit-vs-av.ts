@@ -5,13 +5,17 @@
  * lie outside the grid).
  */
 import type { TopLevelSpec } from 'vega-lite';
+import type { MapImageName } from '../../fit/types.ts';
 import type { Sightline } from '../../obs/types.ts';
 import { figureConfig, figureSize } from '../theme.ts';
 import { AV_TITLE, logAxis, paddedDomain, parameterTitle, positionScale, scaleKind } from './axes.ts';
 import { bestValue, levelLabel, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
 const PANEL_PARAMETERS = ['density', 'age_yr'] as const;
-const MAP_IMAGE_OF: Record<string, 'best_density' | 'best_age_yr'> = { density: 'best_density', age_yr: 'best_age_yr' };
+const MAP_IMAGES_OF: Record<string, { best: MapImageName; lo: MapImageName; hi: MapImageName }> = {
+  density: { best: 'best_density', lo: 'density_lo', hi: 'density_hi' },
+  age_yr: { best: 'best_age_yr', lo: 'age_lo_yr', hi: 'age_hi_yr' },
+};
 /** Short labels: vega estimates text widths generously, and a wide legend widens the figure past a column. */
 const EDGE_LABELS = { inside: 'within grid', edge: 'at grid edge' };
 const PANEL_ASPECT = 0.55;
@@ -52,18 +56,19 @@ function sightlineRows(ctx: FigureContext, parameter: string, av: Map<string, Si
   return rows;
 }
 
-/** Map pixels: best values from the map images against each pixel's A_V; the images hold interval widths, not bounds, so no bars. */
+/** Map pixels: best values and interval bounds from the map images against each pixel's A_V. */
 function pixelRows(ctx: FigureContext, parameter: string): Row[] {
   const map = ctx.input.map;
   if (!map) return [];
-  const image = map.images[MAP_IMAGE_OF[parameter]];
+  const { best, lo, hi } = MAP_IMAGES_OF[parameter];
   const rows: Row[] = [];
   for (const s of ctx.input.observations.sightlines) {
     if (!s.pixel || s.av === undefined) continue;
-    const value = image[s.pixel.y * map.nx + s.pixel.x];
+    const i = s.pixel.y * map.nx + s.pixel.x;
+    const value = map.images[best][i];
     if (value === null || value === undefined) continue;
-    const edge = map.images.at_edge[s.pixel.y * map.nx + s.pixel.x] === 1;
-    rows.push({ sightline: s.id, av: s.av, avLo: s.av, avHi: s.av, value, lo: value, hi: value, interval: edge ? EDGE_LABELS.edge : EDGE_LABELS.inside });
+    const edge = map.images.at_edge[i] === 1;
+    rows.push({ sightline: s.id, av: s.av, avLo: s.av - (s.avErr ?? 0), avHi: s.av + (s.avErr ?? 0), value, lo: map.images[lo][i] ?? value, hi: map.images[hi][i] ?? value, interval: edge ? EDGE_LABELS.edge : EDGE_LABELS.inside });
   }
   return rows;
 }
@@ -78,7 +83,7 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
   const xBase = { field: 'av', type: 'quantitative' as const, scale: { domain: xDomain, nice: false, zero: false } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: 'Best fits against extinction', subtitle: ctx.input.fit.fits.length > 0 ? `error bars: ${levelLabel(level)} intervals` : 'one point per map pixel' },
+    title: { text: 'Best fits against extinction', subtitle: `error bars: ${levelLabel(level)} intervals${ctx.input.fit.fits.length > 0 ? '' : ', one point per map pixel'}` },
     config: figureConfig(),
     vconcat: panels.map(({ parameter, rows }, p) => {
       const values = rows.flatMap((r) => [r.lo, r.hi]);

@@ -1,7 +1,7 @@
 /**
  * chi^2 profiles of one sightline: for each fitted parameter, Delta chi^2
  * minimised over every other parameter against that parameter's grid values,
- * with the one-parameter thresholds of the confidence levels as lines (the
+ * with the Delta chi^2 thresholds the fit's intervals used as lines (the
  * interval is where the profile lies below a line).
  */
 import type { TopLevelSpec } from 'vega-lite';
@@ -26,7 +26,12 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
   const { totalWidth } = figureSize(ctx.input.config.column_width_in, false);
   const columns = Math.min(COLUMNS, profiles.length);
   const panelWidth = Math.round((totalWidth - AXIS_ROOM - PANEL_SPACING * (columns - 1)) / columns);
-  const thresholds = ctx.levels.map((level) => ({ level: levelLabel(level), threshold: deltaChi2Threshold(level, 1, ctx.input.fit.levels) }));
+  // The thresholds the fit's intervals used (for p parameters of interest, as the fit states them), so the lines cut the profiles where the intervals end.
+  const thresholds = ctx.levels.map((level) => {
+    const stated = ctx.input.fit.levels.find((l) => Math.abs(l.level - level) < 1e-9);
+    const threshold = stated?.deltaChi2 ?? deltaChi2Threshold(level, 1);
+    return { level: `${levelLabel(level)} (Δχ² = ${threshold.toFixed(2)})`, threshold };
+  });
   const yMax = Y_HEADROOM * Math.max(...thresholds.map((t) => t.threshold));
   const levelNames = thresholds.map((t) => t.level);
   return {
@@ -40,7 +45,8 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
       const kind = scaleKind(profile.values);
       const domain = paddedDomain(kind, profile.values, 0.03);
       const best = bestValue(fit, profile.parameter);
-      const rows = profile.values.map((v, i) => ({ value: v, dchi2: profile.deltaChi2[i] }));
+      // Values no candidate open to this sightline reaches (held or excluded) have no profile point.
+      const rows = profile.values.flatMap((v, i) => (profile.deltaChi2[i] === null ? [] : [{ value: v, dchi2: profile.deltaChi2[i] }]));
       const x = {
         field: 'value',
         type: 'quantitative' as const,
@@ -60,7 +66,7 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
             mark: { type: 'rule', color: '#555555', strokeWidth: 0.8 },
             encoding: {
               y: { field: 'threshold', type: 'quantitative' },
-              strokeDash: { field: 'level', type: 'nominal', title: 'Level (1 parameter)', scale: { domain: levelNames, range: levelNames.map((_, i) => LEVEL_DASHES[i % LEVEL_DASHES.length]) }, legend: { orient: 'bottom', direction: 'horizontal', symbolType: 'stroke' } },
+              strokeDash: { field: 'level', type: 'nominal', title: 'Interval level', scale: { domain: levelNames, range: levelNames.map((_, i) => LEVEL_DASHES[i % LEVEL_DASHES.length]) }, legend: { orient: 'bottom', direction: 'vertical', symbolType: 'stroke' } },
             },
           },
           {
@@ -99,7 +105,7 @@ export const profilesFigure: FigureBuilder = {
         name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
         kind: 'profiles',
         title: `χ² profiles of ${id}`,
-        caption: `Δχ² profiles of ${id} for each fitted parameter (chi² minimised over the others); the horizontal lines are the one-parameter thresholds of the ${ctx.levels.map(levelLabel).join(' and ')} levels, the vertical line the best fit.`,
+        caption: `Δχ² profiles of ${id} for each fitted parameter (chi² minimised over the others); the horizontal lines are the Δχ² thresholds of the ${ctx.levels.map(levelLabel).join(' and ')} intervals, the vertical line the best fit.`,
         sightline: id,
         spec: buildProfilesSpec(ctx, fit, profiles),
       });
