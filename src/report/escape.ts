@@ -27,13 +27,15 @@ export function jsonForScript(value: unknown): string {
 }
 
 /**
- * Make a library's JavaScript source safe to inline in a `<script>` element:
- * the only sequence that can end the element early is `</script` (any case),
- * which becomes `<\/script`, the same string to the JavaScript parser inside
- * string and regular-expression literals, where it can occur in a bundle.
+ * Make a library's JavaScript source safe to inline in a `<script>` element.
+ * `</script` (any case) would end the element early and `<!--` can keep a
+ * later `</script>` from ending it (HTML Living Standard, script data
+ * escaped states). They become `<\/script` and `<\x21--`: the same text to
+ * the JavaScript parser inside string and regular-expression literals (also
+ * with the `u` flag), the only places a bundle can hold them.
  */
 export function inlineScriptSource(source: string): string {
-  return source.replace(/<\/(script)/gi, '<\\/$1').replace(/<!--/g, '<\\!--');
+  return source.replace(/<\/(script)/gi, '<\\/$1').replace(/<!--/g, '<\\x21--');
 }
 
 const LATEX_SPECIALS: Record<string, string> = {

@@ -40,12 +40,12 @@ describe('scripts', () => {
     expect(JSON.parse(s)).toEqual({ name: '</script><script>alert(1)</script><!--' });
   });
   it('inlined library source has no </script in any case', () => {
-    const src = 'var a = "</script>"; var b = /<\\/SCRIPT>/; var c = "</Script";';
+    const src = 'var a = "</script>"; var b = /<\\/SCRIPT>/u; var c = "</Script"; var d = "<!--"; var e = /<!--x/u;';
     const out = inlineScriptSource(src);
-    expect(out).not.toMatch(/<\/script/i);
-    // The same JavaScript values: a string with `<\/` is the string with `</`.
-    const f = new Function(`${out}; return [a, c];`) as () => string[];
-    expect(f()).toEqual(['</script>', '</Script']);
+    expect(out).not.toMatch(/<\/script|<!--/i);
+    // The same JavaScript values: `<\/` is `</` and `\x21` is `!` in strings and in u-flag regular expressions.
+    const f = new Function(`${out}; return [a, c, d, b.test('</SCRIPT>'), e.test('<!--x')];`) as () => unknown[];
+    expect(f()).toEqual(['</script>', '</Script', '<!--', true, true]);
   });
 });
 
