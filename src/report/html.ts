@@ -63,9 +63,10 @@ function intervalCell(c: ParameterCell): string {
 }
 
 function summaryHtml(table: SummaryTable): string {
-  const heads = ['Sightline', 'A<sub>V</sub> (mag)', ...table.parameters.map((p) => escapeHtml(parameterTitle(p))), 'χ²/dof', 'p', 'Agreement', 'Warnings'];
+  const heads = ['Sightline', 'A<sub>V</sub> (mag)', ...table.parameters.map((p) => escapeHtml(parameterTitle(p))), 'χ²/dof', 'p', 'Agreement'];
   const rows = table.rows.map((r) => {
-    const warn = r.warnings.length === 0 ? '' : `<ul>${r.warnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul>`;
+    // Warnings take a full-width row under their sightline: in a column they would stretch every row.
+    const warn = r.warnings.length === 0 ? '' : `<tr class="warn-row"><td colspan="${heads.length}"><ul>${r.warnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul></td></tr>`;
     return [
       '<tr>',
       `<th scope="row">${escapeHtml(r.sightline)}</th>`,
@@ -74,8 +75,8 @@ function summaryHtml(table: SummaryTable): string {
       `<td>${escapeHtml(`${Number(r.chi2.toPrecision(3))}/${r.dof}`)}</td>`,
       `<td${r.pValue < table.poorFitP ? ' class="poor"' : ''}>${numberHtml(r.pValue)}</td>`,
       `<td>${Math.round(r.agreement * 100)}%</td>`,
-      `<td class="warnings">${warn}</td>`,
       '</tr>',
+      warn,
     ].join('');
   });
   return `<table class="summary"><thead><tr>${heads.map((h) => `<th scope="col">${h}</th>`).join('')}</tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
@@ -123,8 +124,9 @@ const STYLE = `
 body { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; margin: 2em auto; max-width: 72em; padding: 0 1em; color: #111; line-height: 1.4; }
 h1 { font-size: 1.6em; margin-bottom: 0.2em; } h2 { border-bottom: 1px solid #ccc; margin-top: 2em; } h3 { margin-top: 1.5em; }
 table { border-collapse: collapse; font-size: 0.85em; } th, td { border-bottom: 1px solid #ddd; padding: 0.3em 0.6em; text-align: left; vertical-align: top; }
-table.summary td { white-space: nowrap; } table.summary td.warnings { white-space: normal; font-size: 0.9em; color: #7a4a00; min-width: 18em; }
-td.warnings ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } .edge, .poor { color: #b00020; font-weight: bold; }
+table.summary td { white-space: nowrap; } table.summary td.warnings, tr.warn-row td { white-space: normal; font-size: 0.85em; color: #7a4a00; }
+tr.warn-row td { border-bottom: 1px solid #ccc; padding-top: 0; } table.summary tr:has(+ tr.warn-row) > * { border-bottom: none; }
+td.warnings ul, tr.warn-row ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } .edge, .poor { color: #b00020; font-weight: bold; }
 .figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 34em; }
 figcaption { font-size: 0.85em; color: #333; } .files { font-size: 0.8em; }
 .vis svg text { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; }
