@@ -12,6 +12,8 @@ import { XMLValidator } from 'fast-xml-parser';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { buildFigures } from '../../src/report/figures/index.ts';
 import type { BuiltFigure } from '../../src/report/figures/builder.ts';
+import * as vega from 'vega';
+import { blockSize, pixelColours } from '../../src/report/raster.ts';
 import { renderSvg, svgToPdf, svgToPng, solidDashesRemoved } from '../../src/report/render.ts';
 import { HOSTILE_NAMES, syntheticInput } from './fixture.ts';
 
@@ -132,6 +134,33 @@ describe('figure builders', () => {
     expect(spec.vconcat[0].data.values[5].value).toBeCloseTo(1e6, 6);
     expect(validate(figs[3].spec)).toBe(true);
     expect((await renderSvg(figs[3].spec)).warnings).toEqual([]);
+  });
+
+  it('draws a large map as one raster image matching its legend', async () => {
+    const input = syntheticInput({ map: { nx: 70, ny: 66 }, config: { figures: ['sky_map'] } });
+    const figs = buildFigures(input, []);
+    expect(figs).toHaveLength(3);
+    for (const f of figs) expect(validate(f.spec), f.name).toBe(true);
+    const density = figs.find((f) => f.name === 'sky_map_best_density')!;
+    const layers = (density.spec as { layer: { mark: { type: string }; data: { values: { url?: string }[] } }[] }).layer;
+    expect(layers.map((l) => l.mark.type)).toEqual(['image', 'point']);
+    const url = layers[0].data.values[0].url!;
+    const png = Buffer.from(url.replace(/^data:image\/png;base64,/, ''), 'base64');
+    // IHDR (ISO/IEC 15948 section 11.2.2): width and height in whole blocks of the map's pixels.
+    expect([png.readUInt32BE(16), png.readUInt32BE(20)]).toEqual([70 * blockSize(70), 66 * blockSize(70)]);
+    const out = await renderSvg(density.spec);
+    expect(out.warnings).toEqual([]);
+    expect(out.svg).toContain('<image');
+    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(['Pixel x', 'Pixel y', 'Density (cm⁻³)']));
+    // Without the per-pixel rectangles the figure stays small.
+    expect(out.svg.length).toBeLessThan(400_000);
+  });
+
+  it('colours raster pixels as the vega scale of the legend does', () => {
+    const viridis = vega.scheme('viridis') as (t: number) => string;
+    const colours = pixelColours([1e3, 1e4, 1e5, null, 0], 'log', [1e3, 1e5], 'viridis');
+    expect(colours).toEqual([viridis(0), viridis(0.5), viridis(1), null, null]);
+    expect(pixelColours([2, 4, 6], 'linear', [2, 6], 'cividis')[1]).toBe((vega.scheme('cividis') as (t: number) => string)(0.5));
   });
 
   it('drops only all-gap-zero dash patterns before the PDF', () => {

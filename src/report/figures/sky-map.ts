@@ -6,9 +6,12 @@
 import type { TopLevelSpec } from 'vega-lite';
 import type { MapFitJson, MapImageName } from '../../fit/types.ts';
 import { figureConfig, figureSize, MAP_SCHEME, SEQUENTIAL_SCHEME } from '../theme.ts';
-import { CHI2_TITLE, logAxis, scaleKind } from './axes.ts';
+import { pixelColours, mapImageDataUrl } from '../raster.ts';
+import { CHI2_TITLE, logAxis, scaleKind, type ScaleKind } from './axes.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
 
+/** Maps with more pixels than this are drawn as one raster image. */
+const RASTER_MIN_PIXELS = 64 * 64;
 /** Overlap of a pixel cell into its upper neighbours, pixels. */
 const CELL_OVERLAP = 0.3;
 
@@ -37,10 +40,16 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
     rows.push({ x: px - 0.5, x2: px + 0.5 + CELL_OVERLAP, y: py - 0.5, y2: py + 0.5 + CELL_OVERLAP, px, py, value: v });
   });
   const kind = scaleKind(rows.map((r) => r.value));
-  const finite = rows.map((r) => r.value);
-  const lo = Math.min(...finite);
-  const hi = Math.max(...finite);
+  // A loop, not Math.min(...values): a large map would overflow the argument list.
+  let lo = Number.POSITIVE_INFINITY;
+  let hi = Number.NEGATIVE_INFINITY;
+  for (const r of rows) {
+    if (kind === 'log' && r.value <= 0) continue;
+    lo = Math.min(lo, r.value);
+    hi = Math.max(hi, r.value);
+  }
   const height = Math.round((plotWidth * map.ny) / map.nx);
+  if (map.nx * map.ny > RASTER_MIN_PIXELS && rows.length > 0) return rasterSpec(ctx, map, image, values, kind, [lo, hi], plotWidth, height);
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
     title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
@@ -67,6 +76,47 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
         { field: 'value', type: 'quantitative', title: image.legend, format: '.3~g' },
       ],
     },
+  };
+}
+
+/**
+ * The same figure with the pixels as one raster image (for maps above
+ * RASTER_MIN_PIXELS): an image layer, and an invisible layer whose colour
+ * scale draws the legend the image's colours were taken from.
+ */
+function rasterSpec(ctx: FigureContext, map: MapFitJson, image: SkyImage, values: readonly (number | null)[], kind: ScaleKind, domain: [number, number], width: number, height: number): TopLevelSpec {
+  const url = mapImageDataUrl(pixelColours(values, kind, domain, image.scheme), map.nx, map.ny);
+  const x = { field: 'x', type: 'quantitative' as const, title: 'Pixel x', axis: { grid: false }, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } };
+  const y = { field: 'y', type: 'quantitative' as const, title: 'Pixel y', axis: { grid: false }, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } };
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
+    width,
+    height,
+    config: figureConfig(),
+    layer: [
+      {
+        data: { values: [{ url, x: (map.nx - 1) / 2, y: (map.ny - 1) / 2 }] },
+        // aria: false keeps the data URL out of an aria-label, which would double the file.
+        mark: { type: 'image', width, height, aspect: false, smooth: false, aria: false },
+        encoding: { x, y, url: { field: 'url', type: 'nominal' } },
+      },
+      {
+        data: { values: [{ x: 0, y: 0, value: domain[0] }, { x: 0, y: 0, value: domain[1] }] },
+        mark: { type: 'point', opacity: 0, aria: false },
+        encoding: {
+          x,
+          y,
+          color: {
+            field: 'value',
+            type: 'quantitative',
+            title: image.legend,
+            scale: { type: kind, scheme: image.scheme, nice: false, domain },
+            ...(kind === 'log' ? { legend: logAxis(domain[0], domain[1]) } : {}),
+          },
+        },
+      },
+    ],
   };
 }
 
