@@ -23,6 +23,8 @@ const PANEL_ASPECT = 0.55;
 const MANY_POINTS = 60;
 const POINT_SIZE = 28;
 const SMALL_POINT_SIZE = 7;
+/** Above this many points the interval bars are left out (they would hide the points and swell the file). */
+const MAX_BARRED_POINTS = 1500;
 
 interface Row {
   sightline: string;
@@ -83,7 +85,7 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
   const xBase = { field: 'av', type: 'quantitative' as const, scale: { domain: xDomain, nice: false, zero: false } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: 'Best fits against extinction', subtitle: `error bars: ${levelLabel(level)} intervals${ctx.input.fit.fits.length > 0 ? '' : ', one point per map pixel'}` },
+    title: { text: 'Best fits against extinction', subtitle: panels[0].rows.length > MAX_BARRED_POINTS ? `${panels[0].rows.length} map pixels (interval bars left out)` : `error bars: ${levelLabel(level)} intervals${ctx.input.fit.fits.length > 0 ? '' : ', one point per map pixel'}` },
     config: figureConfig(),
     vconcat: panels.map(({ parameter, rows }, p) => {
       const values = rows.flatMap((r) => [r.lo, r.hi]);
@@ -97,26 +99,33 @@ export function buildFitVsAvSpec(ctx: FigureContext): TopLevelSpec {
         axis: kind === 'log' ? logAxis(domain[0], domain[1]) : {},
       };
       const x = { ...xBase, title: p === PANEL_PARAMETERS.length - 1 ? AV_TITLE : null, axis: p === PANEL_PARAMETERS.length - 1 ? {} : { labels: false } };
+      const many = rows.length > MANY_POINTS;
+      // Thousands of map pixels: points only, without bars, tooltips or per-mark ARIA labels, or the SVG runs to tens of megabytes.
+      const bars = rows.length <= MAX_BARRED_POINTS;
       return {
         width: plotWidth,
         height: Math.round(plotWidth * PANEL_ASPECT),
-        data: { values: rows },
+        data: { values: bars ? rows : rows.map((r) => ({ av: r.av, value: r.value, interval: r.interval })) },
         layer: [
-          { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' } } },
-          { mark: { type: 'rule', color: '#000000', strokeWidth: 0.8 }, encoding: { x: { ...x, field: 'avLo' }, x2: { field: 'avHi' }, y } },
+          ...(bars
+            ? [
+                { mark: { type: 'rule' as const, color: '#000000', strokeWidth: 0.8 }, encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' } } },
+                { mark: { type: 'rule' as const, color: '#000000', strokeWidth: 0.8 }, encoding: { x: { ...x, field: 'avLo' }, x2: { field: 'avHi' }, y } },
+              ]
+            : []),
           {
-            mark: { type: 'point', size: rows.length > MANY_POINTS ? SMALL_POINT_SIZE : POINT_SIZE, filled: true, opacity: 1, stroke: '#000000', strokeWidth: rows.length > MANY_POINTS ? 0.5 : 1, tooltip: true },
+            mark: { type: 'point', size: many ? SMALL_POINT_SIZE : POINT_SIZE, filled: true, opacity: 1, stroke: '#000000', strokeWidth: many ? 0.5 : 1, tooltip: bars, aria: bars },
             encoding: {
               x,
               y,
               fill: { field: 'interval', type: 'nominal', title: null, scale: { domain: [EDGE_LABELS.inside, EDGE_LABELS.edge], range: ['#000000', '#ffffff'] }, legend: { orient: 'top', direction: 'horizontal', title: 'Interval:', titleOrient: 'left' } },
-              tooltip: [
+              tooltip: bars ? [
                 { field: 'sightline', type: 'nominal', title: 'sightline' },
                 { field: 'av', type: 'quantitative', title: 'A_V (mag)', format: '.3~g' },
                 { field: 'value', type: 'quantitative', title: parameterTitle(parameter), format: '.3~g' },
                 { field: 'lo', type: 'quantitative', title: 'interval low', format: '.3~g' },
                 { field: 'hi', type: 'quantitative', title: 'interval high', format: '.3~g' },
-              ],
+              ] : null,
             },
           },
         ],
