@@ -70,11 +70,12 @@ async function loadReport(context: BrowserContext, html: string): Promise<PageRu
 describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', () => {
   let context: BrowserContext;
   let userDataDir: string;
+  let dir: string;
   let table: ReportFiles;
   let map: ReportFiles;
   beforeAll(async () => {
     if (!HAVE_CHROMIUM) throw new Error(`HOARFROST_REQUIRE_CHROMIUM=1 but ${CHROMIUM} is missing: install Debian's chromium`);
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-html-'));
+    dir = mkdtempSync(join(tmpdir(), 'hoarfrost-html-'));
     table = await writeReport(syntheticInput({ joint: true, config: { formats: ['svg'] } }), join(dir, 'table'));
     map = await writeReport(syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'], sightlines: ['Frostmere-01'] } }), join(dir, 'map'));
     userDataDir = mkdtempSync(join(tmpdir(), 'hoarfrost-chromium-'));
@@ -82,7 +83,7 @@ describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', ()
   });
   afterAll(async () => {
     await context?.close();
-    if (userDataDir) rmSync(userDataDir, { recursive: true, force: true });
+    for (const d of [userDataDir, dir]) if (d) rmSync(d, { recursive: true, force: true });
   });
 
   it('loads the table report with no console error and draws every figure', async () => {

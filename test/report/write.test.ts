@@ -6,11 +6,11 @@
  * with a clear error.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { csvParse } from 'd3-dsv';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { UserError } from '../../src/config/errors.ts';
 import { parseYamlText, validate } from '../../src/config/yaml.ts';
 import { reportSection } from '../../src/config/sections/report.ts';
@@ -22,7 +22,15 @@ import { deltaChi2Threshold } from '../../src/report/thresholds.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
 import { HOSTILE_NAMES, SIGHTLINES, syntheticInput } from './fixture.ts';
 
-const scratch = (): string => mkdtempSync(join(tmpdir(), 'hoarfrost-report-'));
+const scratchDirs: string[] = [];
+const scratch = (): string => {
+  const d = mkdtempSync(join(tmpdir(), 'hoarfrost-report-'));
+  scratchDirs.push(d);
+  return d;
+};
+afterAll(() => {
+  for (const d of scratchDirs) rmSync(d, { recursive: true, force: true });
+});
 
 function expectUserError(f: () => unknown, ...parts: (string | RegExp)[]): UserError {
   let caught: unknown;
