@@ -30,6 +30,7 @@ import { loadPipeline, type Pipeline } from '../src/config/pipeline.ts';
 import { loadInitialComposition, outputTimesYr, runModel } from '../src/model/run.ts';
 import type { ModelResult } from '../src/model/types.ts';
 import { commentCards, writeFits, type FitsCard, type FitsHdu } from '../src/report/fits.ts';
+import { seededRandom } from './seeded-random.ts';
 
 export const CLOUD_NAME = 'Elsinmoor Cloud';
 export const DEFAULT_SEED = 20261201;
@@ -87,17 +88,6 @@ const MAP_CENTRE_RA = 150.25;
 const MAP_CENTRE_DEC = -7.5;
 const MAP_PIXEL_ARCSEC = 20;
 
-/** mulberry32: a small seeded generator (public-domain algorithm by Tommy Ettinger); enough for demo noise. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Standard normal deviates by the Box-Muller transform. */
 function gaussian(random: () => number): () => number {

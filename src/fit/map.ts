@@ -8,7 +8,6 @@
  * and allocate nothing.
  */
 import { UserError } from '../config/errors.ts';
-import type { Axis } from './axes.ts';
 import { chiSquarePValue } from './chi-square.ts';
 import type { FitContext } from './context.ts';
 import { lowerLimitCost, upperLimitCost } from './censored.ts';

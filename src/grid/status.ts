@@ -5,7 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
-import type { GridPlan, PlannedPoint } from './plan.ts';
+import type { PlannedPoint } from './plan.ts';
 import { ModelStore } from './store.ts';
 
 export interface GridStatus {

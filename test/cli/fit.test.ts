@@ -3,7 +3,6 @@
  * observations table, and a model store written with invented analytic
  * abundances (see test/fit/synthetic.ts), so no model has to run.
  */
-import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
@@ -11,9 +10,9 @@ import { describe, expect, it } from 'vitest';
 import { defaultConditions } from '../../src/config/conditions.ts';
 import { ModelStore, type StoredModel } from '../../src/grid/store.ts';
 import { analyticAbundances, logSpaced } from '../fit/synthetic.ts';
+import { runCli } from '../support/cli.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
-const BIN = join(ROOT, 'bin', 'hoarfrost.mjs');
 const NETWORK = join(ROOT, 'config', 'networks', 'dark-cloud.yaml');
 const STORE_SPECIES = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'CO'];
 const DENSITIES = logSpaced(1e3, 1e6, 7);
@@ -82,10 +81,7 @@ function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?:
   return dir;
 }
 
-function hoarfrost(dir: string, args: string[] = []) {
-  const r = spawnSync(process.execPath, [BIN, 'fit', join(dir, 'pipeline.yaml'), ...args], { cwd: dir, encoding: 'utf8', env: { ...process.env, HOARFROST_DEBUG: '' } });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const hoarfrost = (dir: string, args: string[] = []) => runCli(['fit', join(dir, 'pipeline.yaml'), ...args], dir);
 
 describe('hoarfrost fit', () => {
   it('prints the best fits with intervals and writes the tables', () => {

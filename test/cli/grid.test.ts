@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { mainStoreFile, planGrid } from '../../src/grid/plan.ts';
 import { BIN, scratch, writePipeline } from '../grid/helpers.ts';
+import { runCli } from '../support/cli.ts';
 
 /** About 300 models of ~10 ms: long enough to be killed part way on any machine. */
 const BIG_GRID = `conditions:
@@ -18,10 +19,7 @@ const POLL_MS = 20;
 const KILL_AFTER_MODELS = 30;
 const WAIT_LIMIT_MS = 30_000;
 
-function hoarfrost(args: string[], cwd: string) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd, encoding: 'utf8', timeout: 60_000 });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const hoarfrost = (args: string[], cwd: string) => runCli(args, cwd, 60_000);
 
 interface Row {
   id: string;

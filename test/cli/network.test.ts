@@ -1,15 +1,15 @@
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { runCli } from '../support/cli.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-cli-network-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 function hoarfrost(...args: string[]): { status: number | null; stdout: string; stderr: string } {
-  const r = spawnSync(process.execPath, ['bin/hoarfrost.mjs', ...args], { encoding: 'utf8', env: { ...process.env, HOARFROST_DEBUG: '' } });
-  return { status: r.status, stdout: r.stdout, stderr: r.stderr };
+  const r = runCli(args);
+  return { status: r.code, stdout: r.stdout, stderr: r.stderr };
 }
 
 function write(name: string, text: string): string {

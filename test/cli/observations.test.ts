@@ -1,20 +1,16 @@
 /** `hoarfrost observations FILE|PIPELINE` end to end on the example files: what it prints, exit codes, bad input without a stack trace. */
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { runCli } from '../support/cli.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
-const BIN = join(ROOT, 'bin', 'hoarfrost.mjs');
 const TABLE = join(ROOT, 'pipelines', 'examples', 'frostmere-ices.csv');
 const MAP = join(ROOT, 'pipelines', 'examples', 'frostmere-map.fits');
 const NETWORK = join(ROOT, 'config', 'networks', 'dark-cloud.yaml');
 
-function hoarfrost(args: string[], cwd = ROOT) {
-  const r = spawnSync(process.execPath, [BIN, 'observations', ...args], { cwd, encoding: 'utf8', env: { ...process.env, HOARFROST_DEBUG: '' } });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const hoarfrost = (args: string[], cwd = ROOT) => runCli(['observations', ...args], cwd);
 
 describe('hoarfrost observations', () => {
   it('prints the example table as understood: A_K-derived A_V, optical-depth columns, limits, derived ratios', () => {

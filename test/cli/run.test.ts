@@ -1,24 +1,15 @@
 /** `hoarfrost run` and `hoarfrost init` through the real command line: bad input gives a clear error and no stack trace. */
-import { spawnSync } from 'node:child_process';
 import { cpSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { expectNoStack, runCli } from '../support/cli.ts';
 
 const ROOT = join(import.meta.dirname, '../..');
-const BIN = join(ROOT, 'bin/hoarfrost.mjs');
 const FIXTURES = join(ROOT, 'test/pipeline/fixtures');
 
-function cli(args: string[], cwd: string) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd, encoding: 'utf8', env: { ...process.env, HOARFROST_DEBUG: '' } });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const cli = runCli;
 
-/** No stack trace: no `    at f (file:line)` frames and no "internal error". */
-function expectNoStack(stderr: string): void {
-  expect(stderr).not.toMatch(/^\s+at .+:\d+/m);
-  expect(stderr).not.toContain('internal error');
-}
 
 let dir: string;
 beforeEach(() => {

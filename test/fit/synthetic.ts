@@ -6,6 +6,9 @@
  */
 import type { CandidateTable } from '../../src/fit/types.ts';
 import type { ObservedQuantity, ObservationSet, Sightline } from '../../src/obs/types.ts';
+import { seededRandom } from '../../scripts/seeded-random.ts';
+
+export { seededRandom };
 
 export const SPECIES = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'CO'];
 
@@ -61,17 +64,6 @@ export function syntheticTable(spec: GridSpec): CandidateTable {
   };
 }
 
-/** mulberry32: a small seeded generator (public-domain algorithm by Tommy Ettinger), for reproducible draws. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Standard normal deviate by the Box-Muller transform. */
 export function gaussian(random: () => number): number {

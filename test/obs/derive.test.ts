@@ -10,7 +10,6 @@ import { deriveQuantities, modelAv, ratioKind, hydrogenColumn } from '../../src/
 import type { Measurement, ObservationSet, Sightline } from '../../src/obs/types.ts';
 import { section } from './helpers.ts';
 
-const LN10 = Math.log(10);
 
 function sightline(id: string, av: number | undefined, avErr: number | undefined, columns: Record<string, Measurement>): Sightline {
   const s: Sightline = { id, columns, source: { file: 'hand.csv', line: 2 } };

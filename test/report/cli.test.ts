@@ -4,25 +4,17 @@
  * `report:` section, and refuses a figure that does not exist or a name that
  * would leave the output folder with a clear error, exit 2 and no stack trace.
  */
-import { spawnSync } from 'node:child_process';
 import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { expectNoStack, runCli } from '../support/cli.ts';
 
 const ROOT = join(import.meta.dirname, '../..');
-const BIN = join(ROOT, 'bin/hoarfrost.mjs');
 const FIXTURES = join(ROOT, 'test/pipeline/fixtures');
 
-function cli(args: string[], cwd: string) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd, encoding: 'utf8', env: { ...process.env, HOARFROST_DEBUG: '' } });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const cli = runCli;
 
-function expectNoStack(stderr: string): void {
-  expect(stderr).not.toMatch(/^\s+at .+:\d+/m);
-  expect(stderr).not.toContain('internal error');
-}
 
 let dir: string;
 let pipelineText: string;

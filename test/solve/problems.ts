@@ -4,18 +4,10 @@
  * Invented data, for checks and timing only.
  */
 import type { OdeProblem, SparsityPattern } from '../../src/solve/index.ts';
+import { seededRandom } from '../../scripts/seeded-random.ts';
 
-/** Seeded 32-bit generator (mulberry32, common practice for reproducible test data). */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export { seededRandom };
+
 
 /** Builds a CSR pattern from per-row column sets. */
 export function patternFromRows(rows: Set<number>[]): SparsityPattern {
