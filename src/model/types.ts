@@ -1,6 +1,7 @@
 /** One model run: conditions in, abundance time series out. */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network } from '../chem/network-types.ts';
+import type { SolverStats } from '../solve/index.ts';
 
 export interface SolverSettings {
   rtol: number;
@@ -33,14 +34,8 @@ export interface ConservationReport {
   chargeDrift: number;
 }
 
-export interface ModelStats {
-  steps: number;
-  failedSteps: number;
-  rhsEvals: number;
-  jacobianEvals: number;
-  factorizations: number;
-  newtonFailures: number;
-}
+/** The integrator's work counts that the model store keeps (the order histogram stays with the solver). */
+export type ModelStats = Omit<SolverStats, 'orderHistogram'>;
 
 export interface ModelResult {
   species: string[];
