@@ -4,7 +4,8 @@
  * (scipy.integrate.solve_ivp, Debian python3-scipy at /usr/bin/python3, a
  * general-purpose reference library), reproduces runModel with
  * massActionOnly. The right-hand side and Jacobian are built in Python from
- * the JSON alone. Skipped where SciPy is not installed.
+ * the JSON alone. Skipped where SciPy is not installed, except when
+ * HOARFROST_REQUIRE_SCIPY=1 (CI): then a missing SciPy fails.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -47,6 +48,12 @@ def jac(t, y):
 sol = solve_ivp(f, (0.0, S['times_s'][-1]), np.array(S['y0']), method='BDF', t_eval=S['times_s'], rtol=1e-8, atol=1e-22, jac=jac)
 print(json.dumps({'status': int(sol.status), 'message': sol.message, 'y': sol.y.T.tolist()}))
 `;
+
+describe.runIf(!hasScipy && process.env.HOARFROST_REQUIRE_SCIPY === '1')('SciPy', () => {
+  it('is installed (HOARFROST_REQUIRE_SCIPY=1)', () => {
+    expect.fail(`HOARFROST_REQUIRE_SCIPY=1 but ${PYTHON} cannot import scipy.integrate. Install Debian's python3-scipy.`);
+  });
+});
 
 describe.runIf(hasScipy)('emitted default network vs SciPy BDF', () => {
   it('agrees with runModel(massActionOnly) at every output time', () => {
