@@ -50,9 +50,13 @@ describe('default network, dark-cloud conditions', () => {
       expect(at('e-', t)).toBeLessThan(1e-6);
     }
   });
-  it('has gas CO near 1e-4 at 1e5 yr (common practice)', () => {
-    expect(at('CO', 1e5)).toBeGreaterThan(1e-4 / NEAR_FACTOR);
-    expect(at('CO', 1e5)).toBeLessThan(1e-4 * NEAR_FACTOR);
+  // The trade quotes gas CO "about 1e-4" relative to H2 (common practice): per H nucleus
+  // it cannot reach 1e-4 when all carbon is 7.3e-5 (the low-metal set, memory).
+  it('has gas CO near 1e-4 of H2 at 1e5 yr and holding most of the carbon not yet frozen (common practice)', () => {
+    const coPerH2 = at('CO', 1e5) / at('H2', 1e5);
+    expect(coPerH2).toBeGreaterThan(1e-4 / NEAR_FACTOR);
+    expect(coPerH2).toBeLessThan(1e-4 * NEAR_FACTOR);
+    expect(at('CO', 1e5) + at('CO(s)', 1e5)).toBeGreaterThan(0.5 * 7.3e-5);
   });
   it('has water ice above 1e-5 by 1e6 yr (common practice)', () => {
     expect(at('H2O(s)', 1e6)).toBeGreaterThan(1e-5);
