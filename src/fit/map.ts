@@ -13,6 +13,7 @@ import type { FitContext } from './context.ts';
 import { lowerLimitCost, upperLimitCost } from './censored.ts';
 import { degreesOfFreedom } from './dof.ts';
 import { usedCount, type ObservationVector } from './observation-vector.ts';
+import type { Axis } from './axes.ts';
 import { AGE_PARAMETER, MAP_IMAGE_NAMES, type MapFitImages, type MapImageName, type RegionLevel } from './types.ts';
 
 /** Candidates scored per block: their model values (block x terms doubles) stay in the L1/L2 cache while every pixel is visited. */
@@ -76,12 +77,12 @@ function pack(pixels: readonly MapPixel[], which: 'detections' | 'limits'): Pack
  * that A_V: each pixel gets the key of its held values (-1 when none) and
  * each candidate the key of its values on the same axes.
  */
-function heldKeys(ctx: FitContext, pixels: readonly MapPixel[]): { pixelKey: Int32Array; candidateKey: Int32Array } {
+function heldKeys(ctx: FitContext, pixels: readonly MapPixel[]): { pixelKey: Int32Array; candidateKey: Int32Array; nKeys: number } {
   const names = [...new Set(pixels.flatMap((p) => Object.keys(p.obs.held)))].sort();
   const nC = ctx.model.nCandidates;
   const pixelKey = new Int32Array(pixels.length).fill(-1);
   const candidateKey = new Int32Array(nC);
-  if (names.length === 0) return { pixelKey, candidateKey };
+  if (names.length === 0) return { pixelKey, candidateKey, nKeys: 1 };
   const axes = names.map((n) => ctx.axes.byName.get(n)!);
   let stride = 1;
   for (const axis of axes) {
@@ -93,20 +94,44 @@ function heldKeys(ctx: FitContext, pixels: readonly MapPixel[]): { pixelKey: Int
     });
     stride *= axis.values.length;
   }
-  return { pixelKey, candidateKey };
+  return { pixelKey, candidateKey, nKeys: stride };
 }
 
-/** Lowest and highest grid value whose profile lies within the threshold. */
-function regionBounds(mins: Float64Array, offset: number, n: number, bound: number, values: Float64Array): { lo: number; hi: number; atEdge: boolean } {
+/**
+ * Which values of one axis have a candidate open to the pixels of each held
+ * key: open[key * nValues + bin] is 1 or 0. Every value has a candidate when
+ * nothing is held (the axes are built from the candidates' own values).
+ */
+function openValues(candidateKey: Int32Array, nKeys: number, axis: Axis): Uint8Array {
+  const n = axis.values.length;
+  const open = new Uint8Array(nKeys * n);
+  const bins = axis.binOfCandidate;
+  for (let c = 0; c < bins.length; c++) open[candidateKey[c] * n + bins[c]] = 1;
+  return open;
+}
+
+/**
+ * Lowest and highest grid value whose profile lies within the threshold; at
+ * the edge when either is the outermost value with a candidate open to the
+ * pixel (as intervalFromProfile: values without one were never tested). The
+ * openness comes from `open`, not from the minima, which are also Infinity
+ * where every candidate of a value was cut short as far outside the region.
+ */
+function regionBounds(mins: Float64Array, offset: number, n: number, best: number, delta: number, values: Float64Array, open: Uint8Array, openOffset: number): { lo: number; hi: number; atEdge: boolean } {
   let first = -1;
   let last = -1;
+  let firstOpen = -1;
+  let lastOpen = -1;
   for (let i = 0; i < n; i++) {
-    if (mins[offset + i] <= bound) {
+    if (open[openOffset + i] === 0) continue;
+    if (firstOpen < 0) firstOpen = i;
+    lastOpen = i;
+    if (mins[offset + i] - best <= delta) {
       if (first < 0) first = i;
       last = i;
     }
   }
-  return { lo: values[first], hi: values[last], atEdge: n > 1 && (first === 0 || last === n - 1) };
+  return { lo: values[first], hi: values[last], atEdge: n > 1 && (first === firstOpen || last === lastOpen) };
 }
 
 export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly MapPixel[], level: RegionLevel, where: { file?: string } = {}): MapFitImages {
@@ -123,7 +148,7 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   if (density === undefined) throw new UserError(`the model store has no '${DENSITY_PARAMETER}' parameter, which the map images need.`, { file: where.file });
 
   const nPix = usable.length;
-  const { pixelKey, candidateKey } = heldKeys(ctx, usable);
+  const { pixelKey, candidateKey, nKeys } = heldKeys(ctx, usable);
   const nD = density.values.length;
   const nA = age.values.length;
   const det = pack(usable, 'detections');
@@ -132,6 +157,8 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const bestCandidate = new Int32Array(nPix).fill(-1);
   const densityMin = new Float64Array(nPix * nD).fill(Infinity);
   const ageMin = new Float64Array(nPix * nA).fill(Infinity);
+  const densityOpen = openValues(candidateKey, nKeys, density);
+  const ageOpen = openValues(candidateKey, nKeys, age);
   const values = ctx.model.values;
   const nTerms = ctx.model.terms.length;
   const nC = ctx.model.nCandidates;
@@ -156,6 +183,9 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
    * value inside the region (chi^2 only grows as terms are added, and the
    * best only falls), so its sum is cut short: the per-value minima are exact
    * inside the region and only bounded outside it, which is all the images use.
+   * The tests are written as the per-sightline fit writes them (chi^2 - best
+   * against the threshold; of equal chi^2 the lowest candidate index is the
+   * best), so that both give the same result to the last bit.
    */
   const scoreRange = (c0: number, c1: number, stride: number) => {
     for (let p = 0; p < nPix; p++) {
@@ -167,7 +197,6 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
       const aRow = p * nA;
       let best = bestChi2[p];
       let bestC = bestCandidate[p];
-      let bound = best + delta;
       const key = pixelKey[p];
       candidates: for (let c = c0; c < c1; c += stride) {
         if (key >= 0 && candidateKey[c] !== key) continue;
@@ -176,17 +205,16 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
         for (let k = k0; k < k1; k++) {
           const d = values[base + dTerm[k]] - dObs[k];
           chi2 += d * d * (d > 0 ? dWHi[k] : dWLo[k]);
-          if (chi2 > bound) continue candidates;
+          if (chi2 - best > delta) continue candidates;
         }
         for (let k = l0; k < l1; k++) {
           const m = values[base + lTerm[k]];
           chi2 += lKind[k] > 0 ? upperLimitCost(lObs[k], m, lSigma[k]) : lowerLimitCost(lObs[k], m, lSigma[k]);
-          if (chi2 > bound) continue candidates;
+          if (chi2 - best > delta) continue candidates;
         }
-        if (chi2 < best) {
+        if (chi2 < best || (chi2 === best && c < bestC)) {
           best = chi2;
           bestC = c;
-          bound = best + delta;
         }
         const di = dRow + dBin[c];
         if (chi2 < densityMin[di]) densityMin[di] = chi2;
@@ -217,9 +245,9 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
     const chi2 = bestChi2[p];
     const counts = { detections: px.obs.detections.length, upperLimits: px.obs.upperLimits.length, lowerLimits: px.obs.lowerLimits.length, skipped: px.obs.skipped.length };
     const { dof } = degreesOfFreedom(counts, fitted, ctx.options.limitsInDof);
-    const bound = chi2 + level.deltaChi2;
-    const dr = regionBounds(densityMin, p * nD, nD, bound, density.values);
-    const ar = regionBounds(ageMin, p * nA, nA, bound, age.values);
+    const key = Math.max(0, pixelKey[p]);
+    const dr = regionBounds(densityMin, p * nD, nD, chi2, level.deltaChi2, density.values, densityOpen, key * nD);
+    const ar = regionBounds(ageMin, p * nA, nA, chi2, level.deltaChi2, age.values, ageOpen, key * nA);
     const pValue = chiSquarePValue(chi2, dof);
     images.best_density[i] = density.values[dBin[c]];
     images.best_age_yr[i] = age.values[aBin[c]];

@@ -164,10 +164,10 @@ export interface ParameterInterval {
   /** Smallest and largest grid value inside the region. */
   lo: number;
   hi: number;
-  /** The region reaches the grid's smallest (largest) value: the truth may lie outside the grid. */
+  /** The region reaches the smallest (largest) grid value with a candidate open to the sightline: the truth may lie outside the grid. */
   loAtEdge: boolean;
   hiAtEdge: boolean;
-  /** Grid values between lo and hi lie outside the region (the region has several parts). */
+  /** Grid values between lo and hi lie outside the region (the region has several parts); values without a candidate do not count. */
   disjoint: boolean;
   /** The grid has one value of this parameter: it was not fitted. */
   fixed: boolean;

@@ -26,9 +26,23 @@ describe('intervals from a profile (Delta chi^2 projection)', () => {
     expect([single.lo, single.hi, single.unresolved]).toEqual([1e4, 1e4, true]);
     // A missing cell (null) is never inside, even though null <= 2.3 in JavaScript.
     const holes = intervalFromProfile(profile([null, 0, null]), 1e4, LEVEL);
-    expect([holes.lo, holes.hi, holes.loAtEdge, holes.hiAtEdge]).toEqual([1e4, 1e4, false, false]);
+    expect([holes.lo, holes.hi]).toEqual([1e4, 1e4]);
     const fixed = intervalFromProfile(profile([0]), 1e3, LEVEL);
     expect([fixed.fixed, fixed.loAtEdge, fixed.hiAtEdge, fixed.unresolved]).toEqual([true, false, false, false]);
+  });
+
+  it('values without a candidate (null: excluded models) are untested: the edges are the outermost values with one, and a gap does not split a region', () => {
+    // Only the middle value has models open to the sightline: the grid, not the data, bounds it on both sides.
+    const lone = intervalFromProfile(profile([null, 0, null]), 1e4, LEVEL);
+    expect([lone.loAtEdge, lone.hiAtEdge]).toEqual([true, true]);
+    // Excluded models above 1e5: a region reaching 1e5 reaches the grid's edge for this sightline.
+    const cut = intervalFromProfile(profile([9, 2, 0, null, null]), 1e5, LEVEL);
+    expect([cut.lo, cut.hi, cut.loAtEdge, cut.hiAtEdge]).toEqual([1e4, 1e5, false, true]);
+    // A value without models between two inside the region is a hole in the grid, not a value outside the region.
+    const gap = intervalFromProfile(profile([9, 0, null, 1, 9]), 1e4, LEVEL);
+    expect([gap.lo, gap.hi, gap.disjoint, gap.loAtEdge, gap.hiAtEdge]).toEqual([1e4, 1e6, false, false, false]);
+    const split = intervalFromProfile(profile([9, 0, null, 5, 1, 9]), 1e4, LEVEL);
+    expect(split.disjoint).toBe(true);
   });
 });
 

@@ -3,7 +3,7 @@ import { fitSection } from '../../src/config/sections/fit.ts';
 import { runFitStage } from '../../src/fit/stage.ts';
 import { FIT_OUTPUT_FILES } from '../../src/fit/types.ts';
 import type { ObservationSet, ObservedQuantity, Sightline } from '../../src/obs/types.ts';
-import { analyticAbundances, detection, gaussian, limit, logSpaced, observationSet, seededRandom, SPECIES, syntheticTable } from './synthetic.ts';
+import { analyticAbundances, detection, gaussian, limit, logSpaced, observationSet, seededRandom, SPECIES, syntheticTable, withoutModels } from './synthetic.ts';
 
 const DENSITIES = logSpaced(1e3, 1e6, 7);
 const TIMES = logSpaced(1e4, 1e7, 12);
@@ -54,6 +54,8 @@ describe('map fit', () => {
       expect(im.best_chi2[i]).toBeCloseTo(f.best.chi2, 10);
       expect(im.best_density[i]).toBe(f.best.parameters.density);
       expect(im.best_age_yr[i]).toBe(f.best.ageYr);
+      // The same candidate, also where candidates tie: pixels without CH3OH(s) (x = 3) cannot tell the UV fields apart.
+      expect(map.map!.bestCandidate[i], f.sightline).toBe(f.best.modelIndex * table.nTimes + f.best.timeIndex);
       expect(im.p_value[i]).toBeCloseTo(f.pValue, 12);
       expect(im.dof[i]).toBe(f.dof);
       const d = f.intervals.find((iv) => iv.parameter === 'density' && iv.level === 0.683)!;
@@ -79,6 +81,44 @@ describe('map fit', () => {
       expect(map.map!.images.best_chi2[y * NX + x]).toBeCloseTo(f.best.chi2, 10);
       expect(f.best.parameters.uv_field).toBe(held[f.sightline].uv_field);
     }
+  });
+
+  it('grid exclusions: a 68.3% region reaching the highest density open to a held pixel is at the edge, as in the per-sightline fit', () => {
+    // No models above DENSITIES[3] at uv_field 2 (as an exclusion rule leaves a grid); pixels held at uv_field 2 whose truth is DENSITIES[3].
+    const cut = withoutModels(table, (p) => p.uv_field === 2 && p.density > DENSITIES[3] * 1.0001);
+    const ids = ['0,0', '1,0', '2,0'];
+    const quantities = ids.flatMap((id, k) => {
+      const v = analyticAbundances(DENSITIES[3], TIMES[3 + 3 * k], 2).map(Math.log10);
+      return SPECIES.map((s, j) => detection(id, s, v[j], 0.1));
+    });
+    const held = Object.fromEntries(ids.map((id) => [id, { uv_field: 2 }]));
+    const map = runFitStage({ table: cut, section, observations: mapSet(ids), quantities, held });
+    const one = runFitStage({ table: cut, section, observations: observationSet(ids), quantities, held });
+    for (const f of one.result.fits) {
+      const d = f.intervals.find((iv) => iv.parameter === 'density' && iv.level === 0.683)!;
+      expect([d.best, d.hi, d.hiAtEdge], f.sightline).toEqual([DENSITIES[3], DENSITIES[3], true]);
+      const i = Number(f.sightline.split(',')[0]);
+      expect(map.map!.images.density_hi[i]).toBe(DENSITIES[3]);
+      expect(map.map!.images.at_edge[i], f.sightline).toBe(1);
+    }
+    expect(one.result.warnings.some((w) => w.includes('interval of density reaches the grid') && w.includes('upper edge'))).toBe(true);
+  });
+
+  it('of candidates with equal chi2 the map keeps the first, as the per-sightline fit does, also past its sparse first pass', () => {
+    // 5 x 7 models x 31 times = 1085 candidates: the first pass visits every second one. Without CH3OH(s)
+    // the UV fields tie exactly, and with an odd number of times the tied candidates alternate in parity.
+    const big = syntheticTable({ densities: DENSITIES, times: logSpaced(1e4, 1e7, 31), uvFields: [0.5, 1, 2, 4, 8] });
+    const ids = ['0,0', '1,0', '2,0', '3,0', '4,0', '0,1', '1,1', '2,1'];
+    const quantities = ids.flatMap((id, k) => {
+      const v = analyticAbundances(DENSITIES[k % 7], 10 ** (4 + 0.37 * k)).map(Math.log10);
+      return [detection(id, 'H2O(s)', v[0], 0.1), detection(id, 'CO(s)', v[1] - v[0], 0.1, 'H2O(s)'), detection(id, 'CO2(s)', v[2] - v[0], 0.1, 'H2O(s)')];
+    });
+    const map = runFitStage({ table: big, section, observations: mapSet(ids), quantities });
+    const one = runFitStage({ table: big, section, observations: observationSet(ids), quantities });
+    one.result.fits.forEach((f, k) => {
+      expect(map.map!.bestCandidate[k], f.sightline).toBe(f.best.modelIndex * big.nTimes + f.best.timeIndex);
+      expect(map.map!.images.best_chi2[k]).toBe(f.best.chi2);
+    });
   });
 
   it('a map with no valid pixel is a clear error', () => {

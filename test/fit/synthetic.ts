@@ -98,3 +98,22 @@ export function observationSet(ids: string[], limits: Record<string, Record<stri
   });
   return { file: 'invented-cloud.csv', kind: 'table', sightlines, warnings: [] };
 }
+
+/** The table less the models for which `drop` is true (as a grid's exclusion rules leave it): parameters by name. */
+export function withoutModels(table: CandidateTable, drop: (parameters: Record<string, number>) => boolean): CandidateTable {
+  const np = table.parameterNames.length;
+  const nT = table.nTimes;
+  const nS = table.nSpecies;
+  const keep: number[] = [];
+  for (let m = 0; m < table.nModels; m++) {
+    const p = Object.fromEntries(table.parameterNames.map((name, k) => [name, table.parameters[m * np + k]]));
+    if (!drop(p)) keep.push(m);
+  }
+  const parameters = new Float64Array(keep.length * np);
+  const abundances = new Float64Array(keep.length * nT * nS);
+  keep.forEach((m, i) => {
+    parameters.set(table.parameters.subarray(m * np, (m + 1) * np), i * np);
+    abundances.set(table.abundances.subarray(m * nT * nS, (m + 1) * nT * nS), i * nT * nS);
+  });
+  return { ...table, nModels: keep.length, parameters, abundances, modelIds: keep.map((m) => table.modelIds[m]) };
+}
