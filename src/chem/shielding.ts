@@ -24,9 +24,14 @@ export function h2ShieldingFactor(columnH2: number, dopplerKms = H2_DOPPLER_KMS)
   return LINE_CORE_WEIGHT / (1 + x / dopplerKms) ** 2 + (DAMPING_WEIGHT / s) * Math.exp(-DAMPING_DECAY * s);
 }
 
-/** df/dN(H2), cm^2: the derivative of h2ShieldingFactor, for the Jacobian. */
+/**
+ * df/dN(H2), cm^2: the derivative of h2ShieldingFactor, for the Jacobian. A
+ * negative column (a solver's undershoot of x(H2) below 0) is read as no column,
+ * where the factor is constant: the derivative there is 0.
+ */
 export function h2ShieldingDerivative(columnH2: number, dopplerKms = H2_DOPPLER_KMS): number {
-  const x = Math.max(columnH2, 0) / COLUMN_SCALE;
+  if (columnH2 < 0) return 0;
+  const x = columnH2 / COLUMN_SCALE;
   const s = Math.sqrt(1 + x);
   const core = (-2 * LINE_CORE_WEIGHT) / (dopplerKms * (1 + x / dopplerKms) ** 3);
   const damping = DAMPING_WEIGHT * Math.exp(-DAMPING_DECAY * s) * (-0.5 / (s * s * s) - DAMPING_DECAY / (2 * s * s));

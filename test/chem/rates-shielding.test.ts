@@ -26,6 +26,13 @@ describe('h2ShieldingFactor (Draine & Bertoldi 1996 eq. 37)', () => {
       expect(h2ShieldingDerivative(n)).toBeLessThan(0);
     }
   });
+  it('reads a negative column (a solver undershoot) as none: constant factor, zero derivative, as central differences give', () => {
+    const n = -1e15;
+    const h = 1e-6 * Math.abs(n);
+    expect(h2ShieldingFactor(n)).toBe(h2ShieldingFactor(0));
+    expect((h2ShieldingFactor(n + h) - h2ShieldingFactor(n - h)) / (2 * h)).toBe(0);
+    expect(h2ShieldingDerivative(n)).toBe(0);
+  });
 });
 
 describe('self-shielded H2 photodissociation', () => {
