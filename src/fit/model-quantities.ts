@@ -68,22 +68,26 @@ export function buildModelQuantities(table: CandidateTable, terms: readonly Quan
   }
   const nTerms = terms.length;
   const nCandidates = table.nModels * table.nTimes;
-  const numIndex = Int32Array.from(terms, (t) => speciesIndex.get(t.numerator)!);
-  const denIndex = Int32Array.from(terms, (t) => (t.denominator === undefined ? -1 : speciesIndex.get(t.denominator)!));
+  // Each species' log10 is taken once per candidate, however many terms use it
+  // (the reference species of ratios is in most of them).
+  const used = [...new Set(terms.flatMap((t) => (t.denominator === undefined ? [t.numerator] : [t.numerator, t.denominator])))];
+  const usedColumn = Int32Array.from(used, (s) => speciesIndex.get(s)!);
+  const slotOf = new Map(used.map((s, i) => [s, i]));
+  const numSlot = Int32Array.from(terms, (t) => slotOf.get(t.numerator)!);
+  const denSlot = Int32Array.from(terms, (t) => (t.denominator === undefined ? -1 : slotOf.get(t.denominator)!));
+  const logs = new Float64Array(used.length);
   const values = new Float64Array(nCandidates * nTerms);
   const ns = table.nSpecies;
   const ab = table.abundances;
   for (let c = 0; c < nCandidates; c++) {
     const row = c * ns;
+    for (let k = 0; k < logs.length; k++) {
+      const x = ab[row + usedColumn[k]];
+      logs[k] = Math.log10(x > ABUNDANCE_FLOOR ? x : ABUNDANCE_FLOOR);
+    }
     for (let j = 0; j < nTerms; j++) {
-      const num = ab[row + numIndex[j]];
-      let v = Math.log10(num > ABUNDANCE_FLOOR ? num : ABUNDANCE_FLOOR);
-      const d = denIndex[j];
-      if (d >= 0) {
-        const den = ab[row + d];
-        v -= Math.log10(den > ABUNDANCE_FLOOR ? den : ABUNDANCE_FLOOR);
-      }
-      values[c * nTerms + j] = v;
+      const d = denSlot[j];
+      values[c * nTerms + j] = d >= 0 ? logs[numSlot[j]] - logs[d] : logs[numSlot[j]];
     }
   }
   return { terms: [...terms], nCandidates, values };

@@ -1,10 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { lowerLimitCost, upperLimitCost } from '../../src/fit/censored.ts';
-import { buildModelQuantities, collectTerms } from '../../src/fit/model-quantities.ts';
+import { ABUNDANCE_FLOOR, buildModelQuantities, collectTerms } from '../../src/fit/model-quantities.ts';
 import { logNormalCdf } from '../../src/fit/normal.ts';
 import { buildObservationVector } from '../../src/fit/observation-vector.ts';
 import { scoreBreakdown, scoreCandidates } from '../../src/fit/score.ts';
-import { detection, limit, syntheticTable } from './synthetic.ts';
+import { detection, limit, SPECIES, syntheticTable } from './synthetic.ts';
 
 // Standard normal CDF values from the NIST/SEMATECH e-Handbook normal table (section 1.3.6.7.1):
 // Phi(-1) = 0.15866, Phi(-2) = 0.02275, Phi(0) = 0.5; to more digits, Python 3's math.erfc
@@ -87,3 +87,30 @@ describe('censored cost of limits (physics.md section 6)', () => {
     expect(out[0]).toBeCloseTo(16, 10);
   });
 });
+
+describe('model side of the quantities', () => {
+  it('log10 of abundances and of ratios, the reference shared by several terms, zeros raised to the floor', () => {
+    const table = syntheticTable({ densities: [1e3, 1e5], times: [1e4, 1e6] });
+    table.abundances[2] = 0; // CO2(s) of the first candidate: a species the model lacks there
+    const quantities = [
+      detection('s', 'H2O(s)', -4, 0.1),
+      detection('s', 'CO(s)', -0.5, 0.1, 'H2O(s)'),
+      detection('s', 'CO2(s)', -0.5, 0.1, 'H2O(s)'),
+      detection('s', 'CO', -4, 0.1),
+      detection('s', 'CO', 0, 0.1, 'H2O(s)'),
+    ];
+    const terms = collectTerms(quantities);
+    const model = buildModelQuantities(table, terms);
+    const idx = terms.map((t) => [SPECIES.indexOf(t.numerator), t.denominator === undefined ? -1 : SPECIES.indexOf(t.denominator)]);
+    const log = (x: number) => Math.log10(Math.max(x, ABUNDANCE_FLOOR));
+    for (let c = 0; c < model.nCandidates; c++) {
+      const row = table.abundances.subarray(c * table.nSpecies, (c + 1) * table.nSpecies);
+      idx.forEach(([n, d], j) => {
+        // The definition, term by term: log10 X_num (- log10 X_den), to the last bit.
+        expect(model.values[c * terms.length + j]).toBe(d < 0 ? log(row[n]) : log(row[n]) - log(row[d]));
+      });
+    }
+    expect(model.values[2]).toBe(-30 - Math.log10(table.abundances[0]));
+  });
+});
+
