@@ -43,6 +43,7 @@ describe('gas-phase laws', () => {
 });
 
 describe('gas-grain laws', () => {
+  // Binding energies E_D/k_B, K: physics.md section 4 (memory).
   const data = { CO: { bindingEnergy: 1150 }, H: { bindingEnergy: 450 }, O: { bindingEnergy: 800 }, He: { bindingEnergy: 100 }, OH: { bindingEnergy: 2850 } };
   const reactions = [
     { reactants: ['CO'], products: ['CO(s)'], law: 'accretion' as const },
@@ -67,6 +68,16 @@ describe('gas-grain laws', () => {
   it('desorbs thermally at nu_0 exp(-E_D/T_dust) with nu_0 from HHL92', () => {
     const nu0 = vibrationFrequency(c.site_density, 1150, 28.01);
     expect(ratio(byIndex(surface, 2)!.k, thermalDesorptionRate(nu0, 1150, 10))).toBeCloseTo(1, 12);
+  });
+  it('desorbs by cosmic rays at f k_evap(70 K) zeta/zeta_0, f = 3.16e-19 (Hasegawa & Herbst 1993), from the dust temperature alone', () => {
+    const nu0 = vibrationFrequency(c.site_density, 1150, 28.01);
+    const expected = 3.16e-19 * nu0 * Math.exp(-1150 / 70) * 3;
+    const set = computeRates(net, { ...c, cr_ionisation_rate: 3.9e-17, dust_temperature: 12 }, DEFAULT_GRAIN_OPTIONS);
+    expect(ratio(byIndex(set, 3)!.k, expected)).toBeCloseTo(1, 10);
+  });
+  it('accretes at the reaction\'s sticking probability S', () => {
+    const half = makeNetwork([{ reactants: ['CO'], products: ['CO(s)'], law: 'accretion', params: { sticking: 0.5 } }], data);
+    expect(ratio(computeRates(half, c, DEFAULT_GRAIN_OPTIONS).rates[0].k, accretionRate(0.5, props.crossSection, 10, 28.01, nGr))).toBeCloseTo(1, 12);
   });
   it('marks photodesorption as the monolayer form with k = Y F / (4 N_s)', () => {
     const r = byIndex(surface, 4)!;

@@ -7,6 +7,7 @@ import { loadNetwork } from '../../src/chem/network.ts';
 import { makeNetwork } from '../model/fixtures.ts';
 
 const c = defaultConditions();
+// Binding energies E_D/k_B, K: physics.md section 4 (memory).
 const data = { CO: { bindingEnergy: 1150 }, H: { bindingEnergy: 450 }, O: { bindingEnergy: 800 }, OH: { bindingEnergy: 2850 }, H2O: { bindingEnergy: 5700 }, H2: { bindingEnergy: 430 } };
 const net = makeNetwork(
   [

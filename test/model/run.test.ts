@@ -20,7 +20,7 @@ describe('CO freeze-out and thermal desorption (analytic)', () => {
       { reactants: ['CO'], products: ['CO(s)'], law: 'accretion' },
       { reactants: ['CO(s)'], products: ['CO'], law: 'thermal-desorption' },
     ],
-    { CO: { bindingEnergy: 1150 } },
+    { CO: { bindingEnergy: 1150 } }, // E_D/k_B of CO, K: physics.md section 4 (memory)
   );
   it('matches y(t) = y_ss + (y0 - y_ss) exp(-(k_acc + k_evap) t) (linear ODE, common practice)', () => {
     const rates = computeRates(net, conditions, DEFAULT_GRAIN_OPTIONS).rates;
@@ -109,7 +109,7 @@ describe('runModel status', () => {
     const net = makeNetwork([
       { reactants: ['CO'], products: ['CO(s)'], law: 'accretion' },
       { reactants: ['CO(s)'], products: ['CO'], law: 'thermal-desorption' },
-    ], { CO: { bindingEnergy: 1150 } });
+    ], { CO: { bindingEnergy: 1150 } }); // physics.md section 4 (memory)
     const result = runModel({
       network: net,
       conditions: { ...defaultConditions(), dust_temperature: 20 },
