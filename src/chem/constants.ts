@@ -40,7 +40,7 @@ export const HABING_PHOTON_FLUX = 1e8;
 /** Dust attenuation of the photodesorbing UV per mag of A_V: F ∝ exp(-2 A_V) (physics.md section 3; common practice). */
 export const PHOTODESORPTION_ATTENUATION = 2;
 
-/** Cosmic-ray induced UV photon flux at zeta = zeta_0, photons cm^-2 s^-1 (physics.md section 3: "about 1e4"; Prasad & Tarafdar 1983 mechanism). */
+/** Cosmic-ray induced UV photon flux at zeta = zeta_0, photons cm^-2 s^-1 (physics.md section 3: "about 1e4", the order of magnitude, memory; Prasad & Tarafdar 1983 mechanism). */
 export const CR_UV_PHOTON_FLUX = 1e4;
 
 /** Fraction of time a grain spends near the peak temperature after a cosmic-ray hit (Hasegawa & Herbst 1993). */

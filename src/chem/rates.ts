@@ -82,7 +82,7 @@ function where(r: Reaction): { file: string; line?: number; row?: number } {
   return { file: r.source.file, line: r.source.line, row: r.source.row };
 }
 
-/** Modified Arrhenius (Kooij) k = alpha (T/300)^beta exp(-gamma/T), T clamped to [tmin, tmax] (common practice). */
+/** Modified Arrhenius (Kooij) k = alpha (T/300)^beta exp(-gamma/T); computeRates passes T already clamped to the reaction's [tmin, tmax] (common practice). */
 export function arrheniusRate(alpha: number, beta: number, gamma: number, temperature: number): number {
   return alpha * Math.pow(temperature / 300, beta) * Math.exp(-gamma / temperature);
 }
