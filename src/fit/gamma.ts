@@ -10,8 +10,15 @@
 const LANCZOS_COEFFICIENTS = [76.18009172947146, -86.50532032941677, 24.01409824083091, -1.231739572450155, 0.1208650973866179e-2, -0.5395239384953e-5];
 const LANCZOS_SERIES_ZERO = 1.000000000190015;
 const SQRT_TWO_PI = 2.5066282746310005;
-/** Iteration cap and relative accuracy of the series and the continued fraction (Numerical Recipes 6.2: ITMAX, EPS). */
+/**
+ * Iteration cap and relative accuracy of the series and the continued
+ * fraction (Numerical Recipes 6.2: ITMAX, EPS). Near x = a both need of the
+ * order of sqrt(2 a ln(1/EPS)), about 8.3 sqrt(a), terms, so the cap grows with
+ * sqrt(a): a fixed cap would cut the sums short, silently, for the large dof
+ * of a joint fit of many sightlines.
+ */
 const MAX_ITERATIONS = 1000;
+const ITERATIONS_PER_SQRT_A = 20;
 const RELATIVE_ACCURACY = 1e-15;
 /** Number near the smallest representable float, to keep the Lentz recursion away from division by zero (Numerical Recipes 6.2: FPMIN). */
 const TINY = 1e-300;
@@ -27,12 +34,17 @@ export function logGamma(x: number): number {
   return -tmp + Math.log((SQRT_TWO_PI * ser) / x);
 }
 
+function iterationCap(a: number): number {
+  return MAX_ITERATIONS + Math.ceil(ITERATIONS_PER_SQRT_A * Math.sqrt(a));
+}
+
 /** Series representation of P(a, x), valid for x < a + 1 (Numerical Recipes 6.2, gser). */
 function lowerSeries(a: number, x: number): number {
   let ap = a;
   let del = 1 / a;
   let sum = del;
-  for (let n = 0; n < MAX_ITERATIONS; n++) {
+  const cap = iterationCap(a);
+  for (let n = 0; n < cap; n++) {
     ap += 1;
     del *= x / ap;
     sum += del;
@@ -47,7 +59,8 @@ function upperContinuedFraction(a: number, x: number): number {
   let c = 1 / TINY;
   let d = 1 / b;
   let h = d;
-  for (let i = 1; i <= MAX_ITERATIONS; i++) {
+  const cap = iterationCap(a);
+  for (let i = 1; i <= cap; i++) {
     const an = -i * (i - a);
     b += 2;
     d = an * d + b;

@@ -50,9 +50,10 @@ describe('Delta chi^2 thresholds (Avni 1976; Numerical Recipes 15.6)', () => {
   it('regionLevels gives those thresholds for the default levels, sorted, for p = 2', () => {
     const levels = regionLevels([0.954, 0.683], 2);
     expect(levels.map((l) => l.level)).toEqual([0.683, 0.954]);
-    // 0.683 and 0.954 are the rounded sigma levels, so their thresholds sit just below 2.30 and 6.18.
-    expect(levels[0].deltaChi2).toBeCloseTo(2.2977, 3);
-    expect(levels[1].deltaChi2).toBeCloseTo(6.1582, 3);
+    // 0.683 and 0.954 are the rounded sigma levels, so their thresholds sit just below 2.30 and 6.18:
+    // for 2 dof the CDF is 1 - exp(-x/2) (closed form), so the quantile is -2 ln(1 - L) = 2.2977 and 6.1582.
+    expect(levels[0].deltaChi2).toBeCloseTo(-2 * Math.log(1 - 0.683), 10);
+    expect(levels[1].deltaChi2).toBeCloseTo(-2 * Math.log(1 - 0.954), 10);
     expect(levels.every((l) => l.parametersOfInterest === 2)).toBe(true);
   });
 });
@@ -78,6 +79,13 @@ describe('chi-square critical values', () => {
       }
     }
     expect(checked).toBeGreaterThan(300);
+  });
+
+  it('p-values for the large dof of a joint fit of many sightlines (SciPy 1.10.1 scipy.stats.chi2.sf, Debian python3-scipy)', () => {
+    // chi2.sf(41000, 40000) = 2.2502803564234105e-4, chi2.sf(250000, 250000) = 0.49962387359425176.
+    expect(chiSquarePValue(41000, 40000) / 2.2502803564234105e-4).toBeCloseTo(1, 8);
+    expect(chiSquarePValue(250000, 250000)).toBeCloseTo(0.49962387359425176, 8);
+    expect(chiSquareCdf(250000, 250000)).toBeCloseTo(1 - 0.49962387359425176, 8);
   });
 
   it('p-values far in the tail keep their precision (Q computed directly)', () => {

@@ -65,6 +65,8 @@ describe('fit section defaults', () => {
     const x = analyticAbundances(1e4, 1e5).map(Math.log10);
     const q = SPECIES.map((s, j) => detection('s', s, x[j], 0.2));
     const { result } = runFitStage({ table, section: fitSection.parse({ quantities: [{ species: 'CO(s)' }], parameters_of_interest: 1 }), observations: observationSet(['s']), quantities: q });
+    // For 1 dof the quantile is z^2 with Phi(z) = (1 + L)/2: z = 1.0006 at 0.683 and 1.9954 at 0.954
+    // (NIST/SEMATECH e-Handbook normal table, 1.3.6.7.1: Phi(1.00) = 0.84134, Phi(2.00) = 0.97725).
     expect(result.levels.map((l) => Number(l.deltaChi2.toFixed(2)))).toEqual([1.0, 3.98]);
   });
 });

@@ -64,7 +64,8 @@ describe('profiles, intervals and degrees of freedom', () => {
       expect(a.hi).toBeGreaterThanOrEqual(a.best);
       expect(b.lo).toBeLessThanOrEqual(a.lo);
       expect(b.hi).toBeGreaterThanOrEqual(a.hi);
-      expect(a.deltaChi2Threshold).toBeCloseTo(2.2977, 3);
+      // Two parameters of interest: -2 ln(1 - 0.683), the 2-dof quantile in closed form.
+      expect(a.deltaChi2Threshold).toBeCloseTo(-2 * Math.log(1 - 0.683), 10);
     }
     // The uv_field axis is only weakly constrained by one species: its region runs to both grid edges.
     const uv = fit.intervals.find((iv) => iv.parameter === 'uv_field' && iv.level === 0.954)!;
