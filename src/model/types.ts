@@ -19,7 +19,11 @@ export interface ModelInput {
   /** Output times, years (Julian, 3.15576e7 s), increasing, > 0. */
   timesYr: Float64Array;
   solver: SolverSettings;
-  /** Leave out the terms that are not mass-action (photodesorption above a monolayer, self-shielding). */
+  /**
+   * Leave out the reactions whose terms are not mass-action: every photodesorption
+   * reaction (its monolayer treatment is one term, below a monolayer too), the
+   * self-shielded H2 photodissociation and the parametric H2 formation rate.
+   */
   massActionOnly?: boolean;
   /** Shield H2 photodissociation by the H2 column (Draine & Bertoldi 1996); default true. */
   selfShielding?: boolean;
