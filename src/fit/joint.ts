@@ -22,6 +22,28 @@ export interface JointFitOutput {
   profiles: SightlineProfiles;
 }
 
+/**
+ * The independent axes whose value the shared values fix: the shared axes
+ * themselves and any tied to them (sharing dust_temperature tied to
+ * gas_temperature shares gas_temperature). Each is one fitted parameter of
+ * the group, not one per member.
+ */
+function determinedBy(independent: readonly Axis[], keyOfCandidate: Int32Array, nKeys: number): string[] {
+  const binOfKey = new Int32Array(nKeys);
+  return independent
+    .filter((axis) => {
+      binOfKey.fill(-1);
+      const bins = axis.binOfCandidate;
+      for (let c = 0; c < bins.length; c++) {
+        const k = keyOfCandidate[c];
+        if (binOfKey[k] < 0) binOfKey[k] = bins[c];
+        else if (binOfKey[k] !== bins[c]) return false;
+      }
+      return true;
+    })
+    .map((axis) => axis.name);
+}
+
 export function fitJoint(ctx: FitContext, name: string, members: readonly ObservationVector[], shared: readonly string[]): JointFitOutput {
   const { table, axes, options } = ctx;
   const sharedAxes: Axis[] = shared.map((s) => axes.byName.get(s)!);
@@ -60,9 +82,9 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
   for (let k = 1; k < nKeys; k++) if (total[k] < total[bestKey]) bestKey = k;
   const chi2Best = total[bestKey];
 
-  const sharedFitted = shared.filter((s) => axes.independent.includes(s)).length;
-  let fittedParameters = sharedFitted;
-  for (const obs of members) fittedParameters += fittedParameterCount(ctx, obs) - sharedFitted;
+  const sharedFree = determinedBy(axes.independent.map((n) => axes.byName.get(n)!), keyOfCandidate, nKeys);
+  let fittedParameters = sharedFree.length;
+  for (const obs of members) fittedParameters += fittedParameterCount(ctx, obs) - sharedFree.filter((n) => !(n in obs.held)).length;
   let counted = 0;
   for (const obs of members) {
     const c = quantityCounts(obs);

@@ -244,6 +244,28 @@ describe('joint fits', () => {
     expect(files[FIT_OUTPUT_FILES.jointFitsCsv].split('\n').length).toBe(5);
   });
 
+  it('sharing a condition tied to another shares that one too: one fitted parameter for the group, not one per member', () => {
+    // dust_temperature = 10 x uv_field (a tie): sharing it fixes uv_field for every member.
+    const t = syntheticTable({ densities: DENSITIES, times: TIMES, uvFields: UV });
+    const np = t.parameterNames.length;
+    const params = new Float64Array(t.nModels * (np + 1));
+    for (let m = 0; m < t.nModels; m++) {
+      params.set(t.parameters.subarray(m * np, (m + 1) * np), m * (np + 1));
+      params[m * (np + 1) + np] = 10 * t.parameters[m * np + 1];
+    }
+    const tied: CandidateTable = { ...t, parameterNames: [...t.parameterNames, 'dust_temperature'], parameters: params };
+    const q = [...abundanceQuantities('a', DENSITIES[1], TIMES[2], 0.1), ...abundanceQuantities('b', DENSITIES[4], TIMES[6], 0.1), ...abundanceQuantities('c', DENSITIES[5], TIMES[7], 0.1)];
+    const section = parse({ joint: [{ name: 'core', sightlines: 'all', share: 'dust_temperature' }] });
+    const { result } = runFitStage({ table: tied, section, observations: observationSet(['a', 'b', 'c']), quantities: q });
+    const j = result.joint[0];
+    // uv_field (through dust_temperature) once, density and age per member: 1 + 3 x 2.
+    expect(j.fittedParameters).toBe(1 + 3 * 2);
+    expect(j.dof).toBe(15 - 7);
+    // Sharing uv_field itself counts the same.
+    const direct = runFitStage({ table: tied, section: parse({ joint: [{ name: 'core', sightlines: 'all', share: 'uv_field' }] }), observations: observationSet(['a', 'b', 'c']), quantities: q }).result.joint[0];
+    expect(direct.fittedParameters).toBe(j.fittedParameters);
+  });
+
   it('the summed profile equals the sum of member profiles over the shared value', () => {
     const random = seededRandom(3);
     const q = [...abundanceQuantities('a', DENSITIES[2], TIMES[3], 0.2, () => gaussian(random)), ...abundanceQuantities('b', DENSITIES[3], TIMES[4], 0.2, () => gaussian(random))];
