@@ -47,10 +47,12 @@ export function reactionProbability(activationEnergy: number, dustTemperature: n
 /**
  * Reaction-diffusion competition: kappa' = nu kappa / (nu kappa + k_hop,i + k_hop,j)
  * (Chang, Cuppen & Herbst 2007; Garrod & Pauly 2011), nu the larger of the two
- * vibration frequencies (memory).
+ * vibration frequencies (memory). A pair that can neither cross (kappa
+ * underflowed to 0) nor hop (cold dust, both hops 0) never reacts: 0, not 0/0.
  */
 export function competingProbability(kappa: number, nu: number, hopI: number, hopJ: number): number {
   const attempt = nu * kappa;
+  if (attempt === 0) return 0;
   return attempt / (attempt + hopI + hopJ);
 }
 

@@ -125,4 +125,11 @@ describe('surface diffusion and reaction (HHL92)', () => {
     const slow = competingProbability(1e-12, 1e12, 1e3, 1e3);
     expect(slow).toBeCloseTo(1 / 2001, 8);
   });
+  it('gives no reaction, not NaN, for a pair that neither crosses nor hops (kappa and both hops underflowed on cold dust)', () => {
+    const kappa = reactionProbability(3e5, 3, 14);
+    const hop = hoppingRate(1e12, 0.5 * 7000, 3);
+    expect(kappa).toBe(0);
+    expect(hop).toBe(0);
+    expect(competingProbability(kappa, 1e12, hop, hop)).toBe(0);
+  });
 });
