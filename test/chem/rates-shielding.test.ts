@@ -71,6 +71,11 @@ describe('self-shielded H2 photodissociation', () => {
     sys.rhs(0, yp, fp);
     sys.rhs(0, ym, fm);
     expect(values[pos] / ((fp[iH2] - fm[iH2]) / (2 * h))).toBeCloseTo(1, 5);
+    // The product row too: two H per dissociation.
+    const iH = net.speciesIndex.get('H')!;
+    const posH = Array.from(sys.pattern.colIdx.subarray(sys.pattern.rowPtr[iH], sys.pattern.rowPtr[iH + 1])).indexOf(iH2) + sys.pattern.rowPtr[iH];
+    expect(values[posH] / ((fp[iH] - fm[iH]) / (2 * h))).toBeCloseTo(1, 5);
+    expect(values[posH] / values[pos]).toBeCloseTo(-2, 10);
     expect(sys.omitted).toEqual([expect.stringMatching(/h2-self-shielding .*H2 -> H \+ H/)]);
   });
 });
