@@ -21,6 +21,8 @@ const CANDIDATE_BLOCK = 256;
 const DENSITY_PARAMETER = 'density';
 /** Candidates of the sparse first pass that seeds each pixel's best chi^2 (a few hundred cost little against 1e5 and find a good bound). */
 const SEED_CANDIDATES = 512;
+/** Relative widening of the cut-off bound, far above round-off in best + threshold and far below any chi^2 difference that matters. */
+const PRUNE_MARGIN = 1 + 1e-12;
 
 export interface MapPixel {
   x: number;
@@ -183,9 +185,10 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
    * value inside the region (chi^2 only grows as terms are added, and the
    * best only falls), so its sum is cut short: the per-value minima are exact
    * inside the region and only bounded outside it, which is all the images use.
-   * The tests are written as the per-sightline fit writes them (chi^2 - best
-   * against the threshold; of equal chi^2 the lowest candidate index is the
-   * best), so that both give the same result to the last bit.
+   * The cut is a little wider than the threshold (PRUNE_MARGIN), so that
+   * round-off never cuts a candidate the per-sightline fit's test (chi^2 -
+   * best against the threshold, applied to the minima afterwards) would keep;
+   * and of equal chi^2 the lowest candidate index is the best, as there.
    */
   const scoreRange = (c0: number, c1: number, stride: number) => {
     for (let p = 0; p < nPix; p++) {
@@ -197,6 +200,7 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
       const aRow = p * nA;
       let best = bestChi2[p];
       let bestC = bestCandidate[p];
+      let bound = (best + delta) * PRUNE_MARGIN;
       const key = pixelKey[p];
       candidates: for (let c = c0; c < c1; c += stride) {
         if (key >= 0 && candidateKey[c] !== key) continue;
@@ -205,16 +209,17 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
         for (let k = k0; k < k1; k++) {
           const d = values[base + dTerm[k]] - dObs[k];
           chi2 += d * d * (d > 0 ? dWHi[k] : dWLo[k]);
-          if (chi2 - best > delta) continue candidates;
+          if (chi2 > bound) continue candidates;
         }
         for (let k = l0; k < l1; k++) {
           const m = values[base + lTerm[k]];
           chi2 += lKind[k] > 0 ? upperLimitCost(lObs[k], m, lSigma[k]) : lowerLimitCost(lObs[k], m, lSigma[k]);
-          if (chi2 - best > delta) continue candidates;
+          if (chi2 > bound) continue candidates;
         }
         if (chi2 < best || (chi2 === best && c < bestC)) {
           best = chi2;
           bestC = c;
+          bound = (best + delta) * PRUNE_MARGIN;
         }
         const di = dRow + dBin[c];
         if (chi2 < densityMin[di]) densityMin[di] = chi2;
