@@ -32,9 +32,9 @@ export function quantityCounts(obs: ObservationVector): QuantityCounts {
 /** Candidates within `deltaChi2` of the best, best first: the count and the first `limit` after the best. */
 export function candidatesWithin(ctx: FitContext, chi2: Float64Array, bestIndex: number, deltaChi2: number, limit: number): { count: number; runnerUps: CandidateRef[] } {
   const chi2Best = chi2[bestIndex];
-  const bound = chi2Best + deltaChi2;
   const inside: number[] = [];
-  for (let c = 0; c < chi2.length; c++) if (chi2[c] <= bound) inside.push(c);
+  // The test of the intervals (chi^2 - best against the threshold), so that the two never disagree by round-off.
+  for (let c = 0; c < chi2.length; c++) if (chi2[c] - chi2Best <= deltaChi2) inside.push(c);
   inside.sort((a, b) => chi2[a] - chi2[b] || a - b);
   const runnerUps = inside
     .filter((c) => c !== bestIndex)
