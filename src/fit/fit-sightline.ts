@@ -72,7 +72,7 @@ export function fitSightline(ctx: FitContext, obs: ObservationVector): Sightline
   const best = candidateRef(table, bestIndex, chi2Best, chi2Best);
   const counts = quantityCounts(obs);
   const fittedParameters = fittedParameterCount(ctx, obs);
-  const { dof, floored } = degreesOfFreedom(counts, fittedParameters, options.limitsInDof);
+  const { dof, floored, counted } = degreesOfFreedom(counts, fittedParameters, options.limitsInDof);
   const pValue = chiSquarePValue(chi2Best, dof);
   const residuals = scoreBreakdown(model, obs, bestIndex, options.agreementDex);
   const agreementFraction = residuals.filter((r) => r.agrees).length / residuals.length;
@@ -94,7 +94,8 @@ export function fitSightline(ctx: FitContext, obs: ObservationVector): Sightline
   const warnings: string[] = [];
   if (obs.skipped.length > 0) warnings.push(`${id}: no measurement of ${obs.skipped.join(', ')}: fitted without ${obs.skipped.length === 1 ? 'it' : 'them'}.`);
   if (floored) {
-    warnings.push(`${id}: ${counts.detections} detection(s) for ${fittedParameters} fitted parameters: dof raised to 1, so the p-value does not test this fit (the parameters are not all constrained).`);
+    const what = options.limitsInDof ? `${counted} detection(s) and limit(s)` : `${counts.detections} detection(s)`;
+    warnings.push(`${id}: ${what} for ${fittedParameters} fitted parameters: dof raised to 1, so the p-value does not test this fit (the parameters are not all constrained).`);
   }
   if (pValue < options.poorFitP) {
     warnings.push(`${id}: poor fit: chi2 = ${chi2Best.toFixed(2)} for ${dof} dof (p = ${pValue.toExponential(2)} < ${options.poorFitP}): no model of the grid reproduces these data within their errors and the ${options.modelSigmaDex} dex model floor, and the Delta chi2 regions, which assume a good fit at the minimum, understate the uncertainty.`);

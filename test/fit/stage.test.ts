@@ -132,6 +132,7 @@ describe('profiles, intervals and degrees of freedom', () => {
     expect(off.warnings.some((w) => w.includes('dof raised to 1'))).toBe(true);
     expect(off.warnings.some((w) => w.includes('no measurement of X(CO(s)), X(CO2(s))'))).toBe(true);
     expect(on.dof).toBe(1);
+    expect(on.warnings.some((w) => w.includes('3 detection(s) and limit(s) for 3 fitted parameters: dof raised to 1'))).toBe(true);
     const fourAndLimit = [...full.slice(0, 4), limit('s3', 'upper', 'CO', -3)];
     const a = runFitStage({ table, section: parse(), observations: observationSet(['s3']), quantities: fourAndLimit }).result.fits[0];
     const b = runFitStage({ table, section: parse({ limits_in_dof: true }), observations: observationSet(['s3']), quantities: fourAndLimit }).result.fits[0];

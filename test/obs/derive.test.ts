@@ -49,7 +49,7 @@ describe('abundances X = N / N_H', () => {
 
   it('an ice threshold of 3 mag is taken off A_V for ice species only', () => {
     // A_V - 3 = 7 mag: N_H = 1.309e22, X = 1.87e18 / 1.309e22 = 1.4285714e-4, log10 = -3.845098040.
-    // sigma: sqrt(0.1^2 + (1/7)^2) = 0.174355, / ln 10 = 0.0757319964.
+    // sigma: sqrt(0.1^2 + (1/7)^2) = 0.174379, / ln 10 = 0.0757319964.
     const s = section({ file: 'x.csv', ice_threshold_av: 3 });
     const obs = set(sightline('a', 10, 1, { 'H2O(s)': det(1.87e18, 1.87e17), CO: det(1.87e18, 1.87e17) }));
     const { quantities } = deriveQuantities(obs, s, [{ species: 'H2O(s)', as: 'abundance' }, { species: 'CO', as: 'abundance' }]);
