@@ -243,13 +243,16 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const fitted = ctx.axes.independent.filter((n) => !(n in usable[0].obs.held)).length;
   const warnings: string[] = [];
   let poor = 0;
+  let floored = 0;
   let atEdge = 0;
   usable.forEach((px, p) => {
     const i = px.y * nx + px.x;
     const c = bestCandidate[p];
     const chi2 = bestChi2[p];
     const counts = { detections: px.obs.detections.length, upperLimits: px.obs.upperLimits.length, lowerLimits: px.obs.lowerLimits.length, skipped: px.obs.skipped.length };
-    const { dof } = degreesOfFreedom(counts, fitted, ctx.options.limitsInDof);
+    const dofs = degreesOfFreedom(counts, fitted, ctx.options.limitsInDof);
+    const dof = dofs.dof;
+    if (dofs.floored) floored++;
     const key = Math.max(0, pixelKey[p]);
     const dr = regionBounds(densityMin, p * nD, nD, chi2, level.deltaChi2, density.values, densityOpen, key * nD);
     const ar = regionBounds(ageMin, p * nA, nA, chi2, level.deltaChi2, age.values, ageOpen, key * nA);
@@ -273,6 +276,9 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
     if (dr.atEdge || ar.atEdge) atEdge++;
   });
   if (usable.length < pixels.length) warnings.push(`${pixels.length - usable.length} of ${pixels.length} map pixels have no usable quantity and are left blank (NaN) in every image.`);
+  if (floored > 0) {
+    warnings.push(`${floored} of ${nPix} fitted pixels have fewer counted quantities than the ${fitted} fitted parameters plus one: their dof is raised to 1 (the dof image), so their p-values do not test the fit.`);
+  }
   if (poor > 0) warnings.push(`${poor} of ${nPix} fitted pixels are poor fits (p < ${ctx.options.poorFitP}): see the p_value image.`);
   if (atEdge > 0) warnings.push(`${atEdge} of ${nPix} fitted pixels have a ${(level.level * 100).toFixed(1)}% density or age interval reaching the grid's edge (the at_edge image): the truth may lie outside the grid there.`);
   return { nx, ny, images, bestCandidate: pixelBest, fittedPixels: nPix, level, warnings };

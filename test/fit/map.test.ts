@@ -69,6 +69,10 @@ describe('map fit', () => {
     expect(json.images.best_density.length).toBe(NX * NY);
     expect(map.files[FIT_OUTPUT_FILES.bestFitsCsv].trim().split('\n').length).toBe(NX * NY);
     expect(map.result.warnings.some((w) => w.includes('1 of 20 map pixels have no usable quantity'))).toBe(true);
+    // Pixels with x even have three detections (and a limit) for three fitted parameters: dof raised to 1, as the per-sightline fit warns.
+    const floored = one.result.fits.filter((f) => f.warnings.some((w) => w.includes('dof raised to 1'))).length;
+    expect(floored).toBeGreaterThan(0);
+    expect(map.result.warnings).toContain(`${floored} of 19 fitted pixels have fewer counted quantities than the 3 fitted parameters plus one: their dof is raised to 1 (the dof image), so their p-values do not test the fit.`);
   });
 
   it('pixels held at their own A_V see only the models of that A_V', () => {
