@@ -10,7 +10,7 @@
 import { UserError } from '../config/errors.ts';
 import { chiSquarePValue } from './chi-square.ts';
 import type { FitContext } from './context.ts';
-import { lowerLimitCost, upperLimitCost } from './censored.ts';
+import { censoredCost } from './censored.ts';
 import { degreesOfFreedom } from './dof.ts';
 import { usedCount, type ObservationVector } from './observation-vector.ts';
 import type { Axis } from './axes.ts';
@@ -35,7 +35,7 @@ interface PackedEntries {
   offsets: Int32Array;
   term: Int32Array;
   log10: Float64Array;
-  /** Detections: 1/sigma^2 below and above; limits: sigma in weightLo, kind code in weightHi (1 upper, -1 lower). */
+  /** Detections: 1/sigma^2 below and above; limits: 1/sigma in weightLo, kind code in weightHi (1 upper, -1 lower). */
   weightLo: Float64Array;
   weightHi: Float64Array;
 }
@@ -64,7 +64,7 @@ function pack(pixels: readonly MapPixel[], which: 'detections' | 'limits'): Pack
         for (const j of list) {
           packed.term[k] = j;
           packed.log10[k] = o.log10[j];
-          packed.weightLo[k] = 1 / o.inverseSigmaLimit[j];
+          packed.weightLo[k] = o.inverseSigmaLimit[j];
           packed.weightHi[k] = code;
           k++;
         }
@@ -174,7 +174,7 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const lOff = lim.offsets;
   const lTerm = lim.term;
   const lObs = lim.log10;
-  const lSigma = lim.weightLo;
+  const lInverseSigma = lim.weightLo;
   const lKind = lim.weightHi;
 
   const delta = level.deltaChi2;
@@ -213,7 +213,9 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
         }
         for (let k = l0; k < l1; k++) {
           const m = values[base + lTerm[k]];
-          chi2 += lKind[k] > 0 ? upperLimitCost(lObs[k], m, lSigma[k]) : lowerLimitCost(lObs[k], m, lSigma[k]);
+          // (m - L) w is exactly -((L - m) w): the per-sightline loop's z for either kind.
+          const z = (lObs[k] - m) * lInverseSigma[k];
+          chi2 += censoredCost(lKind[k] > 0 ? z : -z);
           if (chi2 > bound) continue candidates;
         }
         if (chi2 < best || (chi2 === best && c < bestC)) {

@@ -9,7 +9,7 @@
  * observational error, a correlation this sum leaves out (it matters when the
  * reference's error is comparable to the others and the model floor small).
  */
-import { lowerLimitCost, upperLimitCost } from './censored.ts';
+import { censoredCost } from './censored.ts';
 import type { ModelQuantities } from './model-quantities.ts';
 import type { ObservationVector } from './observation-vector.ts';
 import type { QuantityScore } from './types.ts';
@@ -48,11 +48,11 @@ export function scoreCandidates(model: ModelQuantities, obs: ObservationVector, 
       }
       for (let k = 0; k < nUp; k++) {
         const j = up[k];
-        chi2 += upperLimitCost(o[j], values[base + j], 1 / wLim[j]);
+        chi2 += censoredCost((o[j] - values[base + j]) * wLim[j]);
       }
       for (let k = 0; k < nLow; k++) {
         const j = low[k];
-        chi2 += lowerLimitCost(o[j], values[base + j], 1 / wLim[j]);
+        chi2 += censoredCost((values[base + j] - o[j]) * wLim[j]);
       }
       out[c] = chi2;
     }
@@ -79,8 +79,10 @@ export function scoreBreakdown(model: ModelQuantities, obs: ObservationVector, c
       chi2 = (d / sigma) ** 2;
       agrees = Math.abs(d) < agreementDex;
     } else {
-      sigma = 1 / obs.inverseSigmaLimit[j];
-      chi2 = q.kind === 'upper' ? upperLimitCost(q.log10, m, sigma) : lowerLimitCost(q.log10, m, sigma);
+      const w = obs.inverseSigmaLimit[j];
+      sigma = 1 / w;
+      // As the scoring loop forms it, so that the rows add up to its chi^2.
+      chi2 = censoredCost(q.kind === 'upper' ? (q.log10 - m) * w : (m - q.log10) * w);
       agrees = q.kind === 'upper' ? m <= q.log10 : m >= q.log10;
     }
     rows.push({

@@ -125,6 +125,26 @@ describe('map fit', () => {
     });
   });
 
+  it('upper and lower limits score to the same chi2 to the last bit in the map and in the per-sightline fit', () => {
+    const ids = ['0,0', '1,0', '2,0', '3,0'];
+    const quantities = ids.flatMap((id, k) => {
+      const v = analyticAbundances(DENSITIES[2 + k], TIMES[4 + k]).map(Math.log10);
+      return [
+        detection(id, 'H2O(s)', v[0] + 0.05, 0.1),
+        detection(id, 'CO(s)', v[1] - v[0] - 0.1, 0.15, 'H2O(s)'),
+        limit(id, 'upper', 'CO', v[4] - 0.2),
+        limit(id, 'lower', 'CH3OH(s)', v[3] - v[0] + 0.1 * k, 'H2O(s)'),
+      ];
+    });
+    const map = runFitStage({ table, section, observations: mapSet(ids), quantities });
+    const one = runFitStage({ table, section, observations: observationSet(ids), quantities });
+    one.result.fits.forEach((f, k) => {
+      expect([f.counts.upperLimits, f.counts.lowerLimits]).toEqual([1, 1]);
+      expect(map.map!.images.best_chi2[k]).toBe(f.best.chi2);
+      expect(map.map!.bestCandidate[k]).toBe(f.best.modelIndex * table.nTimes + f.best.timeIndex);
+    });
+  });
+
   it('a map with no valid pixel is a clear error', () => {
     const ids = ['0,0', '1,0'];
     // Pixels carry only a species the fit does not use.
