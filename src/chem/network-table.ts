@@ -37,7 +37,7 @@ import { basename, dirname, extname, join, resolve } from 'node:path';
 import { existsSync } from 'node:fs';
 import { z } from 'zod';
 import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
-import { parseYamlText, validate, type LoadedYaml, type PathKey } from '../config/yaml.ts';
+import { decodeText, parseYamlText, validate, type LoadedYaml, type PathKey } from '../config/yaml.ts';
 import { isRateLawName, RATE_LAW_NAMES, RATE_LAWS, type RateLawName } from './laws.ts';
 import { assembleNetwork, GAS_TEMPERATURE_LAWS, type RawReaction, type RawSpecies } from './network-assemble.ts';
 import { collect, readBytes, sha256, speciesEntrySchema } from './network-read.ts';
@@ -93,7 +93,7 @@ export function loadNetworkTable(tableFile: string, mappingFile?: string): Netwo
     throw new UserError(`a table network needs a column mapping; none found at ${mapping}. Write one there (format: ${TABLE_MAPPING_FORMAT}, see DEVELOPERS.md) or name it with --mapping.`, { file: tableFile });
   }
   const bytes = readBytes(mapping, 'column mapping');
-  const loaded = parseYamlText(bytes.toString('utf8'), mapping);
+  const loaded = parseYamlText(decodeText(bytes, mapping, 'column mapping'), mapping);
   return readTable(loaded, bytes, tableFile);
 }
 
@@ -125,7 +125,7 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
   const delimiter = m.delimiter ?? TABLE_EXTENSIONS[extname(tableFile).toLowerCase()] ?? ',';
   const comment = m.comment ?? DEFAULT_COMMENT;
   const parser = dsvFormat(delimiter);
-  const lines = tableBytes.toString('utf8').split(/\r?\n/);
+  const lines = decodeText(tableBytes, tableFile, 'network table').split(/\r?\n/);
   let header: string[] | undefined;
   const rows: { cells: string[]; line: number; row: number }[] = [];
   lines.forEach((text, i) => {

@@ -26,7 +26,7 @@
 import { extname } from 'node:path';
 import { z } from 'zod';
 import { UserError, type ErrorLocation } from '../config/errors.ts';
-import { parseYamlText, validate, type LoadedYaml, type PathKey } from '../config/yaml.ts';
+import { decodeText, parseYamlText, validate, type LoadedYaml, type PathKey } from '../config/yaml.ts';
 import { RATE_LAWS } from './laws.ts';
 import { assembleNetwork, type RawReaction, type RawSpecies } from './network-assemble.ts';
 import { collect, readBytes, sha256, speciesEntrySchema } from './network-read.ts';
@@ -74,7 +74,7 @@ export function loadNetwork(file: string, options: LoadNetworkOptions = {}): Net
     throw new UserError('a column mapping applies to a CSV/TSV table, not to a YAML network; drop the mapping or give the table.', { file });
   }
   const bytes = readBytes(file, 'network file');
-  const loaded = parseYamlText(bytes.toString('utf8'), file);
+  const loaded = parseYamlText(decodeText(bytes, file, 'network file'), file);
   const format = (loaded.data as { format?: unknown } | null)?.format;
   if (format === TABLE_MAPPING_FORMAT) return loadNetworkTableFromMapping(loaded, bytes);
   return readYamlNetwork(loaded, sha256(bytes));

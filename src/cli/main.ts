@@ -27,6 +27,26 @@ function quietOnClosedPipe(stream: NodeJS.WriteStream): void {
   });
 }
 
+/** What the machine refused (a folder that cannot be written, a full disk), said as such: a fault of the surroundings, not of the tool. */
+const FILE_SYSTEM_REFUSALS: Record<string, string> = {
+  EACCES: 'permission denied. Check that you may write there, or choose another output folder',
+  EPERM: 'operation not permitted. Check that you may write there, or choose another output folder',
+  EROFS: 'the file system is read-only. Choose an output folder on a writable disk',
+  ENOSPC: 'the disk is full. Free some space, or choose an output folder on another disk',
+  EDQUOT: 'the disk quota is used up. Free some space, or choose an output folder on another disk',
+  ENOTDIR: 'a part of this path is a file, not a folder. Choose another path, or move the file away',
+  EMKDIR: 'the folder cannot be made (a read-only disk, or a parent folder you may not write). Choose an output folder on a writable disk',
+};
+
+function fileSystemMessage(e: unknown): string | undefined {
+  const err = e as NodeJS.ErrnoException | undefined;
+  // Node's recursive mkdir reports a read-only or forbidden parent as ENOENT.
+  const code = err?.code === 'ENOENT' && err.syscall === 'mkdir' ? 'EMKDIR' : err?.code;
+  const advice = typeof code === 'string' ? FILE_SYSTEM_REFUSALS[code] : undefined;
+  if (!advice || typeof err?.path !== 'string') return undefined;
+  return `${err.path}: cannot ${err.syscall ?? 'write'}: ${advice}.`;
+}
+
 export async function main(argv: string[]): Promise<number> {
   quietOnClosedPipe(process.stdout);
   quietOnClosedPipe(process.stderr);
@@ -60,6 +80,11 @@ export async function main(argv: string[]): Promise<number> {
     if (isUserError(e)) {
       process.stderr.write(`hoarfrost: ${e.message}\n`);
       return e.exitCode;
+    }
+    const fsMessage = fileSystemMessage(e);
+    if (fsMessage) {
+      process.stderr.write(`hoarfrost: ${fsMessage}\n`);
+      return 2;
     }
     const err = e as Error;
     process.stderr.write(`hoarfrost: internal error: ${err?.message ?? String(e)}\nThis is a fault of the tool, not of your input; please report it with the command you ran${process.env.HOARFROST_DEBUG ? '' : ' (set HOARFROST_DEBUG=1 to see the stack)'}.\n`);

@@ -5,8 +5,10 @@
  * resolves paths against the pipeline file's folder, and validates once at
  * the edge: inside, code trusts the types.
  */
+import { existsSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
+import { UserError } from './errors.ts';
 import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
 import { observationsSection } from './sections/observations.ts';
 import { conditionsSection, excludeSection } from './sections/conditions.ts';
@@ -20,7 +22,8 @@ export const timesSection = z
     /** Output times, spaced logarithmically from start to end. */
     count: z.number().int().min(2).default(41),
   })
-  .strict();
+  .strict()
+  .refine((t) => t.start_yr < t.end_yr, { path: ['end_yr'], message: 'output times need start_yr < end_yr; swap them, or make end_yr the later time' });
 
 export const solverSection = z
   .object({
@@ -76,5 +79,16 @@ export function loadPipeline(file: string): Pipeline {
   const yaml = loadYamlFile(file, 'pipeline file');
   const config = validate(pipelineSchema, yaml);
   const dir = dirname(resolve(file));
+  checkOutputFolder(resolve(dir, config.output), yaml);
   return { file, dir, config, yaml, resolvePath: (p) => resolve(dir, p) };
+}
+
+/** The output folder, or the nearest part of its path that exists, must be a folder: a file there would stop every stage at its first write. */
+function checkOutputFolder(output: string, yaml: LoadedYaml): void {
+  let p = output;
+  while (!existsSync(p) && dirname(p) !== p) p = dirname(p);
+  if (!statSync(p).isDirectory()) {
+    const which = p === output ? 'the output folder' : `${p}, on the path of the output folder ${output},`;
+    throw new UserError(`expected a folder, but ${which} is a file. Give another output path, or move the file away.`, { file: yaml.file, line: yaml.lineOf(['output']), field: 'output' });
+  }
 }

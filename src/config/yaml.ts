@@ -17,14 +17,35 @@ export interface LoadedYaml {
   text: string;
 }
 
+/** Strict UTF-8: a byte sequence that is not UTF-8 is an error, not a replacement character. */
+const UTF8 = new TextDecoder('utf-8', { fatal: true });
+
+/**
+ * A text file as a string. A binary file (a NUL byte, or bytes that are not
+ * UTF-8) is refused before any parser sees it, so no error message echoes
+ * raw bytes and no wrong character enters a name or a number.
+ */
 export function readTextFile(file: string, what = 'file'): string {
+  let bytes: Buffer;
   try {
-    return readFileSync(file, 'utf8');
+    bytes = readFileSync(file);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     if (code === 'ENOENT') throw new UserError(`${what} not found. Check the path (relative paths are read from the folder of the file that names them).`, { file });
     if (code === 'EISDIR') throw new UserError(`expected a ${what}, found a folder.`, { file });
     throw new UserError(`cannot read ${what}: ${(e as Error).message}`, { file });
+  }
+  return decodeText(bytes, file, what);
+}
+
+/** The bytes of a text file as a string; binary data or bytes that are not UTF-8 are a UserError. */
+export function decodeText(bytes: Uint8Array, file: string, what = 'file'): string {
+  const nul = bytes.indexOf(0);
+  if (nul >= 0) throw new UserError(`expected a text ${what}, found binary data (a zero byte at byte ${nul + 1}). Check that this is the right file.`, { file });
+  try {
+    return UTF8.decode(bytes);
+  } catch {
+    throw new UserError(`expected a text ${what} in UTF-8, found bytes that are not UTF-8. Save the file as UTF-8 text (or check that this is the right file).`, { file });
   }
 }
 
@@ -82,7 +103,7 @@ export function loadYamlFile(file: string, what = 'YAML file'): LoadedYaml {
 export function validate<S extends z.ZodType>(schema: S, loaded: LoadedYaml, basePath: readonly PathKey[] = [], data: unknown = loaded.data): z.infer<S> {
   const result = schema.safeParse(data);
   if (result.success) return result.data as z.infer<S>;
-  const problems = result.error.issues.map((issue) => issueToError(issue, loaded, basePath));
+  const problems = result.error.issues.flatMap((issue) => issueToErrors(issue, loaded, basePath));
   if (problems.length === 1) throw problems[0];
   throw new UserErrors(`${problems.length} problems in ${loaded.file}:`, problems, { file: loaded.file });
 }
@@ -103,6 +124,24 @@ function valueAt(data: unknown, path: readonly PathKey[]): unknown {
     v = (v as Record<string | number, unknown>)[k as string];
   }
   return v;
+}
+
+/**
+ * A value that matched the shape of one alternative of a union (a mapping
+ * with the keys of a range, a list) is reported by that alternative's own
+ * problems (`count: expected an integer`); a value that fits none keeps the
+ * union's message, which lists the alternatives.
+ */
+function issueToErrors(issue: z.core.$ZodIssue, loaded: LoadedYaml, basePath: readonly PathKey[]): UserError[] {
+  if (issue.code === 'invalid_union') {
+    const shaped = issue.errors.filter((branch) => branch.length > 0 && branch.every((i) => i.path.length > 0));
+    if (shaped.length > 0) {
+      const best = shaped.reduce((a, b) => (b.length < a.length ? b : a));
+      const here = [...basePath, ...(issue.path as PathKey[])];
+      return best.flatMap((i) => issueToErrors(i, loaded, here));
+    }
+  }
+  return [issueToError(issue, loaded, basePath)];
 }
 
 function issueToError(issue: z.core.$ZodIssue, loaded: LoadedYaml, basePath: readonly PathKey[]): UserError {

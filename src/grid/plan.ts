@@ -46,7 +46,7 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
   const grid = expandGrid(gridSpecFromPipeline(pipeline, sightlineAv));
   const networkFile = pipeline.resolvePath(pipeline.config.network);
   const network = loadNetwork(networkFile);
-  const initial = loadInitialComposition(pipeline.config.initial, pipeline.dir, network);
+  const initial = loadInitialComposition(pipeline.config.initial, pipeline.dir, network, [], { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
   const t = pipeline.config.times;
   const timesYr = outputTimesYr(t.start_yr, t.end_yr, t.count);
   const shared: SharedModelInputs = {

@@ -72,14 +72,20 @@ function readFile(file: string): Composition {
   return { abundances, optional, lineOf: (name) => loaded.lineOf(['abundances', name]), file };
 }
 
-function resolveSpec(spec: string | Record<string, number>, baseDir: string): Composition {
-  if (typeof spec !== 'string') return { abundances: { ...spec }, optional: new Set(), lineOf: () => undefined };
+/** Where the `initial` section was written (the pipeline file), for errors about a preset name or an inline mapping. */
+export interface InitialSpecAt {
+  file: string;
+  lineOf(path: readonly (string | number)[]): number | undefined;
+}
+
+function resolveSpec(spec: string | Record<string, number>, baseDir: string, at?: InitialSpecAt): Composition {
+  if (typeof spec !== 'string') return { abundances: { ...spec }, optional: new Set(), lineOf: (name) => at?.lineOf(['initial', name]), file: at?.file };
   if (looksLikePath(spec)) return readFile(isAbsolute(spec) ? spec : resolve(baseDir, spec));
   const preset = join(PRESET_DIR, `${spec}.yaml`);
   if (!existsSync(preset)) {
     throw new UserError(
       `unknown initial composition preset '${spec}'. Known presets: ${presetNames().join(', ') || '(none)'}; or give a path to a YAML file (format: ${INITIAL_FORMAT}) or a mapping of species to abundances.`,
-      { field: 'initial' },
+      { file: at?.file, line: at?.lineOf(['initial']), field: 'initial' },
     );
   }
   return readFile(preset);
@@ -90,9 +96,10 @@ function resolveSpec(spec: string | Record<string, number>, baseDir: string): Co
  * network (except optional ones, dropped with a note pushed to `notes`) and every
  * value finite and non-negative; all problems are reported at once.
  */
-export function loadInitialComposition(spec: string | Record<string, number>, baseDir: string, network: Network, notes: string[] = []): Record<string, number> {
-  const comp = resolveSpec(spec, baseDir);
-  const where = (name: string) => ({ file: comp.file, line: comp.lineOf(name), field: comp.file ? `abundances.${name}` : `initial.${name}` });
+export function loadInitialComposition(spec: string | Record<string, number>, baseDir: string, network: Network, notes: string[] = [], at?: InitialSpecAt): Record<string, number> {
+  const comp = resolveSpec(spec, baseDir, at);
+  const inline = typeof spec !== 'string';
+  const where = (name: string) => ({ file: comp.file, line: comp.lineOf(name), field: inline ? `initial.${name}` : `abundances.${name}` });
   const problems: UserError[] = [];
   let charge = 0;
   const result: Record<string, number> = {};
@@ -124,7 +131,7 @@ export function loadInitialComposition(spec: string | Record<string, number>, ba
     if (!network.speciesIndex.has(ELECTRON) || charge < 0) {
       throw new UserError(
         `the initial composition carries a net charge of ${charge.toExponential(3)} per H nucleus and network '${network.name}' has no electrons to balance it. Give the abundances of charged species so that they sum to zero charge.`,
-        { file: comp.file, field: 'abundances' },
+        { file: comp.file, field: inline ? 'initial' : 'abundances' },
       );
     }
     result[ELECTRON] = charge;

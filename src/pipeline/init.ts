@@ -27,6 +27,7 @@ export interface InitResult {
 }
 
 export function initProject(dir: string, cwd = process.cwd()): InitResult {
+  if (dir.trim() === '') throw new UserError("the folder name is empty; give the folder to make, e.g. 'hoarfrost init my-survey' ('.' for the current folder).", { field: 'DIR' });
   const target = resolve(cwd, dir);
   if (existsSync(target) && !statSync(target).isDirectory()) {
     throw new UserError('exists and is not a folder; give the name of a new or existing folder.', { file: dir });

@@ -64,7 +64,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const conditions = resolveConditions(pipeline, opts.set ?? []);
   const network = loadNetwork(pipeline.resolvePath(cfg.network));
   const initialNotes: string[] = [];
-  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes);
+  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
   const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
   const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation };
   const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name));

@@ -38,7 +38,9 @@ const tie = z
   })
   .strict();
 
-export const conditionAxis = z.union([z.number(), z.array(z.number()), range, tie]);
+export const conditionAxis = z.union([z.number(), z.array(z.number()), range, tie], {
+  error: 'expected a finite number, a list of numbers, a range { from, to, count } or a tie { tie: NAME }',
+});
 export const conditionsSection = z.record(z.string(), conditionAxis);
 export type ConditionsSection = z.infer<typeof conditionsSection>;
 export type ConditionAxisSpec = z.infer<typeof conditionAxis>;

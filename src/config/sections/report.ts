@@ -1,5 +1,6 @@
 /** `report:` section. Owned by the report room (src/report). */
 import { z } from 'zod';
+import { outputNameProblem } from '../output-name.ts';
 
 /** Figure kinds the report can draw (src/report/figures/). */
 export const FIGURE_KINDS = ['chi2_map', 'tracks', 'fit_vs_av', 'profiles', 'sky_map'] as const;
@@ -18,7 +19,13 @@ export const figureRequest = z.union([
     .object({
       kind: figureKind,
       /** File name stem; per-sightline figures add `_NN_<sightline>` when there are several. */
-      name: z.string().min(1).optional(),
+      name: z
+        .string()
+        .check((ctx) => {
+          const problem = outputNameProblem(ctx.value);
+          if (problem) ctx.issues.push({ code: 'custom', message: problem, input: ctx.value });
+        })
+        .optional(),
       /** Sightlines to draw (per-sightline kinds); default: the report's `sightlines`. */
       sightlines: z.array(z.string()).min(1).optional(),
       /** Quantities to plot (tracks): labels such as `CO(s)/H2O(s)` or species such as `CO(s)`. */

@@ -1,0 +1,123 @@
+/**
+ * Bad input through the real command line: each case a file or an option a
+ * user could really give, answered with a located, readable error (file,
+ * line, field, what was expected), exit 2, no stack trace, nothing written.
+ * Most cases fail while the pipeline file is read, so each process is short.
+ */
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ROOT, expectNoStack, runCli, type CliResult } from '../support/cli.ts';
+
+const NETWORK = join(ROOT, 'config/networks/dark-cloud.yaml');
+
+/** A pipeline that reads well: one fixed model, no observations. */
+const GOOD = `name: bad-input
+network: ${NETWORK}
+output: out
+conditions:
+  density: 1.0e4
+  gas_temperature: 10
+  visual_extinction: 5
+times: { start_yr: 1.0e3, end_yr: 1.0e7, count: 9 }
+`;
+
+let dir: string;
+
+/** Write `GOOD` with one text replaced, as NAME.yaml in the scratch folder. */
+function pipeline(name: string, from: string, to: string): string {
+  expect(GOOD).toContain(from);
+  const file = join(dir, `${name}.yaml`);
+  writeFileSync(file, GOOD.replace(from, to));
+  return `${name}.yaml`;
+}
+
+function refused(args: string[]): CliResult {
+  const r = runCli(args, dir);
+  expect(r.code, r.stderr).toBe(2);
+  expectNoStack(r.stderr);
+  return r;
+}
+
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), 'hoarfrost-bad-input-'));
+});
+
+afterAll(() => {
+  rmSync(dir, { recursive: true, force: true });
+});
+
+describe('files that are not what they should be', () => {
+  it('a binary pipeline file is refused as binary, without echoing its bytes', () => {
+    writeFileSync(join(dir, 'binary.yaml'), Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0x00, 0x00, 0xff, 0xfe, 0x41]));
+    const r = refused(['grid', 'binary.yaml', '--status']);
+    expect(r.stderr).toContain('binary.yaml: expected a text pipeline file, found binary data (a zero byte at byte 9)');
+    expect(r.stderr).not.toMatch(/[\u0000-\u0008\ufffd]/);
+  });
+
+  it('a binary network file is refused as binary by network check', () => {
+    writeFileSync(join(dir, 'binary-network.yaml'), Buffer.from([0x66, 0x6f, 0x00, 0x01, 0x02]));
+    const r = refused(['network', 'check', 'binary-network.yaml']);
+    expect(r.stderr).toContain('binary-network.yaml: expected a text network file, found binary data (a zero byte at byte 3)');
+  });
+
+  it('an observation table that is not UTF-8 (Latin-1) is refused, not read with replacement characters', () => {
+    writeFileSync(join(dir, 'latin1.csv'), Buffer.concat([Buffer.from('star,av\nM'), Buffer.from([0xe9]), Buffer.from('ne,5\n')]));
+    const r = refused(['observations', 'latin1.csv']);
+    expect(r.stderr).toContain('latin1.csv: expected a text observation table in UTF-8, found bytes that are not UTF-8. Save the file as UTF-8 text');
+  });
+});
+
+describe('pipeline values of the wrong kind', () => {
+  it('a condition that is a word says which forms a condition takes', () => {
+    const r = refused(['grid', pipeline('word', 'gas_temperature: 10', 'gas_temperature: warm'), '--status']);
+    expect(r.stderr).toContain("word.yaml:6, field 'conditions.gas_temperature': expected a finite number, a list of numbers, a range { from, to, count } or a tie { tie: NAME } (found the text 'warm')");
+  });
+
+  it('a range with a fractional count names the count, not the whole condition', () => {
+    const r = refused(['grid', pipeline('fraction', 'density: 1.0e4', 'density: { from: 1.0e3, to: 1.0e5, count: 2.5 }'), '--status']);
+    expect(r.stderr).toContain("fraction.yaml:5, field 'conditions.density.count': expected int, found number 2.5.");
+  });
+
+  it('output times with start after end name the file and line', () => {
+    const r = refused(['grid', pipeline('times', 'start_yr: 1.0e3, end_yr: 1.0e7', 'start_yr: 1.0e7, end_yr: 1.0e3'), '--status']);
+    expect(r.stderr).toContain("times.yaml:8, field 'times.end_yr': output times need start_yr < end_yr; swap them");
+  });
+
+  it('an unknown initial composition preset names the file and line', () => {
+    const r = refused(['grid', pipeline('preset', 'times:', 'initial: low-metals\ntimes:'), '--status']);
+    expect(r.stderr).toContain("preset.yaml:8, field 'initial': unknown initial composition preset 'low-metals'. Known presets: low-metal");
+  });
+
+  it('a figure name that leaves the output folder is refused when the file is read, before any model runs', () => {
+    const r = refused(['grid', pipeline('figure', 'times:', 'report:\n  figures:\n    - { kind: tracks, name: ../../escaped }\ntimes:'), '--status']);
+    expect(r.stderr).toContain("figure.yaml:10, field 'report.figures[0].name': the output name '../../escaped' is not allowed");
+  });
+});
+
+describe('output folders that cannot be written', () => {
+  it('an output folder that is a file stops grid before it starts, naming the pipeline line', () => {
+    writeFileSync(join(dir, 'taken'), 'a file the user keeps\n');
+    const r = refused(['grid', pipeline('taken', 'output: out', 'output: taken/out'), '--workers', '1']);
+    expect(r.stderr).toContain("taken.yaml:3, field 'output': expected a folder, but");
+    expect(r.stderr).toContain('is a file. Give another output path, or move the file away.');
+  });
+
+  it('an output folder that cannot be made (under /sys) is said so, not called an internal error', () => {
+    const r = refused(['slurm', pipeline('proc', 'output: out', 'output: /sys/hoarfrost-no-such/out'), '--shards', '1']);
+    expect(r.stderr).toContain('/sys/hoarfrost-no-such/out/slurm: cannot mkdir: operation not permitted. Check that you may write there');
+  });
+});
+
+describe('init', () => {
+  it('refuses an empty folder name instead of filling the current folder', () => {
+    const cwd = join(dir, 'init-here');
+    mkdirSync(cwd);
+    const r = runCli(['init', ''], cwd);
+    expect(r.code).toBe(2);
+    expectNoStack(r.stderr);
+    expect(r.stderr).toContain("the folder name is empty; give the folder to make, e.g. 'hoarfrost init my-survey'");
+    expect(existsSync(cwd) && readdirSync(cwd)).toEqual([]);
+  });
+});
