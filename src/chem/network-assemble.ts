@@ -186,8 +186,9 @@ function assembleReaction(entry: RawReaction, raw: RawNetwork, index: number, pr
       fail(`the law ${law.name} does not depend on the gas temperature, so a temperature range has no meaning here; remove 'temperature'.`, 'temperature');
     } else {
       [tmin, tmax] = entry.temperature;
-      if (!(Number.isFinite(tmin) && Number.isFinite(tmax) && tmin >= 0 && tmax >= 0)) {
-        fail(`the temperature range must be two non-negative finite temperatures [tmin, tmax] in K; found [${tmin}, ${tmax}].`, 'temperature');
+      // T is clamped into the range, and the laws divide by T: 0 K cannot be an edge.
+      if (!(Number.isFinite(tmin) && Number.isFinite(tmax) && tmin > 0 && tmax > 0)) {
+        fail(`the temperature range must be two positive finite temperatures [tmin, tmax] in K; found [${tmin}, ${tmax}].`, 'temperature');
       }
     }
   }

@@ -69,7 +69,7 @@ const NON_STICKING = new Set(['He']);
  * of a reaction that gives none; a reaction giving its own yield keeps its
  * ratio to the default, so the condition scales all photodesorption alike.
  */
-const DEFAULT_PHOTODESORPTION_YIELD = RATE_LAWS.photodesorption.params.find((q) => q.name === 'yield')?.default ?? 1e-3;
+const DEFAULT_PHOTODESORPTION_YIELD = RATE_LAWS.photodesorption.params.find((q) => q.name === 'yield')!.default!;
 
 /** Species whose surface hopping may tunnel (HHL92: H and H2). */
 const TUNNELLING_SPECIES = new Set(['H', 'H2']);

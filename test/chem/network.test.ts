@@ -175,6 +175,12 @@ describe('loadNetwork: every bad input is a located UserError', () => {
     expect(e.message).toMatch(/the law accretion does not depend on the gas temperature/);
   });
 
+  it('a temperature range with a 0 K edge (the laws divide by T)', () => {
+    const e = loadError(write('zero-range.yaml', GOOD.replace('temperature: [10, 300]', 'temperature: [0, 0]')));
+    expect(e.message).toMatch(/reactions\[\d\]\.temperature/);
+    expect(e.message).toMatch(/two positive finite temperatures .* found \[0, 0\]/);
+  });
+
   it('parametric-h2 must be H + H -> H2', () => {
     const e = loadError(write('param-h2.yaml', GOOD.replace('law: cosmic-ray, alpha: 1.2e-17}', 'law: cosmic-ray, alpha: 1.2e-17}\n  - {reactants: [H, O], products: [OH], law: parametric-h2}')));
     expect(e.message).toMatch(/parametric-h2 .* reactants \[H, H\], products \[H2\]/);

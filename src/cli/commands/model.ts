@@ -45,7 +45,7 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--out <dir>', 'output folder (default: <output of the pipeline>/model)')
     .option('--species <list>', `comma-separated species for the figure (default: those of ${DEFAULT_FIGURE_SPECIES.join(', ')} in the network)`)
     .option('--emit-system <file>', 'also write the compiled mass-action system as JSON (species, y0, times_s, terms, omitted)')
-    .option('--mass-action-only', 'leave out the terms that are not mass-action (photodesorption above a monolayer, H2 self-shielding, parametric H2)')
+    .option('--mass-action-only', 'leave out the terms that are not mass-action (all photodesorption, H2 self-shielding, parametric H2)')
     .option('--no-self-shielding', 'photodissociate H2 at the unshielded rate (default: shielded by its column, Draine & Bertoldi 1996)')
     .action(async (file: string, opts: ModelOptions) => {
       await runModelCommand(file, opts, ctx);
