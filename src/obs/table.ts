@@ -354,8 +354,10 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
     let id: string;
     const idCell = cellAt(plan.id, r);
     if (place.pixel) id = `${place.pixel.x},${place.pixel.y}`;
-    else if (idCell === undefined || idCell === null || String(idCell).trim() === '') id = place.text.replace(/\s+/g, '-');
-    else id = String(idCell).trim();
+    else if (idCell === undefined || idCell === null || String(idCell).trim() === '') {
+      id = place.text.replace(/\s+/g, '-');
+      if (plan.id !== undefined) warn(plan.id, 'unnamed', `the sightline has no name; it is called '${id}' in the results. Give it a name in this column.`);
+    } else id = String(idCell).trim();
     const prev = seen.get(id);
     if (prev !== undefined) fail(plan.id, `sightline '${id}' appears twice (also at ${prev}); give every sightline its own name.`);
     seen.set(id, place.text);

@@ -44,9 +44,24 @@ function tdText(td: unknown): string {
   return t === undefined ? '' : String(t);
 }
 
+/** The validator's message in words; its report of unclosed elements is a JSON list of their names. */
+function xmlProblem(msg: string): string {
+  const unclosed = /^Invalid '(\[[\s\S]*\])' found\.?$/.exec(msg);
+  if (unclosed) {
+    let names: unknown;
+    try {
+      names = JSON.parse(unclosed[1]);
+    } catch {
+      names = undefined;
+    }
+    if (Array.isArray(names)) return `the elements ${names.map((n) => `<${String(n)}>`).join(', ')} are never closed; the file may have been cut short. Copy it again, or close them.`;
+  }
+  return msg.endsWith('.') ? msg : `${msg}.`;
+}
+
 export function readVotable(file: string, text: string): RawTable {
   const valid = XMLValidator.validate(text);
-  if (valid !== true) throw new UserError(`not well-formed XML: ${valid.err.msg}.`, { file, line: valid.err.line });
+  if (valid !== true) throw new UserError(`not well-formed XML: ${xmlProblem(valid.err.msg)}`, { file, line: valid.err.line });
   const parser = new XMLParser({
     ignoreAttributes: false,
     attributeNamePrefix: '@',

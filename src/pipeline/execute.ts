@@ -8,7 +8,7 @@ import { isAbsolute, relative } from 'node:path';
 import { UserError } from '../config/errors.ts';
 import { loadPipeline } from '../config/pipeline.ts';
 import { readFitResult, lockedFits, tableHashes } from './fit-lock.ts';
-import { buildLock, compareWithLock, formatComparison, readLock, writeLock, DEFAULT_AGE_TOLERANCE_DEX, DEFAULT_DENSITY_TOLERANCE_DEX } from './lock.ts';
+import { buildLock, checkLockTarget, compareWithLock, formatComparison, readLock, writeLock, DEFAULT_AGE_TOLERANCE_DEX, DEFAULT_DENSITY_TOLERANCE_DEX } from './lock.ts';
 import { buildProvenance, writeProvenance } from './provenance.ts';
 import { formatStageLine, outputFolder, runStages } from './runner.ts';
 import type { StageDataMap, StageName, StageSet } from './stages.ts';
@@ -44,6 +44,7 @@ export async function executeRun(o: ExecuteOptions): Promise<number> {
   if (o.workers !== undefined && !(Number.isInteger(o.workers) && o.workers >= 1)) throw new UserError(`--workers must be a whole number, 1 or more; found ${o.workers}.`);
   // Read the lock before any work, so a wrong path fails in a second, not after the grid.
   const lock = o.check ? readLock(o.check) : undefined;
+  if (o.lock) checkLockTarget(o.lock);
 
   const pipeline = loadPipeline(o.pipelineFile);
   const outDir = outputFolder(pipeline);

@@ -5,8 +5,10 @@
  * tolerance stated in the lock file (dex, for density and for age), so a
  * change of rates or observations that changes the paper's numbers is caught.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 import { UserError } from '../config/errors.ts';
+import { decodeText } from '../config/yaml.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { canonicalJson } from './hash.ts';
 
@@ -64,11 +66,20 @@ export function writeLock(file: string, lock: LockFile): void {
   writeFileSync(file, `${JSON.stringify(JSON.parse(canonicalJson(lock)), null, 2)}\n`);
 }
 
+/** Refuse a --lock path that cannot be written (a folder, or in a folder that does not exist) before the run, not after it. */
+export function checkLockTarget(file: string): void {
+  if (existsSync(file) && statSync(file).isDirectory()) throw new UserError('--lock needs a file name, and this is a folder. Give a file such as results.lock.json.', { file });
+  const dir = dirname(resolve(file));
+  if (!existsSync(dir) || !statSync(dir).isDirectory()) throw new UserError(`--lock: the folder ${dir} does not exist. Make it first, or give a lock file in an existing folder.`, { file });
+}
+
 export function readLock(file: string): LockFile {
+  if (existsSync(file) && statSync(file).isDirectory()) throw new UserError('expected a lock file, found a folder. Give the file written by --lock.', { file });
   let text: string;
   try {
-    text = readFileSync(file, 'utf8');
-  } catch {
+    text = decodeText(readFileSync(file), file, 'lock file');
+  } catch (e) {
+    if (e instanceof UserError) throw e;
     throw new UserError('lock file not found. Write one first with `hoarfrost run PIPELINE --lock FILE`.', { file });
   }
   let doc: LockFile;

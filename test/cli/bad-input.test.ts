@@ -110,6 +110,42 @@ describe('output folders that cannot be written', () => {
   });
 });
 
+describe('observation files', () => {
+  it('a sightline with a blank name is named after its line, with a warning saying so', () => {
+    writeFileSync(join(dir, 'unnamed.csv'), 'star,av,N(H2O(s)),N(H2O(s))_err\nAX-1,5.0,2e17,5e16\n,6.0,3e17,5e16\n');
+    const r = runCli(['observations', 'unnamed.csv'], dir);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toContain("unnamed.csv, line 3, column 'star': the sightline has no name; it is called 'line-3' in the results.");
+  });
+
+  it('a VOTable cut short names the elements left open, in words', () => {
+    writeFileSync(join(dir, 'cut.vot'), '<?xml version="1.0"?>\n<VOTABLE version="1.4">\n<RESOURCE><TABLE>\n<FIELD name="id" datatype="char" arraysize="*"/>\n<DATA><TABLEDATA><TR><TD>a</TD></TR>\n');
+    const r = refused(['observations', 'cut.vot']);
+    expect(r.stderr).toContain('not well-formed XML: the elements <VOTABLE>, <RESOURCE>, <TABLE>, <DATA>, <TABLEDATA> are never closed; the file may have been cut short.');
+  });
+});
+
+describe('lock files', () => {
+  it('--lock naming a folder is refused before the run, not after it', () => {
+    mkdirSync(join(dir, 'locks'), { recursive: true });
+    const r = refused(['run', pipeline('lock', 'times:', 'times:'), '--lock', 'locks']);
+    expect(r.stderr).toContain('locks: --lock needs a file name, and this is a folder.');
+    expect(r.stdout).toBe('');
+  });
+
+  it('--lock in a folder that does not exist is refused before the run', () => {
+    const r = refused(['run', pipeline('lock', 'times:', 'times:'), '--lock', 'no-such-folder/run.lock.json']);
+    expect(r.stderr).toContain('--lock: the folder');
+    expect(r.stderr).toContain('no-such-folder does not exist.');
+  });
+
+  it('--check naming a folder says it is a folder, not that it is missing', () => {
+    mkdirSync(join(dir, 'locks'), { recursive: true });
+    const r = refused(['run', pipeline('lock', 'times:', 'times:'), '--check', 'locks']);
+    expect(r.stderr).toContain('locks: expected a lock file, found a folder.');
+  });
+});
+
 describe('init', () => {
   it('refuses an empty folder name instead of filling the current folder', () => {
     const cwd = join(dir, 'init-here');
