@@ -106,7 +106,8 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
       continue;
     }
     if (w.as === 'ratio' && w.species !== ref && !inFile.includes(ref)) {
-      problems.push(new UserError(`ratios to the reference '${ref}' are asked for, but the observations have no column for it (they have ${inFile.join(', ')}). Set 'reference' in the observations section to a species they have.`, { file: set.file, field: 'reference' }));
+      // One problem for the reference, however many ratios ask for it.
+      if (!problems.some((p) => p.location.field === 'reference')) problems.push(new UserError(`ratios to the reference '${ref}' are asked for, but the observations have no column for it (they have ${inFile.join(', ')}). Set 'reference' in the observations section to a species they have.`, { file: set.file, field: 'reference' }));
       continue;
     }
     if (!set.sightlines.some((s) => s.columns[w.species])) {

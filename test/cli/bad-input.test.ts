@@ -118,6 +118,14 @@ describe('observation files', () => {
     expect(r.stdout).toContain("unnamed.csv, line 3, column 'star': the sightline has no name; it is called 'line-3' in the results.");
   });
 
+  it('a reference species the observations lack is one problem, however many ratios ask for it', () => {
+    writeFileSync(join(dir, 'ratios.csv'), 'star,av,N(H2O(s)),N(H2O(s))_err,N(CO(s)),N(CO(s))_err,N(CO2(s)),N(CO2(s))_err\nAX-1,5.0,2e17,5e16,4e16,1e16,3e16,1e16\n');
+    const body = GOOD.replace('visual_extinction: 5', 'visual_extinction: { tie: sightlines, step: 1 }');
+    writeFileSync(join(dir, 'ratios.yaml'), `${body}observations: { file: ratios.csv, reference: CH3OH(s) }\nfit:\n  quantities:\n    - { species: CO(s), as: ratio }\n    - { species: CO2(s), as: ratio }\n`);
+    const r = refused(['run', 'ratios.yaml']);
+    expect(r.stderr.match(/ratios to the reference 'CH3OH\(s\)' are asked for/g)).toHaveLength(1);
+  });
+
   it('a VOTable cut short names the elements left open, in words', () => {
     writeFileSync(join(dir, 'cut.vot'), '<?xml version="1.0"?>\n<VOTABLE version="1.4">\n<RESOURCE><TABLE>\n<FIELD name="id" datatype="char" arraysize="*"/>\n<DATA><TABLEDATA><TR><TD>a</TD></TR>\n');
     const r = refused(['observations', 'cut.vot']);
