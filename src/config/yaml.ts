@@ -55,7 +55,10 @@ export function parseYamlText(text: string, file: string): LoadedYaml {
   if (doc.errors.length > 0) {
     const problems = doc.errors.map((err) => {
       const line = err.linePos?.[0]?.line;
-      return new UserError(`malformed YAML: ${err.message.split('\n')[0]}`, { file, line });
+      const column = err.linePos?.[0]?.col;
+      // The parser's first line ends with its own " at line L, column C:"; the line is in the location already.
+      const what = err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '').replace(/[.:]$/, '');
+      return new UserError(`malformed YAML: ${what}${column !== undefined ? ` (column ${column})` : ''}.`, { file, line });
     });
     if (problems.length === 1) throw problems[0];
     throw new UserErrors('malformed YAML:', problems, { file });

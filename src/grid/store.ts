@@ -18,7 +18,7 @@
  * kill at any moment loses only results not yet committed and never leaves
  * a half-written row; SQLite recovers the WAL on the next open.
  */
-import { mkdirSync } from 'node:fs';
+import { existsSync, mkdirSync, statSync } from 'node:fs';
 import { endianness } from 'node:os';
 import { dirname } from 'node:path';
 import Database from 'better-sqlite3';
@@ -120,6 +120,7 @@ export class ModelStore {
 
   static open(file: string, options: OpenOptions = {}): ModelStore {
     let db: Database.Database;
+    if (existsSync(file) && statSync(file).isDirectory()) throw new UserError('expected a model store file (.sqlite), found a folder. Give the store file, or move the folder away.', { file });
     try {
       if (!options.readonly) mkdirSync(dirname(file), { recursive: true });
       db = new Database(file, { readonly: options.readonly ?? false, fileMustExist: options.readonly ?? false, timeout: BUSY_TIMEOUT_MS });

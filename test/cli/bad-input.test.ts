@@ -70,6 +70,13 @@ describe('files that are not what they should be', () => {
 });
 
 describe('pipeline values of the wrong kind', () => {
+  it('malformed YAML gives the parser problem once, with its column, and no dangling colon', () => {
+    writeFileSync(join(dir, 'tabs.yaml'), 'name: x\n\tnetwork: y\n');
+    const r = refused(['grid', 'tabs.yaml', '--status']);
+    expect(r.stderr).toBe('hoarfrost: tabs.yaml:2: malformed YAML: Tabs are not allowed as indentation (column 1).\n');
+  });
+
+
   it('a condition that is a word says which forms a condition takes', () => {
     const r = refused(['grid', pipeline('word', 'gas_temperature: 10', 'gas_temperature: warm'), '--status']);
     expect(r.stderr).toContain("word.yaml:6, field 'conditions.gas_temperature': expected a finite number, a list of numbers, a range { from, to, count } or a tie { tie: NAME } (found the text 'warm')");
@@ -130,6 +137,14 @@ describe('observation files', () => {
     writeFileSync(join(dir, 'cut.vot'), '<?xml version="1.0"?>\n<VOTABLE version="1.4">\n<RESOURCE><TABLE>\n<FIELD name="id" datatype="char" arraysize="*"/>\n<DATA><TABLEDATA><TR><TD>a</TD></TR>\n');
     const r = refused(['observations', 'cut.vot']);
     expect(r.stderr).toContain('not well-formed XML: the elements <VOTABLE>, <RESOURCE>, <TABLE>, <DATA>, <TABLEDATA> are never closed; the file may have been cut short.');
+  });
+});
+
+describe('model stores', () => {
+  it('merge of a store that is a folder says so, not "disk I/O error"', () => {
+    mkdirSync(join(dir, 'shard-folder.sqlite'), { recursive: true });
+    const r = refused(['merge', pipeline('merge', 'times:', 'times:'), 'shard-folder.sqlite']);
+    expect(r.stderr).toContain('shard-folder.sqlite: expected a model store file (.sqlite), found a folder.');
   });
 });
 
