@@ -42,7 +42,9 @@ export const grainSection = z
   .strict();
 
 /** Initial composition: a named preset from config/initial/, a file, or explicit abundances. */
-export const initialSection = z.union([z.string(), z.record(z.string(), z.number().min(0))]);
+export const initialSection = z.union([z.string(), z.record(z.string(), z.number().min(0))], {
+  error: 'expected a preset name (low-metal), a path to a composition file, or a mapping of species to fractional abundances',
+});
 
 export const pipelineSchema = z
   .object({

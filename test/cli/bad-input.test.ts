@@ -92,6 +92,11 @@ describe('pipeline values of the wrong kind', () => {
     expect(r.stderr).toContain("times.yaml:8, field 'times.end_yr': output times need start_yr < end_yr; swap them");
   });
 
+  it('an initial composition that is a number says which forms it takes', () => {
+    const r = refused(['grid', pipeline('initial-number', 'times:', 'initial: 5\ntimes:'), '--status']);
+    expect(r.stderr).toContain("initial-number.yaml:8, field 'initial': expected a preset name (low-metal), a path to a composition file, or a mapping of species to fractional abundances (found number 5).");
+  });
+
   it('an unknown initial composition preset names the file and line', () => {
     const r = refused(['grid', pipeline('preset', 'times:', 'initial: low-metals\ntimes:'), '--status']);
     expect(r.stderr).toContain("preset.yaml:8, field 'initial': unknown initial composition preset 'low-metals'. Known presets: low-metal");
