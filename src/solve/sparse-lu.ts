@@ -422,20 +422,18 @@ export class SparseLU {
   }
 
   private growL(capacity: number): void {
-    const Li = new Int32Array(capacity);
-    const Lx = new Float64Array(capacity);
-    Li.set(this.Li);
-    Lx.set(this.Lx);
-    this.Li = Li;
-    this.Lx = Lx;
+    this.Li = grown(this.Li, new Int32Array(capacity));
+    this.Lx = grown(this.Lx, new Float64Array(capacity));
   }
 
   private growU(capacity: number): void {
-    const Ui = new Int32Array(capacity);
-    const Ux = new Float64Array(capacity);
-    Ui.set(this.Ui);
-    Ux.set(this.Ux);
-    this.Ui = Ui;
-    this.Ux = Ux;
+    this.Ui = grown(this.Ui, new Int32Array(capacity));
+    this.Ux = grown(this.Ux, new Float64Array(capacity));
   }
+}
+
+/** A larger array holding the old one's entries first (factor storage grows only during the first, pivoting factorisation). */
+function grown<T extends Int32Array | Float64Array>(old: T, larger: T): T {
+  larger.set(old);
+  return larger;
 }

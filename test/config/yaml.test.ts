@@ -3,20 +3,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { UserError } from '../../src/config/errors.ts';
 import { loadYamlFile, parseYamlText, validate } from '../../src/config/yaml.ts';
 import { checkConditionValue, defaultConditions } from '../../src/config/conditions.ts';
 import { loadPipeline } from '../../src/config/pipeline.ts';
+import { catchUserError } from '../support/errors.ts';
 
-function caught(fn: () => unknown): UserError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(UserError);
-    return e as UserError;
-  }
-  throw new Error('expected a UserError');
-}
+const caught = catchUserError;
 
 describe('YAML loading with located errors', () => {
   const schema = z.object({ name: z.string(), items: z.array(z.object({ value: z.number() }).strict()) }).strict();

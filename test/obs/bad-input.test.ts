@@ -7,20 +7,12 @@ import { describe, expect, it } from 'vitest';
 import { loadObservations } from '../../src/obs/load.ts';
 import { deriveQuantities } from '../../src/obs/derive.ts';
 import { encodeFits, writeFitsImages } from '../../src/report/fits.ts';
-import { UserError } from '../../src/config/errors.ts';
 import { scratch, section, write } from './helpers.ts';
+import { catchUserError } from '../support/errors.ts';
 
 const dir = scratch();
 
-function error(fn: () => unknown): UserError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(UserError);
-    return e as UserError;
-  }
-  throw new Error('expected a UserError');
-}
+const error = catchUserError;
 const load = (name: string, text: string | Uint8Array, known?: string[], extra: Record<string, unknown> = {}) =>
   loadObservations(section({ file: write(dir, name, text), ...extra }), dir, known ? new Set(known) : undefined);
 
