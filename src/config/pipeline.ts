@@ -41,6 +41,14 @@ export const grainSection = z
   })
   .strict();
 
+/** Gas-phase photochemistry switches. */
+export const photochemistrySection = z
+  .object({
+    /** H2 photodissociation shielded by the H2 column (Draine & Bertoldi 1996); off gives the unshielded rate. */
+    h2_self_shielding: z.boolean().default(true),
+  })
+  .strict();
+
 /** Initial composition: a named preset from config/initial/, a file, or explicit abundances. */
 export const initialSection = z.union([z.string(), z.record(z.string(), z.number().min(0))], {
   error: 'expected a preset name (low-metal), a path to a composition file, or a mapping of species to fractional abundances',
@@ -57,6 +65,7 @@ export const pipelineSchema = z
     /** Grid points to leave out (see sections/conditions.ts). */
     exclude: excludeSection.default([]),
     grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' }),
+    photochemistry: photochemistrySection.default({ h2_self_shielding: true }),
     initial: initialSection.default('low-metal'),
     times: timesSection.default({ start_yr: 1e3, end_yr: 1e7, count: 41 }),
     solver: solverSection.default({ rtol: 1e-6, atol: 1e-25, max_steps: 50000 }),

@@ -22,6 +22,8 @@ export interface SharedModelInputs {
   timesYr: Float64Array;
   solver: SolverSettings;
   massActionOnly: boolean;
+  /** H2 self-shielding on (photochemistry.h2_self_shielding). */
+  selfShielding: boolean;
   toolVersion: string;
 }
 
@@ -34,6 +36,7 @@ export function sharedInputsHash(s: SharedModelInputs): string {
   h.update(`\ntimes=${Array.from(s.timesYr, String).join(',')}`);
   h.update(`\nsolver=rtol:${String(s.solver.rtol)},atol:${String(s.solver.atol)},maxSteps:${String(s.solver.maxSteps ?? '')}`);
   h.update(`\nmassActionOnly=${s.massActionOnly}`);
+  h.update(`\nselfShielding=${s.selfShielding}`);
   return h.digest('hex');
 }
 

@@ -56,6 +56,7 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
     timesYr,
     solver: solverSettings(pipeline),
     massActionOnly: false,
+    selfShielding: pipeline.config.photochemistry.h2_self_shielding,
     toolVersion: TOOL_VERSION,
   };
   const sharedHash = sharedInputsHash(shared);
@@ -68,7 +69,7 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
     network,
     species: network.species.map((s) => s.name),
     shared,
-    workerInit: { networkFile, networkHash: network.contentHash, initial, timesYr, solver: shared.solver, grain: shared.grain, massActionOnly: false },
+    workerInit: { networkFile, networkHash: network.contentHash, initial, timesYr, solver: shared.solver, grain: shared.grain, massActionOnly: false, selfShielding: shared.selfShielding },
     storeDir: join(pipeline.resolvePath(pipeline.config.output), 'store'),
   };
 }

@@ -17,6 +17,7 @@ export interface WorkerInit {
   solver: SolverSettings;
   grain: GrainOptions;
   massActionOnly: boolean;
+  selfShielding: boolean;
 }
 
 export type ToWorker = { type: 'run'; id: string; conditions: PhysicalConditions };

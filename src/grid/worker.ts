@@ -20,6 +20,7 @@ serveModelTasks((init) => {
         timesYr: init.timesYr,
         solver: init.solver,
         massActionOnly: init.massActionOnly,
+        selfShielding: init.selfShielding,
       }),
   };
 });

@@ -189,7 +189,7 @@ const grid: StageImpl<PipelineData, 'grid'> = {
     const held = needsSightlineTie(pipeline) ? heldParameters(pipeline, (await ctx.upstream('observe')).observations) : undefined;
     const avBins = held ? [...new Set(Object.values(held).map((h) => h.visual_extinction))].sort((a, b) => a - b) : undefined;
     return {
-      config: { conditions: c.conditions, exclude: c.exclude, grain: c.grain, initial: c.initial, times: c.times, solver: c.solver, sightlineAvBins: avBins },
+      config: { conditions: c.conditions, exclude: c.exclude, grain: c.grain, photochemistry: c.photochemistry, initial: c.initial, times: c.times, solver: c.solver, sightlineAvBins: avBins },
       files,
       after: [],
     };

@@ -78,7 +78,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     timesYr,
     solver: { rtol: cfg.solver.rtol, atol: cfg.solver.atol, maxSteps: cfg.solver.max_steps },
     massActionOnly: opts.massActionOnly ?? false,
-    selfShielding: opts.selfShielding ?? true,
+    selfShielding: (opts.selfShielding ?? true) && cfg.photochemistry.h2_self_shielding,
   };
   if (opts.emitSystem) {
     const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
