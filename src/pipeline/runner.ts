@@ -113,7 +113,7 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
       const h = outputHashes.get(u) ?? state[u]?.outputHash;
       if (h !== undefined) upstreamHashes[u] = h;
       else if (selected) {
-        if (options.only) throw new UserError(`--only ${name} needs the results of the ${u} stage, and there are none in ${outDir}. Run the whole pipeline first.`);
+        if (options.only) throw new UserError(`the ${name} stage needs the results of the ${u} stage, and there are none in ${outDir}. Run the whole pipeline first: hoarfrost run PIPELINE.`);
         throw new Error(`stage ${name} reads ${u}, which has not run before it`);
       }
     }

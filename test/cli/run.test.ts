@@ -41,7 +41,7 @@ describe('hoarfrost run: bad input', () => {
   it('--only on an output folder without earlier results says to run the whole pipeline first', () => {
     const r = cli(['run', 'tiny-pipeline.yaml', '--only', 'fit'], dir);
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/--only fit needs the results of the observe stage, and there are none in .*Run the whole pipeline first\./);
+    expect(r.stderr).toMatch(/the fit stage needs the results of the observe stage, and there are none in .*Run the whole pipeline first: hoarfrost run PIPELINE\./);
     expectNoStack(r.stderr);
   });
 

@@ -166,7 +166,7 @@ describe('the stage runner', () => {
   it('--only on a fresh output folder is a clear error', async () => {
     const e = await runStages(loadPipeline(join(dir, 'p.yaml')), fakeStages([]), { only: 'fit' }).catch((x: unknown) => x);
     expect(e).toBeInstanceOf(UserError);
-    expect((e as Error).message).toMatch(/--only fit needs the results of the observe stage.*Run the whole pipeline first/);
+    expect((e as Error).message).toMatch(/the fit stage needs the results of the observe stage.*Run the whole pipeline first/);
   });
 
   it('a failed stage leaves no record, so the next run does it again', async () => {
