@@ -141,17 +141,22 @@ describe('profiles, intervals and degrees of freedom', () => {
   });
 });
 
+/** The table with a dust_temperature column tied to the second parameter (uv_field): 10 x uv_field. */
+function withTiedDustTemperature(t: CandidateTable): CandidateTable {
+  const np = t.parameterNames.length;
+  const params = new Float64Array(t.nModels * (np + 1));
+  for (let m = 0; m < t.nModels; m++) {
+    params.set(t.parameters.subarray(m * np, (m + 1) * np), m * (np + 1));
+    params[m * (np + 1) + np] = 10 * t.parameters[m * np + 1];
+  }
+  return { ...t, parameterNames: [...t.parameterNames, 'dust_temperature'], parameters: params };
+}
+
 describe('ties and held parameters', () => {
   it('a condition tied to another adds no fitted parameter', () => {
     const t = syntheticTable({ densities: DENSITIES, times: TIMES, uvFields: UV });
     // dust_temperature = 10 x uv_field: a tie, not a new axis
-    const np = t.parameterNames.length;
-    const params = new Float64Array(t.nModels * (np + 1));
-    for (let m = 0; m < t.nModels; m++) {
-      params.set(t.parameters.subarray(m * np, (m + 1) * np), m * (np + 1));
-      params[m * (np + 1) + np] = 10 * t.parameters[m * np + 1];
-    }
-    const tied: CandidateTable = { ...t, parameterNames: [...t.parameterNames, 'dust_temperature'], parameters: params };
+    const tied = withTiedDustTemperature(t);
     expect(buildAxes(tied).independent).toEqual(['density', 'uv_field', 'age_yr']);
   });
 
@@ -248,13 +253,7 @@ describe('joint fits', () => {
   it('sharing a condition tied to another shares that one too: one fitted parameter for the group, not one per member', () => {
     // dust_temperature = 10 x uv_field (a tie): sharing it fixes uv_field for every member.
     const t = syntheticTable({ densities: DENSITIES, times: TIMES, uvFields: UV });
-    const np = t.parameterNames.length;
-    const params = new Float64Array(t.nModels * (np + 1));
-    for (let m = 0; m < t.nModels; m++) {
-      params.set(t.parameters.subarray(m * np, (m + 1) * np), m * (np + 1));
-      params[m * (np + 1) + np] = 10 * t.parameters[m * np + 1];
-    }
-    const tied: CandidateTable = { ...t, parameterNames: [...t.parameterNames, 'dust_temperature'], parameters: params };
+    const tied = withTiedDustTemperature(t);
     const q = [...abundanceQuantities('a', DENSITIES[1], TIMES[2], 0.1), ...abundanceQuantities('b', DENSITIES[4], TIMES[6], 0.1), ...abundanceQuantities('c', DENSITIES[5], TIMES[7], 0.1)];
     const section = parse({ joint: [{ name: 'core', sightlines: 'all', share: 'dust_temperature' }] });
     const { result } = runFitStage({ table: tied, section, observations: observationSet(['a', 'b', 'c']), quantities: q });
