@@ -16,12 +16,11 @@ import { integrate, type IntegrateOptions, type IntegrateResult, type OdeProblem
 import { massActionNetwork, robertson } from '../test/solve/problems.ts';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../src/config/conditions.ts';
 import { loadNetwork } from '../src/chem/network.ts';
+import { YEAR_SECONDS as YEAR } from '../src/chem/constants.ts';
 import { compile } from '../src/chem/system.ts';
 import { initialState, loadInitialComposition } from '../src/model/run.ts';
 import { DENSE_MAX_N, SparseNewtonMatrix } from '../src/solve/newton-matrix.ts';
 
-/** Julian year in seconds (IAU). */
-const YEAR = 3.15576e7;
 const BENCH_REPEATS = 5;
 /** Warm-up: this many untimed runs, or fewer if they take longer than WARMUP_MS, so the JIT has compiled the hot loops. */
 const WARMUP_RUNS = 5;

@@ -39,6 +39,12 @@ export interface RateLaw {
 
 const alpha = (description: string): LawParameter => ({ name: 'alpha', min: 0, description });
 
+/** Parameters of a surface reaction, shared by its reactive-desorption partner (which repeats them). */
+const SURFACE_PARAMS: readonly LawParameter[] = [
+  { name: 'activation_energy', default: 0, min: 0, description: 'barrier E_A, K' },
+  { name: 'branching', default: 1, min: 0, description: 'branching ratio among the channels of the same reactants' },
+];
+
 export const RATE_LAWS: Readonly<Record<RateLawName, RateLaw>> = {
   arrhenius: {
     name: 'arrhenius',
@@ -110,10 +116,7 @@ export const RATE_LAWS: Readonly<Record<RateLawName, RateLaw>> = {
     reactantCount: 2,
     reactantPhase: 'ice',
     productPhase: 'any',
-    params: [
-      { name: 'activation_energy', default: 0, min: 0, description: 'barrier E_A, K' },
-      { name: 'branching', default: 1, min: 0, description: 'branching ratio among the channels of the same reactants' },
-    ],
+    params: SURFACE_PARAMS,
   },
   'reactive-desorption': {
     name: 'reactive-desorption',
@@ -121,10 +124,7 @@ export const RATE_LAWS: Readonly<Record<RateLawName, RateLaw>> = {
     reactantCount: 2,
     reactantPhase: 'ice',
     productPhase: 'gas',
-    params: [
-      { name: 'activation_energy', default: 0, min: 0, description: 'barrier E_A, K (as the paired surface reaction)' },
-      { name: 'branching', default: 1, min: 0, description: 'branching ratio' },
-    ],
+    params: SURFACE_PARAMS,
   },
   'parametric-h2': {
     name: 'parametric-h2',

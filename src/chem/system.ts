@@ -166,11 +166,10 @@ class MonolayerPhotodesorption implements NonMassActionTerm {
 }
 
 /**
- * H2 formation at the parametric rate R_f n_H n(H) (Jura 1975): the event rate
- * per H nucleus is R_f n_H x_H while each event uses the two H atoms listed, so
- * the rate's order differs from the stoichiometry: not mass-action.
+ * A term whose rate depends on one species' abundance alone, applied to its
+ * rows with stoichiometric signs: the Jacobian has one column, d rate/dx.
  */
-class ParametricH2 implements NonMassActionTerm {
+abstract class OneSpeciesTerm implements NonMassActionTerm {
   readonly entries: [number, number][] = [];
   private readonly rows: Int32Array;
   private readonly rowSign: Float64Array;
@@ -178,27 +177,51 @@ class ParametricH2 implements NonMassActionTerm {
 
   constructor(
     readonly name: string,
-    private readonly hydrogen: number,
-    reactants: Int32Array,
-    products: Int32Array,
-    private readonly k: number,
+    private readonly driver: number,
+    consumed: ArrayLike<number>,
+    produced: ArrayLike<number>,
   ) {
-    this.rows = Int32Array.from([...reactants, ...products]);
-    this.rowSign = Float64Array.from([...Array.from(reactants, () => -1), ...Array.from(products, () => 1)]);
-    for (const row of this.rows) this.entries.push([row, hydrogen]);
+    this.rows = Int32Array.from([...Array.from(consumed), ...Array.from(produced)]);
+    this.rowSign = Float64Array.from([...Array.from(consumed, () => -1), ...Array.from(produced, () => 1)]);
+    for (const row of this.rows) this.entries.push([row, driver]);
   }
+
+  /** Event rate per H nucleus at abundance x of the driving species. */
+  protected abstract rate(x: number): number;
+  /** Its derivative with respect to x. */
+  protected abstract slope(x: number): number;
 
   bind(positions: Int32Array): void {
     this.positions = positions;
   }
 
   addRhs(y: Float64Array, dydt: Float64Array): void {
-    const rate = this.k * y[this.hydrogen];
+    const rate = this.rate(y[this.driver]);
     for (let q = 0; q < this.rows.length; q++) dydt[this.rows[q]] += this.rowSign[q] * rate;
   }
 
-  addJacobian(_y: Float64Array, values: Float64Array): void {
-    for (let q = 0; q < this.rows.length; q++) values[this.positions[q]] += this.rowSign[q] * this.k;
+  addJacobian(y: Float64Array, values: Float64Array): void {
+    const d = this.slope(y[this.driver]);
+    for (let q = 0; q < this.rows.length; q++) values[this.positions[q]] += this.rowSign[q] * d;
+  }
+}
+
+/**
+ * H2 formation at the parametric rate R_f n_H n(H) (Jura 1975): the event rate
+ * per H nucleus is R_f n_H x_H while each event uses the two H atoms listed, so
+ * the rate's order differs from the stoichiometry: not mass-action.
+ */
+class ParametricH2 extends OneSpeciesTerm {
+  constructor(name: string, hydrogen: number, reactants: Int32Array, products: Int32Array, private readonly k: number) {
+    super(name, hydrogen, reactants, products);
+  }
+
+  protected rate(x: number): number {
+    return this.k * x;
+  }
+
+  protected slope(): number {
+    return this.k;
   }
 }
 
@@ -207,39 +230,18 @@ class ParametricH2 implements NonMassActionTerm {
  * rate = k f(x_H2 N_H) x_H2 with f of Draine & Bertoldi (1996): the rate is not
  * linear in x_H2.
  */
-class H2SelfShielding implements NonMassActionTerm {
-  readonly entries: [number, number][] = [];
-  private readonly rows: Int32Array;
-  private readonly rowSign: Float64Array;
-  private positions: Int32Array = new Int32Array(0);
-
-  constructor(
-    readonly name: string,
-    private readonly h2: number,
-    products: Int32Array,
-    private readonly k: number,
-    private readonly columnToEdge: number,
-  ) {
-    this.rows = Int32Array.from([h2, ...products]);
-    this.rowSign = Float64Array.from([-1, ...Array.from(products, () => 1)]);
-    for (const row of this.rows) this.entries.push([row, h2]);
+class H2SelfShielding extends OneSpeciesTerm {
+  constructor(name: string, h2: number, products: Int32Array, private readonly k: number, private readonly columnToEdge: number) {
+    super(name, h2, [h2], products);
   }
 
-  bind(positions: Int32Array): void {
-    this.positions = positions;
+  protected rate(x: number): number {
+    return this.k * h2ShieldingFactor(x * this.columnToEdge) * x;
   }
 
-  addRhs(y: Float64Array, dydt: Float64Array): void {
-    const x = y[this.h2];
-    const rate = this.k * h2ShieldingFactor(x * this.columnToEdge) * x;
-    for (let q = 0; q < this.rows.length; q++) dydt[this.rows[q]] += this.rowSign[q] * rate;
-  }
-
-  addJacobian(y: Float64Array, values: Float64Array): void {
-    const x = y[this.h2];
+  protected slope(x: number): number {
     const column = x * this.columnToEdge;
-    const d = this.k * (h2ShieldingFactor(column) + x * this.columnToEdge * h2ShieldingDerivative(column));
-    for (let q = 0; q < this.rows.length; q++) values[this.positions[q]] += this.rowSign[q] * d;
+    return this.k * (h2ShieldingFactor(column) + column * h2ShieldingDerivative(column));
   }
 }
 
