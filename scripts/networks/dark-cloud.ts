@@ -21,55 +21,64 @@ const COLD_RANGE: [number, number] = [10, 300];
 /** Range for rates with an activation barrier or a temperature law checked to warmer gas (memory). */
 const WARM_RANGE: [number, number] = [10, 1000];
 
-/** Binding energies E_D/k_B on water ice, K. physics.md section 4 (memory) where listed there, otherwise memory of published lists. */
-const BINDING: [string, number, string][] = [
+/**
+ * Binding energies E_D/k_B on water ice, K. physics.md section 4 (memory)
+ * where listed there, otherwise memory of published lists. A fourth entry
+ * says why no surface reaction destroys the ice on purpose (written as the
+ * species' no_surface_sink, which `hoarfrost network check` reads).
+ */
+const BINDING: [name: string, energy: number, origin: string, noSurfaceSink?: string][] = [
   ['H', 450, 'physics.md section 4 (memory)'],
   ['H2', 430, 'physics.md section 4 (memory)'],
-  ['He', 100, 'physics.md section 4 (memory)'],
+  ['He', 100, 'physics.md section 4 (memory)', 'noble gas, no chemistry; bound by about 100 K, it leaves the ice by thermal desorption even at 10 K'],
   ['C', 800, 'physics.md section 4 (memory)'],
   ['CH', 925, 'memory'],
   ['CH2', 1050, 'memory'],
   ['CH3', 1175, 'memory'],
-  ['CH4', 1300, 'physics.md section 4 (memory)'],
+  ['CH4', 1300, 'physics.md section 4 (memory)', 'end product of carbon hydrogenation and an observed ice; H abstraction from CH4 has a high barrier and is left out (memory)'],
   ['C2', 1600, 'memory'],
   ['C2H', 3000, 'memory'],
-  ['C2H2', 2590, 'memory'],
+  ['C2H2', 2590, 'memory', 'end product here: its hydrogenation to C2H3 and beyond is not in this network'],
   ['O', 800, 'physics.md section 4 (memory)'],
   ['OH', 2850, 'physics.md section 4 (memory)'],
-  ['H2O', 5700, 'physics.md section 4 (memory)'],
+  ['H2O', 5700, 'physics.md section 4 (memory)', 'end product of the O, O2 and O3 routes to water and the main observed ice'],
   ['O2', 1000, 'physics.md section 4 (memory)'],
   ['O2H', 3650, 'memory'],
   ['H2O2', 5700, 'memory'],
+  ['O3', 2100, 'memory'],
   ['CO', 1150, 'physics.md section 4 (memory)'],
   ['HCO', 1600, 'physics.md section 4 (memory)'],
   ['H2CO', 2050, 'physics.md section 4 (memory)'],
   ['CH3O', 4400, 'memory'],
+  ['CH2OH', 5080, 'memory'],
   ['CH3OH', 5530, 'physics.md section 4 (memory)'],
-  ['CO2', 2575, 'physics.md section 4 (memory)'],
+  ['CO2', 2575, 'physics.md section 4 (memory)', 'end product and an observed ice; its hydrogenation has a high barrier and is left out (memory)'],
   ['N', 800, 'physics.md section 4 (memory)'],
   ['NH', 2600, 'memory'],
   ['NH2', 3960, 'memory'],
-  ['NH3', 5530, 'physics.md section 4 (memory)'],
-  ['N2', 1000, 'physics.md section 4 (memory)'],
+  ['NH3', 5530, 'physics.md section 4 (memory)', 'end product of nitrogen hydrogenation and an observed ice'],
+  ['N2', 1000, 'physics.md section 4 (memory)', 'closed shell and inert on the surface'],
   ['NO', 1600, 'memory'],
   ['HNO', 2050, 'memory'],
+  ['H2NO', 4400, 'memory: of the order of its carbon analogue CH3O'],
+  ['NH2OH', 6810, 'memory', 'end product of NO hydrogenation (Congiu et al. 2012; Fedoseev et al. 2012)'],
   ['CN', 1600, 'memory'],
-  ['HCN', 2050, 'memory'],
-  ['HNC', 2050, 'memory'],
+  ['HCN', 2050, 'memory', 'closed shell; its hydrogenation has a barrier and leads to species not in this network (memory)'],
+  ['HNC', 2050, 'memory', 'closed shell; its hydrogenation has a barrier and leads to species not in this network (memory)'],
   ['S', 1100, 'physics.md section 4 (memory)'],
   ['HS', 1500, 'memory'],
   ['H2S', 2740, 'physics.md section 4 (memory)'],
   ['CS', 1900, 'memory'],
   ['SO', 2800, 'memory'],
-  ['SO2', 3400, 'memory'],
-  ['OCS', 2890, 'memory'],
-  ['NS', 1900, 'memory'],
+  ['SO2', 3400, 'memory', 'end product of sulphur oxidation in this network'],
+  ['OCS', 2890, 'memory', 'end product of CS oxidation in this network'],
+  ['NS', 1900, 'memory', 'its surface chemistry (HNS and beyond) is not in this network'],
   ['Si', 2700, 'memory'],
   ['SiH', 3150, 'memory'],
-  ['SiO', 3500, 'memory'],
-  ['Fe', 4200, 'memory'],
-  ['Mg', 5300, 'memory'],
-  ['Na', 11800, 'memory'],
+  ['SiO', 3500, 'memory', 'end product of silicon chemistry in this network'],
+  ['Fe', 4200, 'memory', 'metal atom with no surface chemistry in this network: it stays in the ice, as metals are depleted onto grains'],
+  ['Mg', 5300, 'memory', 'metal atom with no surface chemistry in this network: it stays in the ice, as metals are depleted onto grains'],
+  ['Na', 11800, 'memory', 'metal atom with no surface chemistry in this network: it stays in the ice, as metals are depleted onto grains'],
 ];
 
 /** A gas-phase two-body reaction: equation, alpha (cm^3 s^-1), beta, gamma (K); range defaults to COLD_RANGE. */
@@ -441,6 +450,8 @@ const SECTIONS: Section[] = [
       ['Si + OH -> SiO + H', 1.0e-10],
       ['H + HCO -> CO + H2', 1.5e-10],
       ['H + CH3O -> H2CO + H2', 3.0e-11],
+      ['H + CH2OH -> H2CO + H2', 1.0e-11],
+      ['H + H2NO -> HNO + H2', 1.0e-11],
       ['H + O2H -> OH + OH', 1.6e-10],
       ['H + HNO -> NO + H2', 4.5e-11, 0, 500, WARM_RANGE],
       ['H + CH -> C + H2', 2.7e-11, 0.38],
@@ -629,6 +640,7 @@ const PHOTO: [string, number, number, number][] = [
   ['O2 -> O2+ + e-', 5.6e-11, 3.0, 1.5e-15],
   ['O2H -> OH + O', 6.7e-10, 2.1, 1.0e-14],
   ['H2O2 -> OH + OH', 8.3e-10, 1.8, 2.0e-14],
+  ['O3 -> O2 + O', 1.9e-9, 1.85, 2.0e-14],
   ['CO -> C + O', 2.0e-10, 3.0, 6.5e-17],
   ['HCO -> CO + H', 1.1e-9, 1.5, 5.6e-14],
   ['HCO -> HCO+ + e-', 2.5e-10, 2.1, 1.5e-14],
@@ -636,6 +648,7 @@ const PHOTO: [string, number, number, number][] = [
   ['H2CO -> HCO + H', 5.9e-10, 1.7, 1.5e-14],
   ['H2CO -> H2CO+ + e-', 4.8e-10, 2.8, 1.5e-14],
   ['CH3O -> H2CO + H', 5.0e-10, 2.0, 1.0e-14],
+  ['CH2OH -> H2CO + H', 5.0e-10, 2.0, 1.0e-14],
   ['CH3OH -> CH3 + OH', 7.2e-10, 1.7, 1.9e-14],
   ['CH3OH -> H2CO + H2', 3.0e-10, 1.7, 8.0e-15],
   ['CH3OH -> CH3O + H', 3.0e-10, 1.7, 8.0e-15],
@@ -649,6 +662,8 @@ const PHOTO: [string, number, number, number][] = [
   ['NO -> N + O', 4.7e-10, 2.1, 6.3e-15],
   ['NO -> NO+ + e-', 2.6e-10, 2.9, 6.3e-15],
   ['HNO -> NO + H', 1.7e-10, 2.0, 1.3e-14],
+  ['H2NO -> HNO + H', 5.0e-10, 2.0, 1.0e-14],
+  ['NH2OH -> NH2 + OH', 1.0e-9, 2.0, 1.5e-14],
   ['CN -> C + N', 2.9e-10, 3.0, 1.4e-14],
   ['HCN -> CN + H', 1.6e-9, 2.7, 4.0e-14],
   ['HNC -> CN + H', 1.6e-9, 2.7, 4.0e-14],
@@ -665,51 +680,88 @@ const PHOTO: [string, number, number, number][] = [
 ];
 
 /**
- * Surface reactions: equation of ice species (products ice unless they leave
- * on formation), activation energy E_A in K (memory where non-zero),
- * whether the channel has a reactive-desorption twin, and the branching
- * ratio among channels of the same reactants (memory: H abstraction from HCO
- * and CH3O competes with addition about evenly).
+ * Surface reactions (Langmuir-Hinshelwood): equation of ice species (products
+ * ice unless they leave on formation), activation energy E_A in K, whether
+ * the channel has a reactive-desorption twin, the branching ratio among the
+ * channels of the same reactants, and where the barrier, the channel and the
+ * ratio come from. The engine multiplies each channel's branching ratio by
+ * its own reaction probability (barrier or tunnelling), so channels of one
+ * pair with different barriers are split by their barriers as well.
+ *
+ * The laboratory picture follows the review of Linnartz, Ioppolo & Fedoseev
+ * 2015 (Int. Rev. Phys. Chem. 34, 205): CO -> HCO -> H2CO -> CH3O/CH2OH ->
+ * CH3OH with barriers on the first and third steps and H abstraction running
+ * back; water from O, O2 and O3 through OH, HO2 and H2O2; CO2 from CO + OH;
+ * NH2OH from NO. Barrier heights below are recalled (memory) unless a paper
+ * is named for the value itself.
  */
-const SURFACE: [equation: string, activationEnergy: number, reactiveDesorption: boolean, branching?: number][] = [
-  ['H(s) + H(s) -> H2', 0, false],
-  ['H(s) + O(s) -> OH(s)', 0, true],
-  ['H(s) + OH(s) -> H2O(s)', 0, true],
-  ['O(s) + O(s) -> O2(s)', 0, true],
-  ['H(s) + O2(s) -> O2H(s)', 0, true],
-  ['H(s) + O2H(s) -> H2O2(s)', 0, true],
-  ['H(s) + H2O2(s) -> H2O(s) + OH(s)', 1400, true],
-  ['H(s) + CO(s) -> HCO(s)', 2500, true],
-  ['H(s) + HCO(s) -> H2CO(s)', 0, true, 0.5],
-  ['H(s) + HCO(s) -> CO(s) + H2', 0, true, 0.5],
-  ['H(s) + H2CO(s) -> CH3O(s)', 2200, true],
-  ['H(s) + CH3O(s) -> CH3OH(s)', 0, true, 0.5],
-  ['H(s) + CH3O(s) -> H2CO(s) + H2', 0, true, 0.5],
-  ['CO(s) + OH(s) -> CO2(s) + H(s)', 150, true],
-  ['O(s) + CO(s) -> CO2(s)', 1000, true],
-  ['O(s) + HCO(s) -> CO2(s) + H(s)', 0, true],
-  ['H(s) + N(s) -> NH(s)', 0, true],
-  ['H(s) + NH(s) -> NH2(s)', 0, true],
-  ['H(s) + NH2(s) -> NH3(s)', 0, true],
-  ['N(s) + N(s) -> N2(s)', 0, true],
-  ['N(s) + O(s) -> NO(s)', 0, true],
-  ['H(s) + NO(s) -> HNO(s)', 0, true],
-  ['H(s) + C(s) -> CH(s)', 0, true],
-  ['H(s) + CH(s) -> CH2(s)', 0, true],
-  ['H(s) + CH2(s) -> CH3(s)', 0, true],
-  ['H(s) + CH3(s) -> CH4(s)', 0, true],
-  ['C(s) + O(s) -> CO(s)', 0, true],
-  ['C(s) + N(s) -> CN(s)', 0, true],
-  ['H(s) + CN(s) -> HCN(s)', 0, true],
-  ['H(s) + S(s) -> HS(s)', 0, true],
-  ['H(s) + HS(s) -> H2S(s)', 0, true],
-  ['O(s) + S(s) -> SO(s)', 0, true],
-  ['O(s) + SO(s) -> SO2(s)', 0, true],
-  ['H(s) + Si(s) -> SiH(s)', 0, true],
+const SURFACE: [equation: string, activationEnergy: number, reactiveDesorption: boolean, branching: number, origin: string][] = [
+  ['H(s) + H(s) -> H2', 0, false, 1, 'common practice: barrierless H2 formation (HHL92)'],
+  // ---- water: O, O2 and O3 routes (Cuppen et al. 2010, PCCP 12, 12077: the O2 hydrogenation network; Linnartz et al. 2015 review)
+  ['H(s) + O(s) -> OH(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + OH(s) -> H2O(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H2(s) + OH(s) -> H2O(s) + H(s)', 2100, true, 1, 'channel: Oba et al. 2012 (ApJ 749, 67) measured it at 10 K, by tunnelling; barrier: memory, the gas-phase activation energy of order 2000 K (Meisner, Lamberts & Kastner 2017 computed the surface rate)'],
+  ['O(s) + O(s) -> O2(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['O(s) + OH(s) -> O2(s) + H(s)', 0, true, 1, 'memory: fast, barrierless in the gas phase'],
+  ['H(s) + O2(s) -> O2H(s)', 0, true, 1, 'Ioppolo et al. 2008 (ApJ 686, 1474) and Cuppen et al. 2010: efficient at 10 K, no barrier'],
+  ['H(s) + O2H(s) -> H2O2(s)', 0, true, 0.4, 'channels: Cuppen et al. 2010 (H + HO2 gives H2O2 and 2 OH); ratios: memory'],
+  ['H(s) + O2H(s) -> OH(s) + OH(s)', 0, true, 0.5, 'channels: Cuppen et al. 2010; ratio: memory (2 OH dominates in the gas phase)'],
+  ['H(s) + O2H(s) -> H2O(s) + O(s)', 0, true, 0.05, 'memory: minor gas-phase channel'],
+  ['H(s) + O2H(s) -> O2(s) + H2', 0, true, 0.05, 'memory: minor gas-phase channel'],
+  ['H(s) + H2O2(s) -> H2O(s) + OH(s)', 1400, true, 1, 'channel: Lamberts et al. 2016 (PCCP 18, 33021) find it favoured over H2 + HO2 by two orders of magnitude, so the abstraction is left out; barrier: memory'],
+  ['OH(s) + OH(s) -> H2O2(s)', 0, true, 1, 'Cuppen et al. 2010: radical-radical, barrierless'],
+  ['O(s) + O2(s) -> O3(s)', 0, true, 1, 'memory: barrierless on the surface (the O3 route of Linnartz et al. 2015)'],
+  ['H(s) + O3(s) -> OH(s) + O2(s)', 450, true, 1, 'channel: Linnartz et al. 2015 (the O3 route to water); barrier: memory, the gas-phase value of order 450 K'],
+  ['O(s) + O2H(s) -> O2(s) + OH(s)', 0, true, 1, 'memory: fast, barrierless in the gas phase'],
+  // ---- CO to methanol (Fuchs et al. 2009, A&A 505, 629; Linnartz et al. 2015)
+  ['H(s) + CO(s) -> HCO(s)', 2500, true, 1, 'barrier: memory, the value of the HHL92 surface network (Fuchs et al. 2009 fit a lower effective barrier to their laboratory data with a Monte Carlo model whose rates are not these)'],
+  ['H(s) + HCO(s) -> H2CO(s)', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
+  ['H(s) + HCO(s) -> CO(s) + H2', 0, true, 0.5, 'memory: the abstraction back to CO (Linnartz et al. 2015 discuss it)'],
+  ['H(s) + H2CO(s) -> CH3O(s)', 2200, true, 0.8, 'barrier: memory (HHL92 network); ratio: Song & Kastner 2017 (ApJ 850, 118) computed 80 % CH3O on water ice, CH2OH negligible, the rest H2 + HCO'],
+  ['H(s) + H2CO(s) -> HCO(s) + H2', 2200, true, 0.2, 'ratio: Song & Kastner 2017 (the abstraction takes the 20 % that CH3O leaves); barrier: memory, taken equal to the addition'],
+  ['H(s) + CH3O(s) -> CH3OH(s)', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
+  ['H(s) + CH3O(s) -> H2CO(s) + H2', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
+  ['H(s) + CH2OH(s) -> CH3OH(s)', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
+  ['H(s) + CH2OH(s) -> H2CO(s) + H2', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
+  ['H(s) + CH3OH(s) -> CH2OH(s) + H2', 4400, true, 0.5, 'channel: Hidaka et al. 2009 (ApJ 702, 291) saw H taken from the methyl group of solid methanol; barrier: memory; even split (our choice): the barriers decide'],
+  ['H(s) + CH3OH(s) -> CH3O(s) + H2', 6600, true, 0.5, 'memory: abstraction from the hydroxyl group has the higher barrier; even split (our choice): the barriers decide'],
+  // ---- CO2 (Linnartz et al. 2015: CO + OH is the main solid-state route; CO + O has a barrier)
+  ['CO(s) + OH(s) -> CO2(s) + H(s)', 176, true, 1, 'barrier: Cuppen et al. 2009 (A&A 508, 275, table of H, O and CO surface reactions) 176 K'],
+  ['O(s) + CO(s) -> CO2(s)', 1000, true, 1, 'memory: barrier of order 1000 K used in surface networks since HHL92; laboratory estimates spread widely'],
+  ['O(s) + HCO(s) -> CO2(s) + H(s)', 0, true, 1, 'memory: radical-radical, barrierless'],
+  // ---- nitrogen: N to NH3, N2, NO and NO to NH2OH (Congiu et al. 2012 and Fedoseev et al. 2012, J. Chem. Phys. 137, 054713 and 054714)
+  ['H(s) + N(s) -> NH(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + NH(s) -> NH2(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + NH2(s) -> NH3(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['N(s) + N(s) -> N2(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['N(s) + O(s) -> NO(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + NO(s) -> HNO(s)', 0, true, 1, 'Congiu et al. 2012: NO hydrogenation is barrierless on water ice'],
+  ['H(s) + HNO(s) -> H2NO(s)', 0, true, 0.5, 'channel: Congiu et al. 2012 and Fedoseev et al. 2012 (NO -> HNO -> H2NO -> NH2OH, barrierless); ratio against the abstraction: memory'],
+  ['H(s) + HNO(s) -> NO(s) + H2', 0, true, 0.5, 'memory: the abstraction back to NO competes with addition'],
+  ['H(s) + H2NO(s) -> NH2OH(s)', 0, true, 0.5, 'channel: Congiu et al. 2012 and Fedoseev et al. 2012; ratio against the abstraction: memory'],
+  ['H(s) + H2NO(s) -> HNO(s) + H2', 0, true, 0.5, 'memory: the abstraction back to HNO competes with addition'],
+  ['H(s) + CN(s) -> HCN(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['C(s) + N(s) -> CN(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  // ---- carbon hydrides and C2
+  ['H(s) + C(s) -> CH(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + CH(s) -> CH2(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + CH2(s) -> CH3(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + CH3(s) -> CH4(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['C(s) + O(s) -> CO(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + C2(s) -> C2H(s)', 0, true, 1, 'memory: radical addition, barrierless'],
+  ['H(s) + C2H(s) -> C2H2(s)', 0, true, 1, 'memory: radical addition, barrierless'],
+  // ---- sulphur
+  ['H(s) + S(s) -> HS(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + HS(s) -> H2S(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['H(s) + H2S(s) -> HS(s) + H2', 1500, true, 1, 'channel: Lamberts & Kastner 2017 (J. Phys. Chem. A 121, 9736) computed it proceeds by tunnelling at low temperature; barrier: memory, of the order of their activation energy'],
+  ['O(s) + S(s) -> SO(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['O(s) + SO(s) -> SO2(s)', 0, true, 1, 'memory: barrierless on the surface'],
+  ['O(s) + CS(s) -> OCS(s)', 0, true, 1, 'memory: addition of O to CS on the surface, barrierless'],
+  ['H(s) + Si(s) -> SiH(s)', 0, true, 1, 'common practice: radical-radical, barrierless'],
+  ['O(s) + SiH(s) -> SiO(s) + H(s)', 0, true, 1, 'memory: as the gas-phase O + SiH, barrierless'],
 ];
 
 const ORIGIN_GRAIN = 'memory: rate from the grain model (HHL92; Hasegawa & Herbst 1993); parameters at their defaults';
-const ORIGIN_SURFACE = 'memory: surface route of the published grain chemistry; barrier from memory where non-zero';
 const ORIGIN_RD = 'memory: reactive-desorption share of the paired surface channel (Garrod, Wakelam & Herbst 2007 mechanism)';
 
 function side(s: string): string[] {
@@ -764,7 +816,9 @@ emit(`# The default network of hoarfrost: gas-grain chemistry of a cold dark clo
 # and rerun it, or edit this file directly if you no longer need the script.
 #
 # Format (format: ${'hoarfrost-network 1'}; see DEVELOPERS.md):
-#   species:   name, binding_energy (E_D/k_B in K, on water ice), origin.
+#   species:   name, binding_energy (E_D/k_B in K, on water ice), origin, and for an
+#              ice that no surface reaction destroys on purpose, no_surface_sink: the
+#              reason (hoarfrost network check warns of such an ice otherwise).
 #              One entry serves both X and its ice X(s).
 #   reactions: reactants, products, law and that law's parameters (src/chem/laws.ts):
 #     arrhenius         alpha [cm^3 s^-1], beta, gamma [K]: k = alpha (T/300)^beta exp(-gamma/T)
@@ -784,7 +838,7 @@ name: dark-cloud
 description: "Gas-grain chemistry of a cold dark cloud: H, He, C, N, O, S and the metals Si, Fe, Mg, Na; ion-molecule and neutral-neutral chemistry, photoreactions, freeze-out, desorption and surface hydrogenation."
 origin: "memory: values of the published order, written for hoarfrost"
 species:`);
-for (const [name, e, origin] of BINDING) emit(`  - {name: ${name}, binding_energy: ${e}, origin: ${quote(origin)}}`);
+for (const [name, e, origin, why] of BINDING) emit(`  - {name: ${name}, binding_energy: ${e}${why ? `, no_surface_sink: ${quote(why)}` : ''}, origin: ${quote(origin)}}`);
 emit('reactions:');
 
 emit('  # ---- direct cosmic-ray ionisation and dissociation');
@@ -814,8 +868,8 @@ for (const [name] of BINDING) {
 }
 
 emit('  # ---- surface reactions (Langmuir-Hinshelwood) and their reactive-desorption shares');
-for (const [eq, ea, twin, branching = 1] of SURFACE) {
-  reaction(eq, 'surface', [['activation_energy', ea], ['branching', branching]], undefined, ORIGIN_SURFACE);
+for (const [eq, ea, twin, branching, origin] of SURFACE) {
+  reaction(eq, 'surface', [['activation_energy', ea], ['branching', branching]], undefined, origin);
   if (twin) {
     const [r, p] = equation(eq);
     const gas = p.map((s) => s.replace(/\(s\)$/, ''));

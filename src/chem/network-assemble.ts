@@ -34,6 +34,7 @@ export interface RawSpecies {
   name: string;
   bindingEnergy?: number;
   mass?: number;
+  noSurfaceSink?: string;
   origin?: string;
   source: SourceLocation;
   locate: Locate;
@@ -109,6 +110,10 @@ export function assembleNetwork(raw: RawNetwork): Network {
       problems.push(new UserError(`mass must be a positive number of u; found ${entry.mass}.`, entry.locate('mass')));
       ok = false;
     }
+    if (entry.noSurfaceSink !== undefined && entry.noSurfaceSink.trim() === '') {
+      problems.push(new UserError(`no_surface_sink must say why no surface reaction destroys ${iceName(parsed.gasName)} (a sentence a reader of the network can check); found an empty text. Give the reason or remove the key.`, entry.locate('no_surface_sink')));
+      ok = false;
+    }
     if (!ok) {
       rejectedData.add(parsed.gasName);
       continue;
@@ -118,6 +123,7 @@ export function assembleNetwork(raw: RawNetwork): Network {
       name: parsed.gasName,
       bindingEnergy: entry.bindingEnergy,
       mass: entry.mass,
+      noSurfaceSink: entry.noSurfaceSink,
       origin: entry.origin ?? raw.origin,
       source: entry.source,
     });

@@ -5,7 +5,8 @@
  * temperature range, a reactive-desorption channel without its surface
  * reaction); warnings point at chemistry that may be intended but is often a
  * slip (a species only made or only destroyed, a gas neutral that never
- * freezes out, an ice with no way back to the gas).
+ * freezes out, an ice with no way back to the gas, an ice that no surface
+ * reaction destroys).
  */
 import { UserError, UserErrors } from '../config/errors.ts';
 import { RATE_LAW_NAMES, type RateLawName } from './laws.ts';
@@ -25,6 +26,7 @@ export type ProblemKind =
   | 'only-destroyed'
   | 'no-accretion'
   | 'no-desorption'
+  | 'no-surface-sink'
   | 'unused-species';
 
 export interface NetworkProblem {
@@ -201,12 +203,32 @@ function checkSurfacePairs(reactions: Reaction[], add: Add): void {
   }
 }
 
+/**
+ * Species balance, and the ways out of an ice. An ice counts as having a
+ * surface sink only when a surface (Langmuir-Hinshelwood) reaction consumes
+ * it. Desorption does not count: thermal desorption at 10 K is no way out for
+ * anything bound by more than a few hundred K (residence times beyond the age
+ * of a cloud), and cosmic-ray and photodesorption remove of order 1e-3 per
+ * photon or event, far slower than accretion feeds an ice. Ice photolysis
+ * does not count either: it is a slow background sink that every species
+ * with a gas photoreaction would have, so counting it would silence the
+ * warning for exactly the runaway ices it exists to find (HNO(s), H2O2(s)).
+ * The warning applies only to networks with surface chemistry: in a network
+ * with freeze-out alone the ices are inert by design. A species entry's
+ * no_surface_sink reason silences it (a stable end product of the ice).
+ */
 function checkSpeciesBalance(network: Network, add: Add): void {
   const made = new Map<string, Reaction>();
   const destroyed = new Map<string, Reaction>();
   const accreting = new Set<string>();
   const desorbing = new Set<string>();
+  const surfaceSink = new Set<string>();
+  let hasSurfaceChemistry = false;
   for (const r of network.reactions) {
+    if (r.law === 'surface') {
+      hasSurfaceChemistry = true;
+      for (const name of r.reactants) if (!r.products.includes(name)) surfaceSink.add(name);
+    }
     for (const name of r.products) if (!r.reactants.includes(name) && !made.has(name)) made.set(name, r);
     for (const name of r.reactants) if (!r.products.includes(name) && !destroyed.has(name)) destroyed.set(name, r);
     if (r.law === 'accretion') accreting.add(r.reactants[0]);
@@ -227,6 +249,15 @@ function checkSpeciesBalance(network: Network, add: Add): void {
     }
     if (s.phase === 'ice' && !desorbing.has(s.name)) {
       add('warning', 'no-desorption', `the ice ${s.name} has no way back to the gas (no thermal-desorption, cr-desorption or photodesorption).`, [], s.name);
+    }
+    if (hasSurfaceChemistry && s.phase === 'ice' && !surfaceSink.has(s.name) && network.speciesData.get(s.gasName)?.noSurfaceSink === undefined) {
+      add(
+        'warning',
+        'no-surface-sink',
+        `no surface reaction destroys the ice ${s.name}: on cold dust it can only pile up (desorption and ice photolysis are slow there). Add its surface chemistry, or say why it has none with no_surface_sink: "<reason>" in the species entry of ${s.gasName}.`,
+        [],
+        s.name,
+      );
     }
   }
 }

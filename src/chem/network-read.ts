@@ -9,11 +9,16 @@ import { z } from 'zod';
 import { UserError, UserErrors } from '../config/errors.ts';
 import { readTextFile } from '../config/yaml.ts';
 
-/** One species entry: binding energy E_D/k_B in K, mass in u where not from the formula. */
+/**
+ * One species entry: binding energy E_D/k_B in K, mass in u where not from
+ * the formula, and, for an ice that no surface reaction destroys on purpose,
+ * the reason (it silences the check's no-surface-sink warning).
+ */
 export const speciesEntrySchema = z.strictObject({
   name: z.string(),
   binding_energy: z.number().optional(),
   mass: z.number().optional(),
+  no_surface_sink: z.string().optional(),
   origin: z.string().optional(),
 });
 

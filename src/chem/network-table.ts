@@ -305,6 +305,7 @@ function readSpecies(m: Mapping, loaded: LoadedYaml, problems: UserError[]): Raw
       name: s.name,
       bindingEnergy: s.binding_energy,
       mass: s.mass,
+      noSurfaceSink: s.no_surface_sink,
       origin: s.origin,
       source: { file: loaded.file, line: loaded.lineOf(base) },
       locate: (field?: string) => ({ file: loaded.file, line: loaded.lineOf(field ? [...base, field] : base), field: `species[${i}]${field ? '.' + field : ''}` }),

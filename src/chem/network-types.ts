@@ -30,6 +30,8 @@ export interface SpeciesData {
   bindingEnergy?: number;
   /** Mass in u where it is not derived from the formula. */
   mass?: number;
+  /** Why no surface reaction destroys the ice form on purpose (silences the no-surface-sink warning). */
+  noSurfaceSink?: string;
   origin?: string;
   source?: SourceLocation;
 }

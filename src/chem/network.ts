@@ -112,6 +112,7 @@ function readYamlNetwork(loaded: LoadedYaml, contentHash: string): Network {
       name: s.name,
       bindingEnergy: s.binding_energy,
       mass: s.mass,
+      noSurfaceSink: s.no_surface_sink,
       origin: s.origin,
       source: { file, line: loaded.lineOf(base) },
       locate: locateAt(base),
