@@ -90,6 +90,10 @@ export interface DensityResult {
   worstReservoir: { species: string; element: string; share: number; timeYr: number };
   /** Largest ratio to water ice of every ice species over the run (to spot runaways). */
   maxRatio: Record<string, number>;
+  /** Ice abundance per H of every species (all ice forms summed), by gas name, at each row's time. */
+  ice: Record<string, number[]>;
+  /** Share of an element held by an ice species at each row's time. */
+  share: (species: string, element: string) => number[];
 }
 
 export interface EvaluateOptions {
@@ -129,9 +133,11 @@ export function evaluateIceTargets(network: Network, options: EvaluateOptions = 
     const rows: Row[] = [];
     const maxRatio: Record<string, number> = {};
     let worstReservoir = { species: '', element: '', share: 0, timeYr: 0 };
+    const series: Record<string, number[]> = {};
     for (let k = 0; k < timesYr.length; k++) {
       if (!Number.isFinite(result.abundances[k * n])) break;
       const ice = iceTotals(network, result.abundances, k * n);
+      for (const [name, x] of ice) (series[name] ??= []).push(x);
       const water = ice.get('H2O') ?? 0;
       const ratios: Record<string, number> = {};
       for (const t of RATIO_TARGETS) ratios[t.species] = (ice.get(t.species) ?? 0) / water;
@@ -154,7 +160,12 @@ export function evaluateIceTargets(network: Network, options: EvaluateOptions = 
       if (reservoir.share > RESERVOIR_LIMIT) missed.push(`${reservoir.species}>10%${reservoir.element}`);
       rows.push({ timeYr: timesYr[k], water, ratios, reservoir, missed });
     }
-    return { density, status: result.status, failure: result.failure, rows, window: widestWindow(rows), worstReservoir, maxRatio };
+    const share = (species: string, element: string): number[] => {
+      const count = elementsOf.get(species)?.[element] ?? 0;
+      const total = elementTotals.get(element) ?? Number.NaN;
+      return (series[species] ?? []).map((x) => (count * x) / total);
+    };
+    return { density, status: result.status, failure: result.failure, rows, window: widestWindow(rows), worstReservoir, maxRatio, ice: series, share };
   });
 }
 
