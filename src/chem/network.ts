@@ -12,7 +12,9 @@
  *   description: free text            (optional)
  *   origin: where the values come from (optional; default origin of entries)
  *   species:                           (binding energy E_D/k_B in K; mass in u only
- *     - {name: CO, binding_energy: 1150, origin: "..."}   where not from the formula)
+ *     - {name: CO, binding_energy: 1150, origin: "..."}   where not from the formula;
+ *                                       no_surface_sink: why no surface reaction
+ *                                       destroys the ice, where none does on purpose)
  *   reactions:
  *     - {reactants: [H3+, CO], products: [HCO+, H2], law: arrhenius,
  *        alpha: 1.6e-9, beta: 0, gamma: 0, temperature: [10, 300], origin: "..."}
