@@ -693,7 +693,9 @@ const PHOTO: [string, number, number, number][] = [
  * CH3OH with barriers on the first and third steps and H abstraction running
  * back; water from O, O2 and O3 through OH, HO2 and H2O2; CO2 from CO + OH;
  * NH2OH from NO. Barrier heights below are recalled (memory) unless a paper
- * is named for the value itself.
+ * is named for the value itself. The findings cited were read in the papers'
+ * abstracts or tables; the volume and page of Cuppen et al. 2009, Song &
+ * Kastner 2017 and Lamberts et al. 2016 are from memory.
  */
 const SURFACE: [equation: string, activationEnergy: number, reactiveDesorption: boolean, branching: number, origin: string][] = [
   ['H(s) + H(s) -> H2', 0, false, 1, 'common practice: barrierless H2 formation (HHL92)'],
@@ -723,7 +725,7 @@ const SURFACE: [equation: string, activationEnergy: number, reactiveDesorption: 
   ['H(s) + CH3O(s) -> H2CO(s) + H2', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
   ['H(s) + CH2OH(s) -> CH3OH(s)', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
   ['H(s) + CH2OH(s) -> H2CO(s) + H2', 0, true, 0.5, 'memory: addition and abstraction of radicals compete about evenly'],
-  ['H(s) + CH3OH(s) -> CH2OH(s) + H2', 4400, true, 0.5, 'channel: Hidaka et al. 2009 (ApJ 702, 291) saw H taken from the methyl group of solid methanol; barrier: memory; even split (our choice): the barriers decide'],
+  ['H(s) + CH3OH(s) -> CH2OH(s) + H2', 4400, true, 0.5, 'channel: memory (laboratory work on H + solid CH3OH, Hidaka et al. 2009, found the methyl H taken); barrier: memory; even split (our choice): the barriers decide'],
   ['H(s) + CH3OH(s) -> CH3O(s) + H2', 6600, true, 0.5, 'memory: abstraction from the hydroxyl group has the higher barrier; even split (our choice): the barriers decide'],
   // ---- CO2 (Linnartz et al. 2015: CO + OH is the main solid-state route; CO + O has a barrier)
   ['CO(s) + OH(s) -> CO2(s) + H(s)', 176, true, 1, 'barrier: Cuppen et al. 2009 (A&A 508, 275, table of H, O and CO surface reactions) 176 K'],
