@@ -5,7 +5,7 @@ import { compile, type CompiledSystem } from '../../src/chem/system.ts';
 import { join } from 'node:path';
 import { loadNetwork } from '../../src/chem/network.ts';
 import { makeNetwork } from '../model/fixtures.ts';
-import { h2FormationCoefficientHM79 } from '../../src/chem/grain-h2.ts';
+import { evaporatedHydrogenShare, h2FormationCoefficientHM79, hydrogenGrainTerms } from '../../src/chem/grain-h2.ts';
 
 const c = defaultConditions();
 // Binding energies E_D/k_B, K: physics.md section 4 (memory).
@@ -185,6 +185,17 @@ describe('compile', () => {
     expect(rate.k / h2FormationCoefficientHM79(20, 20, g.crossSection * g.abundance, 1.008)).toBeCloseTo(1, 3);
     expect(fdCheck(hm, randomState(hm, 1e-6, 7))).toBeLessThan(1e-5);
     expect(hm.clampNotes.join(' ')).not.toMatch(/Hollenbach/);
+  });
+  it('counts the share of H atoms striking grains that evaporate again: k_evap x_H(s) / (k_acc x_H)', () => {
+    const found = hydrogenGrainTerms(net, sys.terms);
+    expect(found.accretion).toHaveLength(1);
+    expect(found.evaporation).toHaveLength(1);
+    const y = new Float64Array(sys.n);
+    y[net.speciesIndex.get('H')!] = 1e-4;
+    y[net.speciesIndex.get('H(s)')!] = 1e-15;
+    const k = (index: number) => sys.rateSet.rates.find((r) => r.reaction.index === index)!.k;
+    expect(evaporatedHydrogenShare(found, sys.terms, y)! / ((k(9) * 1e-15) / (k(6) * 1e-4))).toBeCloseTo(1, 12);
+    expect(evaporatedHydrogenShare(found, sys.terms, new Float64Array(sys.n))).toBeUndefined();
   });
   it('notes a run whose dust is warmer than where the HM79 recombination fraction is one half (600 K / ln 1e4 = 65 K, memory)', () => {
     const hot = compile(net, { ...c, dust_temperature: 80 }, { ...DEFAULT_GRAIN_OPTIONS, h2Formation: 'hollenbach-mckee' }, {});
