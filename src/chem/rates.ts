@@ -10,6 +10,7 @@ import { UserError } from '../config/errors.ts';
 import { CR_REFERENCE_RATE } from './constants.ts';
 import { RATE_LAWS } from './laws.ts';
 import { accretionRate } from './grain-accretion.ts';
+import { h2FormationCoefficientHM79, HM79_HALF_EFFICIENCY_DUST_TEMPERATURE } from './grain-h2.ts';
 import { crDesorptionRate, photodesorptionFlux, photodesorptionRate, thermalDesorptionRate, vibrationFrequency } from './grain-desorption.ts';
 import { grainProperties, type GrainProperties } from './grain-properties.ts';
 import {
@@ -49,7 +50,11 @@ export interface RateSet {
   rates: ReactionRate[];
   /** Reactions left out for these options (the other H2 route, helium accretion), each with why. */
   skipped: SkippedReaction[];
-  /** One note per reaction whose gas temperature was clamped to its valid range. */
+  /**
+   * One note per value evaluated outside its valid range: a reaction whose gas
+   * temperature was clamped, or an H2 formation treatment used at a dust
+   * temperature where it no longer holds.
+   */
   clampNotes: string[];
   grain: GrainProperties;
   /** Column of H nuclei to the cloud edge, N_H = (N_H/A_V) A_V, cm^-2: N(H2) = x(H2) N_H for self-shielding. */
@@ -161,6 +166,20 @@ function isH2Photodissociation(r: Reaction, data: SurfaceData): boolean {
   return r.reactants.length === 1 && r.reactants[0] === 'H2' && r.products.length === 2 && r.products.every((n) => data.species(n).name === 'H');
 }
 
+/**
+ * Warning for the Hollenbach & McKee treatment used where its recombination
+ * fraction has fallen below one half (physics.md section 10). The surface
+ * route's warning depends on the state and is given by the model run.
+ */
+function h2RangeNotes(grain: GrainOptions, dustTemperature: number): string[] {
+  if (grain.h2Formation === 'hollenbach-mckee' && dustTemperature > HM79_HALF_EFFICIENCY_DUST_TEMPERATURE) {
+    return [
+      `H2 forms at the rate of Hollenbach & McKee 1979 (grain.h2_formation: hollenbach-mckee), whose recombination fraction is below one half above ${HM79_HALF_EFFICIENCY_DUST_TEMPERATURE.toFixed(0)} K dust: at ${dustTemperature} K the rate rests on the single site binding energy (600 K) of that treatment, not on measured surfaces.`,
+    ];
+  }
+  return [];
+}
+
 /** Evaluate every reaction's coefficient (physics.md sections 1-3). */
 export function computeRates(network: Network, c: PhysicalConditions, grain: GrainOptions, options: RateOptions = {}): RateSet {
   const selfShielding = options.selfShielding ?? true;
@@ -243,8 +262,8 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
       }
       case 'surface':
       case 'reactive-desorption': {
-        if (grain.h2Formation === 'parametric' && isHPlusH(r, data)) {
-          skipped.push({ reaction: r, reason: 'H2 forms at the parametric rate (grain.h2_formation: parametric): the surface H + H route is left out' });
+        if (grain.h2Formation !== 'surface' && isHPlusH(r, data)) {
+          skipped.push({ reaction: r, reason: `H2 forms at a rate per striking H atom (grain.h2_formation: ${grain.h2Formation}): the surface H + H route is left out` });
           break;
         }
         let k = surfaceCoefficient(r);
@@ -254,11 +273,18 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
         break;
       }
       case 'parametric-h2':
-        if (grain.h2Formation !== 'parametric') {
+        if (grain.h2Formation === 'surface') {
           skipped.push({ reaction: r, reason: 'H2 forms on the surface (grain.h2_formation: surface): the parametric rate is left out' });
           break;
         }
-        rates.push({ reaction: r, k: p.alpha, form: 'parametric-h2' });
+        rates.push({
+          reaction: r,
+          k:
+            grain.h2Formation === 'parametric'
+              ? p.alpha
+              : h2FormationCoefficientHM79(c.gas_temperature, c.dust_temperature, props.crossSection * props.abundance, data.mass(r.reactants[0])),
+          form: 'parametric-h2',
+        });
         break;
       default: {
         const never: never = r.law;
@@ -266,5 +292,6 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
       }
     }
   }
+  clampNotes.push(...h2RangeNotes(grain, c.dust_temperature));
   return { rates, skipped, clampNotes, grain: props, columnToEdge: NH_PER_AV * c.visual_extinction };
 }

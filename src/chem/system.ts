@@ -18,7 +18,7 @@
  */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
-import { computeRates, type RateSet, type SkippedReaction } from './rates.ts';
+import { computeRates, type RateForm, type RateSet, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
 export interface CsrPattern {
@@ -54,6 +54,7 @@ export interface EmittedSystem {
   y0: number[];
   times_s: number[];
   terms: { reactants: number[]; products: number[]; k: number }[];
+  /** Every term of the model left out of `terms`: its rate form, reaction and why it is not mass action. */
   omitted: string[];
 }
 
@@ -84,6 +85,13 @@ export interface CompiledSystem {
 function describe(r: Reaction): string {
   return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
 }
+
+/** Why each rate form is not mass action: the reason --emit-system gives beside every term it leaves out. */
+const NOT_MASS_ACTION: Readonly<Record<Exclude<RateForm, 'mass-action'>, string>> = {
+  'monolayer-photodesorption': 'above one monolayer the rate per grain saturates, k x_i x_ML / x_ice, a ratio of abundances rather than a product',
+  'parametric-h2': 'the event rate R_f n_H x_H is first order in H while each event uses two H atoms, so its order differs from its stoichiometry',
+  'h2-self-shielding': 'the rate k f(x_H2 N_H) x_H2 carries the shielding factor of the H2 column (Draine & Bertoldi 1996), not a power of x_H2',
+};
 
 /**
  * Photodesorption with the monolayer treatment (physics.md section 3): a grain
@@ -260,7 +268,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
 
   const massAction = rateSet.rates.filter((r) => r.form === 'mass-action');
   const special = rateSet.rates.filter((r) => r.form !== 'mass-action');
-  const omitted = special.map((r) => `${r.form} (reaction ${r.reaction.index + 1}: ${describe(r.reaction)})`);
+  const omitted = special.map((r) => `${r.form} (reaction ${r.reaction.index + 1}: ${describe(r.reaction)}): ${NOT_MASS_ACTION[r.form as Exclude<RateForm, 'mass-action'>]}`);
 
   const m = massAction.length;
   const reactantStart = new Int32Array(m + 1);

@@ -40,8 +40,13 @@ export interface GrainOptions {
   tunnelling: boolean;
   /** Reaction-diffusion competition for barriers (Chang, Cuppen & Herbst 2007). */
   diffusionCompetition: boolean;
-  /** 'surface': H + H on the grain; 'parametric': R_f n_H n(H) (Jura 1975). */
-  h2Formation: 'surface' | 'parametric';
+  /**
+   * 'surface': physisorbed H(s) + H(s) (up to about 15 K dust); 'parametric':
+   * R_f n_H n(H) with Jura's (1975) constant R_f; 'hollenbach-mckee': the same
+   * form with R_f from the H sticking law and recombination fraction of
+   * Hollenbach & McKee 1979 (warmer dust).
+   */
+  h2Formation: 'surface' | 'parametric' | 'hollenbach-mckee';
 }
 
 export const DEFAULT_GRAIN_OPTIONS: GrainOptions = { tunnelling: false, diffusionCompetition: false, h2Formation: 'surface' };

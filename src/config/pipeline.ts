@@ -37,7 +37,8 @@ export const grainSection = z
   .object({
     tunnelling: z.boolean().default(false),
     diffusion_competition: z.boolean().default(false),
-    h2_formation: z.enum(['surface', 'parametric']).default('surface'),
+    /** surface: H(s) + H(s), up to about 15 K dust; parametric: Jura 1975; hollenbach-mckee: Hollenbach & McKee 1979, for warmer dust. */
+    h2_formation: z.enum(['surface', 'parametric', 'hollenbach-mckee']).default('surface'),
   })
   .strict();
 

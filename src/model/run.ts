@@ -4,7 +4,8 @@
  * conservation checked at every output. A solver failure is a status, never
  * an exception, so a grid can record it and go on.
  */
-import { compile } from '../chem/system.ts';
+import { compile, type CompiledSystem } from '../chem/system.ts';
+import { evaporatedHydrogenShare, hydrogenGrainTerms, PHYSISORBED_H2_MAX_EVAPORATED_SHARE } from '../chem/grain-h2.ts';
 import { UserError } from '../config/errors.ts';
 import { integrate } from '../solve/index.ts';
 import { ConservationCheck } from './conservation.ts';
@@ -35,6 +36,30 @@ function checkTimes(timesYr: Float64Array): void {
       throw new UserError(`output times must be positive and increasing; time ${i + 1} is ${timesYr[i]} yr.`, { field: 'times' });
     }
   }
+}
+
+/**
+ * The physisorbed H(s) + H(s) route outside its range (physics.md section 10):
+ * a note when, at some output, more than half of the H atoms striking grains
+ * evaporate again instead of reacting.
+ */
+function physisorbedH2Notes(input: ModelInput, system: CompiledSystem, abundances: Float64Array): string[] {
+  const found = hydrogenGrainTerms(input.network, system.terms);
+  if (found.evaporation.length === 0) return [];
+  const n = system.n;
+  let worst = 0;
+  let at = -1;
+  for (let k = 0; k < input.timesYr.length; k++) {
+    const share = evaporatedHydrogenShare(found, system.terms, abundances.subarray(k * n, (k + 1) * n));
+    if (share !== undefined && share > worst) {
+      worst = share;
+      at = k;
+    }
+  }
+  if (!(worst > PHYSISORBED_H2_MAX_EVAPORATED_SHARE)) return [];
+  return [
+    `H2 forms by physisorbed H(s) + H(s) (grain.h2_formation: surface), which holds only while stuck H atoms meet a partner before they evaporate (up to about 15 K dust, physics.md section 10): at ${input.conditions.dust_temperature} K dust ${(100 * worst).toFixed(0)}% of the H atoms striking grains evaporate again (at ${input.timesYr[at].toPrecision(3)} yr), so H2 formation collapses and gas-phase H is overestimated. For warmer dust choose grain.h2_formation: hollenbach-mckee (Hollenbach & McKee 1979).`,
+  ];
 }
 
 export function runModel(input: ModelInput): ModelResult {
@@ -78,6 +103,8 @@ export function runModel(input: ModelInput): ModelResult {
     status = 'failed';
     failure = `the solver failed: ${(e as Error).message}`;
   }
+  const notes = [...system.clampNotes];
+  if (input.grain.h2Formation === 'surface') notes.push(...physisorbedH2Notes(input, system, abundances));
   return {
     species: system.species,
     timesYr: input.timesYr,
@@ -86,7 +113,7 @@ export function runModel(input: ModelInput): ModelResult {
     failure,
     conservation: conservation.report(),
     stats,
-    clampNotes: system.clampNotes,
+    clampNotes: notes,
     skippedNotes: system.skipped.map((s) => `reaction ${s.reaction.index + 1} (${s.reaction.reactants.join(' + ')} -> ${s.reaction.products.join(' + ')}): ${s.reason}`),
     wallMs: performance.now() - started,
   };

@@ -51,7 +51,10 @@ export interface ModelResult {
   failure?: string;
   conservation: ConservationReport;
   stats: ModelStats;
-  /** Temperature-range clamps applied, reported once each (reaction index -> text). */
+  /**
+   * Values used outside their valid range, once each: gas-temperature clamps of
+   * reactions, and an H2 formation treatment beyond the dust temperatures where it holds.
+   */
   clampNotes: string[];
   /** Reactions of the network left out for these options (the other H2 route, helium accretion), each with why. */
   skippedNotes?: string[];

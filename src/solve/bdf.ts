@@ -25,10 +25,11 @@
  * carried between steps; the Jacobian is renewed after JACOBIAN_MAX_AGE
  * steps; a step fails for good after MAX_NEWTON_FAILURES_PER_STEP Newton
  * or MAX_ERROR_FAILURES_PER_STEP error-test failures, and three error-test
- * failures in a row drop the order to 1. With `nonNegative`, negative
- * components of each accepted solution (the newest row of the difference
- * array) and of every output are set to zero, the usual remedy for the
- * round-off negatives of abundances far below atol.
+ * failures in a row drop the order to 1; after a Newton failure the retry at
+ * the smaller step evaluates the Jacobian afresh at its own prediction. With
+ * `nonNegative`, negative components of each accepted solution (the newest
+ * row of the difference array) and of every output are set to zero, the
+ * usual remedy for the round-off negatives of abundances far below atol.
  *
  * The integration always starts at t = 0 from y0 and runs forward to the last
  * output time; outputs are interpolated from the BDF polynomial, the last one
@@ -366,6 +367,8 @@ class BdfIntegrator {
       if (!this.evaluateJacobian(t, this.current)) return Outcome.NonFiniteJacobian;
     }
     let jacobianCurrent = this.jacobianAge === 0 && stats.steps > 0;
+    /** Set after a Newton failure: the retry at the smaller step evaluates the Jacobian at its own prediction. */
+    let refreshJacobian = false;
     let newtonFailures = 0;
     let errorFailures = 0;
     let tNew = t;
@@ -393,6 +396,11 @@ class BdfIntegrator {
       }
 
       const c = h / ALPHA[order];
+      if (refreshJacobian) {
+        if (!this.evaluateJacobian(tNew, yPredict)) return Outcome.NonFiniteJacobian;
+        jacobianCurrent = true;
+        refreshJacobian = false;
+      }
       // Newton on the current factorisation; on failure, a fresh Jacobian and
       // a factorisation for this very c, then a smaller step.
       let converged = this.ensureFactored(c, false) && this.newton(tNew, c);
@@ -410,6 +418,12 @@ class BdfIntegrator {
         stats.failedSteps++;
         if (++newtonFailures >= MAX_NEWTON_FAILURES_PER_STEP) return Outcome.NewtonFailure;
         hAbs *= NEWTON_FAILURE_FACTOR;
+        // The Jacobian in hand was taken at the failed step's prediction; where it
+        // changes fast with the state (H(s) titrated by its partners, issue 17)
+        // it stays wrong by tens of per cent in directions where h |lambda| >> 1,
+        // and Newton diverges at every smaller step. CVODE re-evaluates it after
+        // such a failure (convfail CV_FAIL_OTHER, Hindmarsh et al. 2005).
+        refreshJacobian = true;
         this.changeD(order, NEWTON_FAILURE_FACTOR);
         this.nEqualSteps = 0;
         continue;

@@ -5,6 +5,7 @@ import { compile, type CompiledSystem } from '../../src/chem/system.ts';
 import { join } from 'node:path';
 import { loadNetwork } from '../../src/chem/network.ts';
 import { makeNetwork } from '../model/fixtures.ts';
+import { evaporatedHydrogenShare, h2FormationCoefficientHM79, hydrogenGrainTerms } from '../../src/chem/grain-h2.ts';
 
 const c = defaultConditions();
 // Binding energies E_D/k_B, K: physics.md section 4 (memory).
@@ -139,9 +140,11 @@ describe('compile', () => {
     expect(fdCheck(photoOnly, y)).toBeLessThan(1e-5);
     expect(iCO).not.toBe(iW);
   });
-  it('names the non-mass-action terms and leaves them out on request', () => {
+  it('names the non-mass-action terms, each with why, and leaves them out on request', () => {
     expect(sys.omitted).toHaveLength(2);
-    expect(sys.omitted[0]).toMatch(/monolayer-photodesorption .*CO\(s\) -> CO/);
+    expect(sys.omitted[0]).toMatch(/monolayer-photodesorption .*CO\(s\) -> CO\): above one monolayer the rate per grain saturates/);
+    const para = compile(net, c, { ...DEFAULT_GRAIN_OPTIONS, h2Formation: 'hollenbach-mckee' });
+    expect(para.omitted).toEqual(expect.arrayContaining([expect.stringMatching(/^parametric-h2 \(reaction 14: H \+ H -> H2\): .*first order in H while each event uses two H atoms/)]));
     expect(sys.nonMassAction).toHaveLength(1);
     expect(sys.nonMassAction[0].name).toMatch(/monolayer treatment \(2 reactions\)/);
     const only = compile(net, c, DEFAULT_GRAIN_OPTIONS, { massActionOnly: true });
@@ -172,11 +175,41 @@ describe('compile', () => {
     expect((photo[net.speciesIndex.get('H')!] + accretion) / (-2 * formation)).toBeCloseTo(1, 10);
     expect(fdCheck(para, randomState(para, 1e-6, 5))).toBeLessThan(1e-5);
   });
+  it('takes R_f of Hollenbach & McKee 1979 for the model grain with grain.h2_formation: hollenbach-mckee, and leaves out H(s) + H(s)', () => {
+    const warm = { ...c, gas_temperature: 20, dust_temperature: 20 };
+    const hm = compile(net, warm, { ...DEFAULT_GRAIN_OPTIONS, h2Formation: 'hollenbach-mckee' }, {});
+    expect(Array.from(hm.terms.reaction)).not.toContain(12);
+    const rate = hm.rateSet.rates.find((r) => r.reaction.index === 13)!;
+    expect(rate.form).toBe('parametric-h2');
+    const g = hm.rateSet.grain;
+    expect(rate.k / h2FormationCoefficientHM79(20, 20, g.crossSection * g.abundance, 1.008)).toBeCloseTo(1, 3);
+    expect(fdCheck(hm, randomState(hm, 1e-6, 7))).toBeLessThan(1e-5);
+    expect(hm.clampNotes.join(' ')).not.toMatch(/Hollenbach/);
+  });
+  it('counts the share of H atoms striking grains that evaporate again: k_evap x_H(s) / (k_acc x_H)', () => {
+    const found = hydrogenGrainTerms(net, sys.terms);
+    expect(found.accretion).toHaveLength(1);
+    expect(found.evaporation).toHaveLength(1);
+    const y = new Float64Array(sys.n);
+    y[net.speciesIndex.get('H')!] = 1e-4;
+    y[net.speciesIndex.get('H(s)')!] = 1e-15;
+    const k = (index: number) => sys.rateSet.rates.find((r) => r.reaction.index === index)!.k;
+    expect(evaporatedHydrogenShare(found, sys.terms, y)! / ((k(9) * 1e-15) / (k(6) * 1e-4))).toBeCloseTo(1, 12);
+    expect(evaporatedHydrogenShare(found, sys.terms, new Float64Array(sys.n))).toBeUndefined();
+  });
+  it('notes a run whose dust is warmer than where the HM79 recombination fraction is one half (600 K / ln 1e4 = 65 K, memory)', () => {
+    const hot = compile(net, { ...c, dust_temperature: 80 }, { ...DEFAULT_GRAIN_OPTIONS, h2Formation: 'hollenbach-mckee' }, {});
+    expect(hot.clampNotes).toEqual([expect.stringMatching(/Hollenbach & McKee 1979 .*below one half above 65 K dust: at 80 K/)]);
+  });
 });
 
 describe('compile the default network', () => {
   const network = loadNetwork(join(import.meta.dirname, '..', '..', 'config', 'networks', 'dark-cloud.yaml'));
-  for (const grain of [DEFAULT_GRAIN_OPTIONS, { tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const }]) {
+  for (const grain of [
+    DEFAULT_GRAIN_OPTIONS,
+    { tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const },
+    { tunnelling: true, diffusionCompetition: false, h2Formation: 'hollenbach-mckee' as const },
+  ]) {
     it(`has an exact Jacobian below and above a monolayer (${JSON.stringify(grain)})`, () => {
       const sys = compile(network, { ...c, dust_temperature: 15 }, grain);
       const mono = sys.rateSet.grain.monolayerAbundance;

@@ -44,7 +44,7 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--set <key=value...>', 'override physical conditions, e.g. --set density=2e4 gas_temperature=10')
     .option('--out <dir>', 'output folder (default: <output of the pipeline>/model)')
     .option('--species <list>', `comma-separated species for the figure (default: those of ${DEFAULT_FIGURE_SPECIES.join(', ')} in the network)`)
-    .option('--emit-system <file>', 'also write the compiled mass-action system as JSON (species, y0, times_s, terms, omitted)')
+    .option('--emit-system <file>', 'also write the compiled mass-action system as JSON (species, y0, times_s, terms, and omitted: every term left out, named with why)')
     .option('--mass-action-only', 'leave out the terms that are not mass-action (all photodesorption, H2 self-shielding, parametric H2)')
     .option('--no-self-shielding', 'photodissociate H2 at the unshielded rate (default: shielded by its column, Draine & Bertoldi 1996)')
     .action(async (file: string, opts: ModelOptions) => {
@@ -80,10 +80,12 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     massActionOnly: opts.massActionOnly ?? false,
     selfShielding: (opts.selfShielding ?? true) && cfg.photochemistry.h2_self_shielding,
   };
+  let emittedNote: string | undefined;
   if (opts.emitSystem) {
     const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
     const emitted = system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
     writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n');
+    emittedNote = `${opts.emitSystem} (mass-action part; ${emitted.omitted.length === 0 ? 'nothing left out' : `${emitted.omitted.length} terms that are not mass action left out, each named with why under "omitted"`})`;
   }
   const result = runModel(input);
 
@@ -119,7 +121,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   writeOutput(join(outDir, 'abundances.vl.json'), JSON.stringify(spec, null, 1) + '\n');
   writeOutput(join(outDir, 'abundances.svg'), rendered.svg);
 
-  ctx.stdout.write(summary(result, reached, network.name, outDir, opts.emitSystem, initialNotes));
+  ctx.stdout.write(summary(result, reached, network.name, outDir, emittedNote, initialNotes));
   ctx.setExitCode(result.status === 'ok' ? 0 : 1);
 }
 
