@@ -13,11 +13,12 @@
  * time together with the position of every contribution in it.
  *
  * Processes that are not mass-action are terms of their own (NonMassActionTerm):
- * photodesorption above one monolayer, H2 self-shielding and the parametric H2
- * formation rate.
+ * photodesorption above one monolayer, H2 self-shielding, the parametric H2
+ * formation rate and the non-diffusive reactions (src/chem/nondiffusive.ts).
  */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
+import { CoverageTerms, type CoverageChannel } from './nondiffusive.ts';
 import { computeRates, type RateSet, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
@@ -73,6 +74,8 @@ export interface CompiledSystem {
   omitted: string[];
   skipped: SkippedReaction[];
   clampNotes: string[];
+  /** What the grain options' derivations left out (rateSet.notes). */
+  notes: string[];
   rateSet: RateSet;
   pattern: CsrPattern;
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
@@ -83,6 +86,11 @@ export interface CompiledSystem {
 
 function describe(r: Reaction): string {
   return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
+}
+
+/** How a term names its reaction: the file's reaction number, or the derivation. */
+function reactionName(r: Reaction): string {
+  return r.derived ? `derived ${r.derived.label}` : `reaction ${r.index + 1}: ${describe(r)}`;
 }
 
 /**
@@ -260,7 +268,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
 
   const massAction = rateSet.rates.filter((r) => r.form === 'mass-action');
   const special = rateSet.rates.filter((r) => r.form !== 'mass-action');
-  const omitted = special.map((r) => `${r.form} (reaction ${r.reaction.index + 1}: ${describe(r.reaction)})`);
+  const omitted = special.map((r) => `${r.form} (${reactionName(r.reaction)})`);
 
   const m = massAction.length;
   const reactantStart = new Int32Array(m + 1);
@@ -287,6 +295,26 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     if (photo.length > 0) {
       const channels = photo.map((rate) => ({ ice: index(rate.reaction.reactants[0]), products: Int32Array.from(rate.reaction.products.map(index)), k: rate.k }));
       nonMassAction.push(new MonolayerPhotodesorption(`photodesorption with the monolayer treatment (${photo.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
+    }
+    const coverage = special.filter((r) => r.form === 'coverage');
+    if (coverage.length > 0) {
+      const channels: CoverageChannel[] = coverage.map((rate) => {
+        const r = rate.reaction;
+        const d = r.derived!;
+        const precursors = r.reactants.slice(0, -1);
+        const net = new Map<number, number>();
+        for (const name of [d.fresh!, d.partner!]) net.set(index(name), (net.get(index(name)) ?? 0) - 1);
+        for (const name of d.produces!) net.set(index(name), (net.get(index(name)) ?? 0) + 1);
+        const changed = [...net].filter(([, v]) => v !== 0);
+        return {
+          k: rate.k * nH ** (precursors.length - 1),
+          precursors: Int32Array.from(precursors.map(index)),
+          partner: index(d.partner!),
+          rows: Int32Array.from(changed, ([row]) => row),
+          signs: Float64Array.from(changed, ([, v]) => v),
+        };
+      });
+      nonMassAction.push(new CoverageTerms(`non-diffusive reactions at the partner's surface coverage (${coverage.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
     }
     special.forEach((rate, q) => {
       const r = rate.reaction;
@@ -407,6 +435,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     omitted,
     skipped: rateSet.skipped,
     clampNotes: rateSet.clampNotes,
+    notes: rateSet.notes,
     rateSet,
     pattern: { rowPtr, colIdx },
     rhs,
