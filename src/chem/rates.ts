@@ -20,9 +20,8 @@ import {
   reducedMass,
   surfaceReactionCoefficient,
 } from './grain-surface.ts';
-import { deriveIcePhotolysis } from './ice-photolysis.ts';
+import { deriveReactions } from './derive.ts';
 import type { Network, Reaction } from './network-types.ts';
-import { deriveNonDiffusive } from './nondiffusive.ts';
 import { NH_PER_AV } from './shielding.ts';
 import type { Species } from './species.ts';
 
@@ -222,18 +221,7 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
     return k * r.params.branching;
   };
 
-  const notes: string[] = [];
-  let derived: Reaction[] = [];
-  if (grain.icePhotolysis) {
-    const photolysis = deriveIcePhotolysis(network, grain.icePhotolysisFactor, network.reactions.length);
-    derived = photolysis.reactions;
-    notes.push(...photolysis.notes);
-  }
-  if (grain.threeBody || grain.eleyRideal || grain.photodissociationInduced) {
-    const photolysis = [...network.reactions.filter((r) => r.law === 'ice-interstellar-uv' || r.law === 'ice-cosmic-ray-uv'), ...derived];
-    derived = [...derived, ...deriveNonDiffusive(network, grain, photolysis, network.reactions.length + derived.length)];
-    if (grain.photodissociationInduced && photolysis.length === 0) notes.push('photodissociation-induced reactions: the network has no ice photolysis (list some, or set grain.ice_photolysis), so there are none');
-  }
+  const { reactions: derived, notes } = deriveReactions(network, grain);
 
   /** The coefficient each evaluated reaction got, for the non-diffusive reactions derived from it. */
   const coefficient = new Map<Reaction, number>();
