@@ -126,60 +126,89 @@ export function deriveNonDiffusive(network: Network, switches: NonDiffusiveSwitc
   return out;
 }
 
-/** One non-diffusive channel compiled: indices into the species vector. */
-export interface CoverageChannel {
-  /** Effective coefficient: rate per H nucleus = k prod x_precursors x_partner / max(x_ML, x_ice). */
-  k: number;
-  precursors: Int32Array;
-  partner: number;
-  /** Species changed and by how much (net: -fresh -partner +products). */
-  rows: Int32Array;
-  signs: Float64Array;
+/**
+ * The non-diffusive reactions of one fresh species, compiled. Every parent
+ * that makes it (3-B, ER and PDI alike) combines with every follow-on
+ * reaction, so the rates factorise: rate(s, j) = A_s x_partner(j) p_j /
+ * max(x_ML, x_ice) with A_s the sum over parents of their appearance rates.
+ * Evaluating the sum once per fresh species keeps the cost at parents +
+ * follow-ons instead of their product.
+ */
+export interface FreshGroup {
+  /** Per parent: the coefficient of its appearance rate (rate per H = k prod x_precursors) and its precursors. */
+  sources: { k: number; precursors: Int32Array }[];
+  /** Per follow-on reaction: partner, probability, and the species it changes by how much (-fresh -partner +products). */
+  followers: { partner: number; p: number; rows: Int32Array; signs: Float64Array }[];
 }
 
 /**
- * Every non-diffusive channel as one term: they share the ice total that sets
- * the coverage, so the cross derivatives with respect to every ice species are
+ * Every non-diffusive reaction as one term: they share the ice total that sets
+ * the coverage, so the derivatives with respect to every ice species are
  * summed per row once.
  */
 export class CoverageTerms implements NonMassActionTerm {
   readonly entries: [number, number][] = [];
-  private readonly factorStart: Int32Array;
-  private readonly factors: Int32Array;
+  /** Sources of group g: [sourceStart[g], sourceStart[g+1]); precursors of source s: [precStart[s], precStart[s+1]). */
+  private readonly sourceStart: Int32Array;
+  private readonly sourceK: Float64Array;
+  private readonly precStart: Int32Array;
+  private readonly prec: Int32Array;
+  /** Followers of group g: [followStart[g], followStart[g+1]); rows of follower j: [rowStart[j], rowStart[j+1]). */
+  private readonly followStart: Int32Array;
+  private readonly partner: Int32Array;
+  private readonly p: Float64Array;
   private readonly rowStart: Int32Array;
   private readonly rows: Int32Array;
   private readonly signs: Float64Array;
-  private readonly k: Float64Array;
-  /** Each channel row's slot among the distinct rows, for the ice-total derivative. */
   private readonly rowSlot: Int32Array;
   private readonly distinctRows: Int32Array;
   private readonly cross: Float64Array;
-  private readonly factorPartial: Float64Array;
-  /** Value positions: first rows x factors per channel (in order), then distinct rows x ice species. */
-  private factorPos: Int32Array = new Int32Array(0);
+  /** Appearance rate of each group, and d(appearance)/d(precursor slot). */
+  private readonly appear: Float64Array;
+  private readonly appearSlope: Float64Array;
+  /** Value positions: per follower row, the partner then every precursor slot of its group; then distinct rows x ice species. */
+  private rowPos: Int32Array = new Int32Array(0);
   private icePos: Int32Array = new Int32Array(0);
 
   constructor(
     readonly name: string,
-    channels: readonly CoverageChannel[],
+    groups: readonly FreshGroup[],
     private readonly monolayer: number,
     private readonly iceSpecies: Int32Array,
   ) {
-    const nc = channels.length;
-    this.k = Float64Array.from(channels, (c) => c.k);
-    this.factorStart = new Int32Array(nc + 1);
-    this.rowStart = new Int32Array(nc + 1);
-    const factors: number[] = [];
+    const ng = groups.length;
+    this.sourceStart = new Int32Array(ng + 1);
+    this.followStart = new Int32Array(ng + 1);
+    const sourceK: number[] = [];
+    const precStart: number[] = [0];
+    const prec: number[] = [];
+    const partner: number[] = [];
+    const p: number[] = [];
+    const rowStart: number[] = [0];
     const rows: number[] = [];
     const signs: number[] = [];
-    channels.forEach((c, q) => {
-      factors.push(...c.precursors, c.partner);
-      this.factorStart[q + 1] = factors.length;
-      rows.push(...c.rows);
-      signs.push(...c.signs);
-      this.rowStart[q + 1] = rows.length;
+    groups.forEach((g, q) => {
+      for (const src of g.sources) {
+        sourceK.push(src.k);
+        prec.push(...src.precursors);
+        precStart.push(prec.length);
+      }
+      this.sourceStart[q + 1] = sourceK.length;
+      for (const f of g.followers) {
+        partner.push(f.partner);
+        p.push(f.p);
+        rows.push(...f.rows);
+        signs.push(...f.signs);
+        rowStart.push(rows.length);
+      }
+      this.followStart[q + 1] = partner.length;
     });
-    this.factors = Int32Array.from(factors);
+    this.sourceK = Float64Array.from(sourceK);
+    this.precStart = Int32Array.from(precStart);
+    this.prec = Int32Array.from(prec);
+    this.partner = Int32Array.from(partner);
+    this.p = Float64Array.from(p);
+    this.rowStart = Int32Array.from(rowStart);
     this.rows = Int32Array.from(rows);
     this.signs = Float64Array.from(signs);
     const distinct = [...new Set(rows)];
@@ -187,20 +216,24 @@ export class CoverageTerms implements NonMassActionTerm {
     this.distinctRows = Int32Array.from(distinct);
     this.rowSlot = Int32Array.from(rows, (r) => slotOf.get(r)!);
     this.cross = new Float64Array(distinct.length);
-    let maxFactors = 0;
-    for (let q = 0; q < nc; q++) {
-      maxFactors = Math.max(maxFactors, this.factorStart[q + 1] - this.factorStart[q]);
-      for (let r = this.rowStart[q]; r < this.rowStart[q + 1]; r++) {
-        for (let a = this.factorStart[q]; a < this.factorStart[q + 1]; a++) this.entries.push([this.rows[r], this.factors[a]]);
+    this.appear = new Float64Array(ng);
+    this.appearSlope = new Float64Array(prec.length);
+    for (let g = 0; g < ng; g++) {
+      const firstPrec = this.precStart[this.sourceStart[g]];
+      const lastPrec = this.precStart[this.sourceStart[g + 1]];
+      for (let j = this.followStart[g]; j < this.followStart[g + 1]; j++) {
+        for (let r = this.rowStart[j]; r < this.rowStart[j + 1]; r++) {
+          this.entries.push([this.rows[r], this.partner[j]]);
+          for (let a = firstPrec; a < lastPrec; a++) this.entries.push([this.rows[r], this.prec[a]]);
+        }
       }
     }
-    this.factorPartial = new Float64Array(maxFactors);
     for (const row of distinct) for (const col of iceSpecies) this.entries.push([row, col]);
   }
 
   bind(positions: Int32Array): void {
     const split = positions.length - this.distinctRows.length * this.iceSpecies.length;
-    this.factorPos = positions.subarray(0, split);
+    this.rowPos = positions.subarray(0, split);
     this.icePos = positions.subarray(split);
   }
 
@@ -211,12 +244,36 @@ export class CoverageTerms implements NonMassActionTerm {
     return s;
   }
 
+  /** Appearance rate of every group (and, with slopes, its derivative per precursor slot). */
+  private appearance(y: Float64Array, slopes: boolean): void {
+    for (let g = 0; g < this.appear.length; g++) {
+      let sum = 0;
+      for (let s = this.sourceStart[g]; s < this.sourceStart[g + 1]; s++) {
+        const first = this.precStart[s];
+        const last = this.precStart[s + 1];
+        let rate = this.sourceK[s];
+        for (let a = first; a < last; a++) rate *= y[this.prec[a]];
+        sum += rate;
+        if (!slopes) continue;
+        for (let a = first; a < last; a++) {
+          let d = this.sourceK[s];
+          for (let b = first; b < last; b++) if (b !== a) d *= y[this.prec[b]];
+          this.appearSlope[a] = d;
+        }
+      }
+      this.appear[g] = sum;
+    }
+  }
+
   addRhs(y: Float64Array, dydt: Float64Array): void {
     const norm = 1 / Math.max(this.monolayer, this.iceTotal(y));
-    for (let q = 0; q < this.k.length; q++) {
-      let rate = this.k[q] * norm;
-      for (let a = this.factorStart[q]; a < this.factorStart[q + 1]; a++) rate *= y[this.factors[a]];
-      for (let r = this.rowStart[q]; r < this.rowStart[q + 1]; r++) dydt[this.rows[r]] += this.signs[r] * rate;
+    this.appearance(y, false);
+    for (let g = 0; g < this.appear.length; g++) {
+      const a = this.appear[g] * norm;
+      for (let j = this.followStart[g]; j < this.followStart[g + 1]; j++) {
+        const rate = a * this.p[j] * y[this.partner[j]];
+        for (let r = this.rowStart[j]; r < this.rowStart[j + 1]; r++) dydt[this.rows[r]] += this.signs[r] * rate;
+      }
     }
   }
 
@@ -224,22 +281,24 @@ export class CoverageTerms implements NonMassActionTerm {
     const xIce = this.iceTotal(y);
     const above = xIce > this.monolayer;
     const norm = 1 / (above ? xIce : this.monolayer);
+    this.appearance(y, true);
     this.cross.fill(0);
-    let p = 0;
-    for (let q = 0; q < this.k.length; q++) {
-      const f0 = this.factorStart[q];
-      const nf = this.factorStart[q + 1] - f0;
-      for (let a = 0; a < nf; a++) {
-        let d = this.k[q] * norm;
-        for (let b = 0; b < nf; b++) if (b !== a) d *= y[this.factors[f0 + b]];
-        this.factorPartial[a] = d;
-      }
-      // d(rate)/dx_ice = -rate / x_ice above a monolayer (the coverage's denominator).
-      const dIce = above ? -(this.factorPartial[0] * y[this.factors[f0]]) / xIce : 0;
-      for (let r = this.rowStart[q]; r < this.rowStart[q + 1]; r++) {
-        const sign = this.signs[r];
-        for (let a = 0; a < nf; a++) values[this.factorPos[p++]] += sign * this.factorPartial[a];
-        this.cross[this.rowSlot[r]] += sign * dIce;
+    let pos = 0;
+    for (let g = 0; g < this.appear.length; g++) {
+      const firstPrec = this.precStart[this.sourceStart[g]];
+      const lastPrec = this.precStart[this.sourceStart[g + 1]];
+      for (let j = this.followStart[g]; j < this.followStart[g + 1]; j++) {
+        const pn = this.p[j] * norm;
+        const dPartner = this.appear[g] * pn;
+        const yD = y[this.partner[j]];
+        // d(rate)/dx_ice = -rate / x_ice above a monolayer (the coverage's denominator).
+        const dIce = above ? -(dPartner * yD) / xIce : 0;
+        for (let r = this.rowStart[j]; r < this.rowStart[j + 1]; r++) {
+          const sign = this.signs[r];
+          values[this.rowPos[pos++]] += sign * dPartner;
+          for (let a = firstPrec; a < lastPrec; a++) values[this.rowPos[pos++]] += sign * this.appearSlope[a] * yD * pn;
+          this.cross[this.rowSlot[r]] += sign * dIce;
+        }
       }
     }
     if (!above) return;

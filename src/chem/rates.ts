@@ -42,6 +42,8 @@ export interface ReactionRate {
   /** s^-1 (one reactant, and photodesorption below a monolayer) or cm^3 s^-1 (two reactants, and the parametric H2 R_f). */
   k: number;
   form: RateForm;
+  /** 'coverage' only: k = appear x follow, the parent's appearance coefficient (times the fresh species' multiplicity) and the follow-on probability. */
+  parts?: { appear: number; follow: number };
 }
 
 export interface SkippedReaction {
@@ -298,7 +300,9 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
           skipped.push({ reaction: r, reason: 'its parent or follow-on reaction is left out for these options' });
           break;
         }
-        rates.push({ reaction: r, k: parentRate * r.derived!.multiplicity! * followOnProbability(follow), form: 'coverage' });
+        const appear = parentRate * r.derived!.multiplicity!;
+        const probability = followOnProbability(follow);
+        rates.push({ reaction: r, k: appear * probability, form: 'coverage', parts: { appear, follow: probability } });
         break;
       }
       case 'parametric-h2':

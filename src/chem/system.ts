@@ -18,7 +18,7 @@
  */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
-import { CoverageTerms, type CoverageChannel } from './nondiffusive.ts';
+import { CoverageTerms, type FreshGroup } from './nondiffusive.ts';
 import { computeRates, type RateSet, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
@@ -298,23 +298,33 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     }
     const coverage = special.filter((r) => r.form === 'coverage');
     if (coverage.length > 0) {
-      const channels: CoverageChannel[] = coverage.map((rate) => {
+      // Group by fresh species: each parent (source) combines with each follow-on (follower).
+      const groups = new Map<string, { sources: Map<string, FreshGroup['sources'][number]>; followers: Map<string, FreshGroup['followers'][number]>; count: number }>();
+      for (const rate of coverage) {
         const r = rate.reaction;
         const d = r.derived!;
-        const precursors = r.reactants.slice(0, -1);
+        const group = groups.get(d.fresh!) ?? { sources: new Map(), followers: new Map(), count: 0 };
+        groups.set(d.fresh!, group);
+        group.count += 1;
+        const [parent, follow] = d.parents;
+        group.sources.set(`${parent.index}`, { k: rate.parts!.appear * nH ** (r.reactants.length - 2), precursors: Int32Array.from(r.reactants.slice(0, -1).map(index)) });
         const net = new Map<number, number>();
         for (const name of [d.fresh!, d.partner!]) net.set(index(name), (net.get(index(name)) ?? 0) - 1);
         for (const name of d.produces!) net.set(index(name), (net.get(index(name)) ?? 0) + 1);
         const changed = [...net].filter(([, v]) => v !== 0);
-        return {
-          k: rate.k * nH ** (precursors.length - 1),
-          precursors: Int32Array.from(precursors.map(index)),
+        group.followers.set(`${follow.index} ${d.partner}`, {
           partner: index(d.partner!),
+          p: rate.parts!.follow,
           rows: Int32Array.from(changed, ([row]) => row),
           signs: Float64Array.from(changed, ([, v]) => v),
-        };
+        });
+      }
+      const compiled: FreshGroup[] = [...groups.values()].map((g) => {
+        // Every parent of a fresh species meets every follow-on (src/chem/nondiffusive.ts), so the product is the count.
+        if (g.sources.size * g.followers.size !== g.count) throw new Error('non-diffusive reactions do not factorise by fresh species');
+        return { sources: [...g.sources.values()], followers: [...g.followers.values()] };
       });
-      nonMassAction.push(new CoverageTerms(`non-diffusive reactions at the partner's surface coverage (${coverage.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
+      nonMassAction.push(new CoverageTerms(`non-diffusive reactions at the partner's surface coverage (${coverage.length} reactions)`, compiled, rateSet.grain.monolayerAbundance, iceSpecies));
     }
     special.forEach((rate, q) => {
       const r = rate.reaction;
