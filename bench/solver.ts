@@ -133,8 +133,17 @@ export const PROBLEMS: [string, () => BenchCase][] = [
       };
     },
   ],
-  [
-    'default network, dark cloud, 1e7 yr',
+  ...(
+    [
+      ['default network, dark cloud, 1e7 yr', {}, ''],
+      [
+        'default network, dark cloud, 1e7 yr, ice photolysis + non-diffusive',
+        { icePhotolysis: true, threeBody: true, eleyRideal: true, photodissociationInduced: true },
+        ', grain: ice_photolysis, three_body, eley_rideal, photodissociation_induced',
+      ],
+    ] as const
+  ).map(([name, switches, extra]): [string, () => BenchCase] => [
+    name,
     () => {
       const network = loadNetwork(new URL('../config/networks/dark-cloud.yaml', import.meta.url).pathname);
       const conditions = {
@@ -144,17 +153,17 @@ export const PROBLEMS: [string, () => BenchCase][] = [
         dust_temperature: 10,
         visual_extinction: 10,
       };
-      const problem = compile(network, conditions, DEFAULT_GRAIN_OPTIONS, {});
+      const problem = compile(network, conditions, { ...DEFAULT_GRAIN_OPTIONS, ...switches }, {});
       const y0 = initialState({ network, initial: loadInitialComposition('low-metal', '.', network) });
       return {
         problem,
         y0,
         outputTimes: logSpaced(1e3 * YEAR, 1e7 * YEAR, 13),
         options: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
-        note: 'config/networks/dark-cloud.yaml, n_H = 2e4 cm^-3, 10 K, A_V = 10, low-metal start',
+        note: `config/networks/dark-cloud.yaml, n_H = 2e4 cm^-3, 10 K, A_V = 10, low-metal start${extra}`,
       };
     },
-  ],
+  ]),
 ];
 
 export function main(): BenchRow[] {

@@ -25,6 +25,7 @@ import { mkdirSync, writeFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { loadNetwork } from '../src/chem/network.ts';
+import { grainOptions } from '../src/grid/plan.ts';
 import { defaultConditions, isConditionName, type GrainOptions, type PhysicalConditions } from '../src/config/conditions.ts';
 import { loadPipeline, type Pipeline } from '../src/config/pipeline.ts';
 import { loadInitialComposition, outputTimesYr, runModel } from '../src/model/run.ts';
@@ -111,7 +112,7 @@ function modelContext(pipeline: Pipeline): ModelContext {
   const network = loadNetwork(pipeline.resolvePath(c.network));
   const initial = loadInitialComposition(c.initial, pipeline.dir, network);
   const timesYr = outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count);
-  const grain: GrainOptions = { tunnelling: c.grain.tunnelling, diffusionCompetition: c.grain.diffusion_competition, h2Formation: c.grain.h2_formation };
+  const grain: GrainOptions = grainOptions(pipeline);
   const fixed: Partial<PhysicalConditions> = {};
   for (const [name, axis] of Object.entries(c.conditions)) if (isConditionName(name) && typeof axis === 'number') fixed[name] = axis;
   return {

@@ -17,7 +17,12 @@ export type RateLawName =
   | 'photodesorption'
   | 'surface'
   | 'reactive-desorption'
-  | 'parametric-h2';
+  | 'parametric-h2'
+  | 'ice-interstellar-uv'
+  | 'ice-cosmic-ray-uv'
+  | 'three-body'
+  | 'eley-rideal'
+  | 'photodissociation-induced';
 
 export interface LawParameter {
   name: string;
@@ -35,6 +40,8 @@ export interface RateLaw {
   reactantPhase: 'gas' | 'ice';
   productPhase: 'gas' | 'ice' | 'any';
   params: readonly LawParameter[];
+  /** Made by the model from the network's reactions when a grain option asks (src/chem/nondiffusive.ts); a network file may not list it. */
+  derivedOnly?: boolean;
 }
 
 const alpha = (description: string): LawParameter => ({ name: 'alpha', min: 0, description });
@@ -133,6 +140,49 @@ export const RATE_LAWS: Readonly<Record<RateLawName, RateLaw>> = {
     reactantPhase: 'gas',
     productPhase: 'gas',
     params: [{ name: 'alpha', default: 3e-17, min: 0, description: 'R_f, cm^3 s^-1 (Jura 1975)' }],
+  },
+  'ice-interstellar-uv': {
+    name: 'ice-interstellar-uv',
+    description: 'photodissociation of an ice species by the external UV field, k = alpha G0 exp(-gamma A_V) s^-1 (the gas-phase law applied in the ice); derived from the gas-phase channels with grain.ice_photolysis',
+    reactantCount: 1,
+    reactantPhase: 'ice',
+    productPhase: 'ice',
+    params: [alpha('unattenuated rate in a G0 = 1 (Habing) field, s^-1'), { name: 'gamma', default: 0, min: 0, description: 'dust attenuation factor per mag of A_V' }],
+  },
+  'ice-cosmic-ray-uv': {
+    name: 'ice-cosmic-ray-uv',
+    description: 'photodissociation of an ice species by cosmic-ray induced UV, k = alpha zeta/zeta_0 s^-1; derived from the gas-phase channels with grain.ice_photolysis',
+    reactantCount: 1,
+    reactantPhase: 'ice',
+    productPhase: 'ice',
+    params: [alpha('rate at zeta = zeta_0, s^-1')],
+  },
+  'three-body': {
+    name: 'three-body',
+    description: 'non-diffusive: a product of a surface reaction reacts at once with a neighbour (Jin & Garrod 2020); derived with grain.three_body',
+    reactantCount: 3,
+    reactantPhase: 'ice',
+    productPhase: 'any',
+    params: [],
+    derivedOnly: true,
+  },
+  'eley-rideal': {
+    name: 'eley-rideal',
+    description: 'non-diffusive: a gas particle landing on an ice species reacts with it at once (Jin & Garrod 2020; Garrod et al. 2022); derived with grain.eley_rideal',
+    reactantCount: 2,
+    reactantPhase: 'ice',
+    productPhase: 'any',
+    params: [],
+    derivedOnly: true,
+  },
+  'photodissociation-induced': {
+    name: 'photodissociation-induced',
+    description: 'non-diffusive: a fragment of an ice photodissociation reacts at once with a neighbour (Jin & Garrod 2020); derived with grain.photodissociation_induced',
+    reactantCount: 2,
+    reactantPhase: 'ice',
+    productPhase: 'any',
+    params: [],
+    derivedOnly: true,
   },
 };
 

@@ -173,10 +173,14 @@ function assembleReaction(entry: RawReaction, raw: RawNetwork, index: number, pr
     problems.push(new UserError(message, entry.locate(field)));
   };
   if (!isRateLawName(entry.law)) {
-    fail(`unknown rate law '${entry.law}'; expected one of ${RATE_LAW_NAMES.join(', ')}.`, 'law');
+    fail(`unknown rate law '${entry.law}'; expected one of ${RATE_LAW_NAMES.filter((n) => !RATE_LAWS[n].derivedOnly).join(', ')}.`, 'law');
     return undefined;
   }
   const law = RATE_LAWS[entry.law];
+  if (law.derivedOnly) {
+    fail(`the law ${law.name} is made by the model from the network's surface reactions when the grain option asks for it; a network does not list it. Remove the entry and set the grain option (docs/ice-nondiffusive.md).`, 'law');
+    return undefined;
+  }
   const reactants = parseAll(entry.reactants, 'reactants', fail);
   const products = parseAll(entry.products, 'products', fail);
   if (entry.reactants.length !== law.reactantCount) {

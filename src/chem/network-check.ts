@@ -9,7 +9,7 @@
  * reaction destroys).
  */
 import { UserError, UserErrors } from '../config/errors.ts';
-import { RATE_LAW_NAMES, type RateLawName } from './laws.ts';
+import { RATE_LAW_NAMES, RATE_LAWS, type RateLawName } from './laws.ts';
 import type { Network, Reaction, SourceLocation } from './network-types.ts';
 import { iceName, parseSpecies, type Species } from './species.ts';
 
@@ -45,6 +45,15 @@ export interface NetworkCounts {
   reactions: { total: number; byLaw: Record<RateLawName, number> };
 }
 
+/** The reactions the grain options would add (`network check --derive`). */
+export interface DerivedReport {
+  /** The grain switches asked for. */
+  options: string[];
+  byMechanism: Record<string, number>;
+  reactions: { index: number; mechanism: string; label: string; reactants: string[]; products: string[] }[];
+  notes: string[];
+}
+
 export interface NetworkReport {
   name: string;
   file: string;
@@ -53,6 +62,7 @@ export interface NetworkReport {
   errors: number;
   warnings: number;
   problems: NetworkProblem[];
+  derived?: DerivedReport;
 }
 
 /** Branching ratios of the surface channels of one reactant pair may differ from 1 by this much. */
@@ -67,7 +77,7 @@ export function reactionLabel(r: Reaction): string {
   return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')} (${r.law})`;
 }
 
-export function checkNetwork(network: Network): NetworkReport {
+export function checkNetwork(network: Network, derive?: { options: string[]; reactions: readonly Reaction[]; notes: readonly string[] }): NetworkReport {
   const problems: NetworkProblem[] = [];
   const speciesOf = (name: string): Species => network.species[network.speciesIndex.get(name) ?? -1] ?? parseSpecies(name);
   const add = (severity: Severity, kind: ProblemKind, message: string, reactions: Reaction[], species?: string): void => {
@@ -78,6 +88,7 @@ export function checkNetwork(network: Network): NetworkReport {
     checkConservation(r, speciesOf, add);
     if (r.tmin > r.tmax) add('error', 'inverted-range', `temperature range [${r.tmin}, ${r.tmax}] K is inverted (tmin > tmax) in ${reactionLabel(r)}; swap the two values.`, [r]);
   }
+  for (const r of derive?.reactions ?? []) checkConservation(r, speciesOf, add);
   checkDuplicates(network.reactions, add);
   checkSurfacePairs(network.reactions, add);
   checkSpeciesBalance(network, add);
@@ -98,6 +109,18 @@ export function checkNetwork(network: Network): NetworkReport {
     errors: problems.filter((p) => p.severity === 'error').length,
     warnings: problems.filter((p) => p.severity === 'warning').length,
     problems,
+    ...(derive ? { derived: derivedReport(derive) } : {}),
+  };
+}
+
+function derivedReport(derive: { options: string[]; reactions: readonly Reaction[]; notes: readonly string[] }): DerivedReport {
+  const byMechanism: Record<string, number> = {};
+  for (const r of derive.reactions) byMechanism[r.derived!.mechanism] = (byMechanism[r.derived!.mechanism] ?? 0) + 1;
+  return {
+    options: derive.options,
+    byMechanism,
+    reactions: derive.reactions.map((r) => ({ index: r.index, mechanism: r.derived!.mechanism, label: r.derived!.label, reactants: r.reactants, products: r.products })),
+    notes: [...derive.notes],
   };
 }
 
@@ -277,8 +300,15 @@ export function formatReport(report: NetworkReport): string {
   lines.push('');
   lines.push(`species   ${pad(String(species.total), 6)} gas ${species.gas} (neutral ${species.gas - species.ions - species.electrons}, ions ${species.ions}${species.electrons ? ', e-' : ''}), ice ${species.ice}`);
   lines.push(`reactions ${pad(String(reactions.total), 6)}`);
+  const listable = RATE_LAW_NAMES.filter((l) => !RATE_LAWS[l].derivedOnly);
   const width = Math.max(...RATE_LAW_NAMES.map((l) => l.length));
-  for (const law of RATE_LAW_NAMES) lines.push(`  ${law.padEnd(width)}  ${pad(String(reactions.byLaw[law]), 6)}`);
+  for (const law of listable) lines.push(`  ${law.padEnd(width)}  ${pad(String(reactions.byLaw[law]), 6)}`);
+  if (report.derived) {
+    const d = report.derived;
+    lines.push(`derived by ${d.options.join(', ')}: ${d.reactions.length} (the JSON report lists each)`);
+    for (const [mechanism, n] of Object.entries(d.byMechanism)) lines.push(`  ${mechanism.padEnd(width)}  ${pad(String(n), 6)}`);
+    for (const note of d.notes) lines.push(`  note: ${note}`);
+  }
   lines.push('');
   for (const severity of ['error', 'warning'] as const) {
     const list = report.problems.filter((p) => p.severity === severity);

@@ -9,6 +9,26 @@ export interface SourceLocation {
   row?: number;
 }
 
+/** How a reaction the model made from the network's own reactions came about (src/chem/nondiffusive.ts, src/chem/ice-photolysis.ts). */
+export interface DerivedFrom {
+  mechanism: 'three-body' | 'eley-rideal' | 'photodissociation-induced' | 'ice-photolysis';
+  /** The reactions it was made from: the one that makes the fresh species first, the follow-on reaction last. */
+  parents: Reaction[];
+  /**
+   * Non-diffusive reactions: the species just formed (or just landed) that
+   * reacts at once, its partner and the follow-on products. The rate goes as
+   * the listed reactants, but what is used up is fresh + partner (the fresh
+   * species' own formation is already counted by its parent).
+   */
+  fresh?: string;
+  partner?: string;
+  produces?: string[];
+  /** How many of the fresh species one parent event makes (2 for Y -> F + F). */
+  multiplicity?: number;
+  /** Readable name for outputs, checks and --emit-system. */
+  label: string;
+}
+
 export interface Reaction {
   /** 0-based index in the network's reaction list. */
   index: number;
@@ -22,6 +42,8 @@ export interface Reaction {
   tmax: number;
   origin: string;
   source: SourceLocation;
+  /** Set on reactions the model derived rather than read from the file. */
+  derived?: DerivedFrom;
 }
 
 export interface SpeciesData {

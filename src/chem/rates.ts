@@ -21,6 +21,7 @@ import {
   reducedMass,
   surfaceReactionCoefficient,
 } from './grain-surface.ts';
+import { deriveReactions } from './derive.ts';
 import type { Network, Reaction } from './network-types.ts';
 import { NH_PER_AV } from './shielding.ts';
 import type { Species } from './species.ts';
@@ -31,14 +32,19 @@ import type { Species } from './species.ts';
  * first-order rate k below one monolayer, saturating to a fixed rate per grain
  * above it. 'parametric-h2': event rate k n_H n(H), using both listed H atoms.
  * 'h2-self-shielding': H2 photodissociation at k f(N(H2)) (Draine & Bertoldi 1996).
+ * 'coverage': a non-diffusive reaction (src/chem/nondiffusive.ts), k times its
+ * precursors times the partner's share of the surface; k is in s^-1 with one
+ * precursor and cm^3 s^-1 with two.
  */
-export type RateForm = 'mass-action' | 'monolayer-photodesorption' | 'parametric-h2' | 'h2-self-shielding';
+export type RateForm = 'mass-action' | 'monolayer-photodesorption' | 'parametric-h2' | 'h2-self-shielding' | 'coverage';
 
 export interface ReactionRate {
   reaction: Reaction;
   /** s^-1 (one reactant, and photodesorption below a monolayer) or cm^3 s^-1 (two reactants, and the parametric H2 R_f). */
   k: number;
   form: RateForm;
+  /** 'coverage' only: k = appear x follow, the parent's appearance coefficient (times the fresh species' multiplicity) and the follow-on probability. */
+  parts?: { appear: number; follow: number };
 }
 
 export interface SkippedReaction {
@@ -57,6 +63,10 @@ export interface RateSet {
    */
   clampNotes: string[];
   grain: GrainProperties;
+  /** Reactions the grain options derived from the network's own (ice photolysis, non-diffusive), indexed after them. */
+  derived: Reaction[];
+  /** What a derivation left out and why. */
+  notes: string[];
   /** Column of H nuclei to the cloud edge, N_H = (N_H/A_V) A_V, cm^-2: N(H2) = x(H2) N_H for self-shielding. */
   columnToEdge: number;
 }
@@ -80,7 +90,7 @@ const DEFAULT_PHOTODESORPTION_YIELD = RATE_LAWS.photodesorption.params.find((q) 
 const TUNNELLING_SPECIES = new Set(['H', 'H2']);
 
 function describe(r: Reaction): string {
-  return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
+  return r.derived ? r.derived.label : `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
 }
 
 function where(r: Reaction): { file: string; line?: number; row?: number } {
@@ -198,6 +208,26 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
     if (r.law === 'reactive-desorption') desorbingChannels.add(`${[...r.reactants].sort().join(' ')} > ${gasNameKey(r.products, data)}`);
   }
 
+  /** Share of a surface channel's events: f for reactive desorption, 1 - f for a surface channel that has a desorbing partner. */
+  const surfaceShare = (r: Reaction): number => {
+    if (r.law === 'reactive-desorption') return f;
+    return desorbingChannels.has(`${[...r.reactants].sort().join(' ')} > ${gasNameKey(r.products, data)}`) ? 1 - f : 1;
+  };
+
+  /**
+   * Probability that a fresh species and its neighbour react by surface
+   * reaction r before either hops away: the reaction-diffusion competition
+   * (Garrod & Pauly 2011; used for the non-diffusive processes by Jin & Garrod
+   * 2020: memory), times r's branching ratio and share.
+   */
+  const followOnProbability = (r: Reaction): number => {
+    const [a, b] = r.reactants;
+    const kappa = reactionProbability(r.params.activation_energy, c.dust_temperature, reducedMass(data.mass(a), data.mass(b)));
+    const nu = Math.max(data.vibrationFrequency(a, r), data.vibrationFrequency(b, r));
+    const p = competingProbability(kappa, nu, data.hop(a, r, grain.tunnelling), data.hop(b, r, grain.tunnelling));
+    return p * r.params.branching * surfaceShare(r);
+  };
+
   const surfaceCoefficient = (r: Reaction): number => {
     const [a, b] = r.reactants;
     const same = a === b;
@@ -212,7 +242,12 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
     return k * r.params.branching;
   };
 
-  for (const r of network.reactions) {
+  const { reactions: derived, notes } = deriveReactions(network, grain);
+
+  /** The coefficient each evaluated reaction got, for the non-diffusive reactions derived from it. */
+  const coefficient = new Map<Reaction, number>();
+  for (const r of [...network.reactions, ...derived]) {
+    const before = rates.length;
     const p = r.params;
     switch (r.law) {
       case 'arrhenius': {
@@ -266,10 +301,27 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
           skipped.push({ reaction: r, reason: `H2 forms at a rate per striking H atom (grain.h2_formation: ${grain.h2Formation}): the surface H + H route is left out` });
           break;
         }
-        let k = surfaceCoefficient(r);
-        if (r.law === 'reactive-desorption') k *= f;
-        else if (desorbingChannels.has(`${[...r.reactants].sort().join(' ')} > ${gasNameKey(r.products, data)}`)) k *= 1 - f;
-        rates.push({ reaction: r, k, form: 'mass-action' });
+        rates.push({ reaction: r, k: surfaceCoefficient(r) * surfaceShare(r), form: 'mass-action' });
+        break;
+      }
+      case 'ice-cosmic-ray-uv':
+        rates.push({ reaction: r, k: cosmicRayRate(p.alpha, c.cr_ionisation_rate), form: 'mass-action' });
+        break;
+      case 'ice-interstellar-uv':
+        rates.push({ reaction: r, k: interstellarUvRate(p.alpha, p.gamma, c.uv_field, c.visual_extinction), form: 'mass-action' });
+        break;
+      case 'three-body':
+      case 'eley-rideal':
+      case 'photodissociation-induced': {
+        const [parent, follow] = r.derived!.parents;
+        const parentRate = coefficient.get(parent);
+        if (parentRate === undefined || !coefficient.has(follow)) {
+          skipped.push({ reaction: r, reason: 'its parent or follow-on reaction is left out for these options' });
+          break;
+        }
+        const appear = parentRate * r.derived!.multiplicity!;
+        const probability = followOnProbability(follow);
+        rates.push({ reaction: r, k: appear * probability, form: 'coverage', parts: { appear, follow: probability } });
         break;
       }
       case 'parametric-h2':
@@ -291,7 +343,8 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
         throw new Error(`no rate for law ${String(never)}`);
       }
     }
+    if (rates.length > before) coefficient.set(r, rates[before].k);
   }
   clampNotes.push(...h2RangeNotes(grain, c.dust_temperature));
-  return { rates, skipped, clampNotes, grain: props, columnToEdge: NH_PER_AV * c.visual_extinction };
+  return { rates, skipped, clampNotes, derived, notes, grain: props, columnToEdge: NH_PER_AV * c.visual_extinction };
 }

@@ -13,11 +13,12 @@
  * time together with the position of every contribution in it.
  *
  * Processes that are not mass-action are terms of their own (NonMassActionTerm):
- * photodesorption above one monolayer, H2 self-shielding and the parametric H2
- * formation rate.
+ * photodesorption above one monolayer, H2 self-shielding, the parametric H2
+ * formation rate and the non-diffusive reactions (src/chem/nondiffusive.ts).
  */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
+import { CoverageTerms, type FreshGroup } from './nondiffusive.ts';
 import { computeRates, type RateForm, type RateSet, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
@@ -74,6 +75,8 @@ export interface CompiledSystem {
   omitted: string[];
   skipped: SkippedReaction[];
   clampNotes: string[];
+  /** What the grain options' derivations left out (rateSet.notes). */
+  notes: string[];
   rateSet: RateSet;
   pattern: CsrPattern;
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
@@ -91,7 +94,13 @@ const NOT_MASS_ACTION: Readonly<Record<Exclude<RateForm, 'mass-action'>, string>
   'monolayer-photodesorption': 'above one monolayer the rate per grain saturates, k x_i x_ML / x_ice, a ratio of abundances rather than a product',
   'parametric-h2': 'the event rate R_f n_H x_H is first order in H while each event uses two H atoms, so its order differs from its stoichiometry',
   'h2-self-shielding': 'the rate k f(x_H2 N_H) x_H2 carries the shielding factor of the H2 column (Draine & Bertoldi 1996), not a power of x_H2',
+  coverage: 'a non-diffusive reaction: the appearance rate of the parent times the fractional coverage of the partner, x_D / max(x_ML, x_ice), a ratio of abundances (docs/ice-nondiffusive.md)',
 };
+
+/** How a term names its reaction: the file's reaction number, or the derivation. */
+function reactionName(r: Reaction): string {
+  return r.derived ? `derived ${r.derived.label}` : `reaction ${r.index + 1}: ${describe(r)}`;
+}
 
 /**
  * Photodesorption with the monolayer treatment (physics.md section 3): a grain
@@ -268,7 +277,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
 
   const massAction = rateSet.rates.filter((r) => r.form === 'mass-action');
   const special = rateSet.rates.filter((r) => r.form !== 'mass-action');
-  const omitted = special.map((r) => `${r.form} (reaction ${r.reaction.index + 1}: ${describe(r.reaction)}): ${NOT_MASS_ACTION[r.form as Exclude<RateForm, 'mass-action'>]}`);
+  const omitted = special.map((r) => `${r.form} (${reactionName(r.reaction)}): ${NOT_MASS_ACTION[r.form as Exclude<RateForm, 'mass-action'>]}`);
 
   const m = massAction.length;
   const reactantStart = new Int32Array(m + 1);
@@ -295,6 +304,36 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     if (photo.length > 0) {
       const channels = photo.map((rate) => ({ ice: index(rate.reaction.reactants[0]), products: Int32Array.from(rate.reaction.products.map(index)), k: rate.k }));
       nonMassAction.push(new MonolayerPhotodesorption(`photodesorption with the monolayer treatment (${photo.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
+    }
+    const coverage = special.filter((r) => r.form === 'coverage');
+    if (coverage.length > 0) {
+      // Group by fresh species: each parent (source) combines with each follow-on (follower).
+      const groups = new Map<string, { sources: Map<string, FreshGroup['sources'][number]>; followers: Map<string, FreshGroup['followers'][number]>; count: number }>();
+      for (const rate of coverage) {
+        const r = rate.reaction;
+        const d = r.derived!;
+        const group = groups.get(d.fresh!) ?? { sources: new Map(), followers: new Map(), count: 0 };
+        groups.set(d.fresh!, group);
+        group.count += 1;
+        const [parent, follow] = d.parents;
+        group.sources.set(`${parent.index}`, { k: rate.parts!.appear * nH ** (r.reactants.length - 2), precursors: Int32Array.from(r.reactants.slice(0, -1).map(index)) });
+        const net = new Map<number, number>();
+        for (const name of [d.fresh!, d.partner!]) net.set(index(name), (net.get(index(name)) ?? 0) - 1);
+        for (const name of d.produces!) net.set(index(name), (net.get(index(name)) ?? 0) + 1);
+        const changed = [...net].filter(([, v]) => v !== 0);
+        group.followers.set(`${follow.index} ${d.partner}`, {
+          partner: index(d.partner!),
+          p: rate.parts!.follow,
+          rows: Int32Array.from(changed, ([row]) => row),
+          signs: Float64Array.from(changed, ([, v]) => v),
+        });
+      }
+      const compiled: FreshGroup[] = [...groups.values()].map((g) => {
+        // Every parent of a fresh species meets every follow-on (src/chem/nondiffusive.ts), so the product is the count.
+        if (g.sources.size * g.followers.size !== g.count) throw new Error('non-diffusive reactions do not factorise by fresh species');
+        return { sources: [...g.sources.values()], followers: [...g.followers.values()] };
+      });
+      nonMassAction.push(new CoverageTerms(`non-diffusive reactions at the partner's surface coverage (${coverage.length} reactions)`, compiled, rateSet.grain.monolayerAbundance, iceSpecies));
     }
     special.forEach((rate, q) => {
       const r = rate.reaction;
@@ -415,6 +454,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     omitted,
     skipped: rateSet.skipped,
     clampNotes: rateSet.clampNotes,
+    notes: rateSet.notes,
     rateSet,
     pattern: { rowPtr, colIdx },
     rhs,

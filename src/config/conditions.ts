@@ -47,9 +47,35 @@ export interface GrainOptions {
    * Hollenbach & McKee 1979 (warmer dust).
    */
   h2Formation: 'surface' | 'parametric' | 'hollenbach-mckee';
+  /** Three-body mechanism: a product of a surface reaction reacts at once with a neighbour (Jin & Garrod 2020). */
+  threeBody: boolean;
+  /** Eley-Rideal: a landing gas particle reacts at once with the ice species it lands on (Jin & Garrod 2020; Garrod et al. 2022). */
+  eleyRideal: boolean;
+  /** Photodissociation-induced reactions: an ice photolysis fragment reacts at once with a neighbour (Jin & Garrod 2020). */
+  photodissociationInduced: boolean;
+  /** Ice photolysis by external and cosmic-ray induced UV, derived from the network's gas-phase photoreactions. */
+  icePhotolysis: boolean;
+  /** Ice photolysis rate over its gas-phase counterpart (model choice; default 1, memory: see ICE_PHOTOLYSIS_FACTOR). */
+  icePhotolysisFactor: number;
 }
 
-export const DEFAULT_GRAIN_OPTIONS: GrainOptions = { tunnelling: false, diffusionCompetition: false, h2Formation: 'surface' };
+/**
+ * Ice photodissociation rate as a multiple of the gas-phase rate: a model
+ * choice. 1 (memory: Garrod, Widicus Weaver & Herbst 2008, ApJ 682, 283, and
+ * the three-phase models after it take the gas-phase rates for the ice).
+ */
+export const ICE_PHOTOLYSIS_FACTOR = 1;
+
+export const DEFAULT_GRAIN_OPTIONS: GrainOptions = {
+  tunnelling: false,
+  diffusionCompetition: false,
+  h2Formation: 'surface',
+  threeBody: false,
+  eleyRideal: false,
+  photodissociationInduced: false,
+  icePhotolysis: false,
+  icePhotolysisFactor: ICE_PHOTOLYSIS_FACTOR,
+};
 
 export function defaultConditions(): PhysicalConditions {
   const c = {} as PhysicalConditions;

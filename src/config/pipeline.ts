@@ -8,6 +8,7 @@
 import { existsSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
+import { ICE_PHOTOLYSIS_FACTOR } from './conditions.ts';
 import { UserError } from './errors.ts';
 import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
 import { observationsSection } from './sections/observations.ts';
@@ -39,6 +40,13 @@ export const grainSection = z
     diffusion_competition: z.boolean().default(false),
     /** surface: H(s) + H(s), up to about 15 K dust; parametric: Jura 1975; hollenbach-mckee: Hollenbach & McKee 1979, for warmer dust. */
     h2_formation: z.enum(['surface', 'parametric', 'hollenbach-mckee']).default('surface'),
+    /** Non-diffusive surface chemistry (Jin & Garrod 2020; Garrod et al. 2022): docs/ice-nondiffusive.md. */
+    three_body: z.boolean().default(false),
+    eley_rideal: z.boolean().default(false),
+    photodissociation_induced: z.boolean().default(false),
+    /** Ice photolysis derived from the gas-phase photoreactions, at ice_photolysis_factor times their rate. */
+    ice_photolysis: z.boolean().default(false),
+    ice_photolysis_factor: z.number().min(0).default(ICE_PHOTOLYSIS_FACTOR),
   })
   .strict();
 
@@ -65,7 +73,16 @@ export const pipelineSchema = z
     conditions: conditionsSection.default({}),
     /** Grid points to leave out (see sections/conditions.ts). */
     exclude: excludeSection.default([]),
-    grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' }),
+    grain: grainSection.default({
+      tunnelling: false,
+      diffusion_competition: false,
+      h2_formation: 'surface',
+      three_body: false,
+      eley_rideal: false,
+      photodissociation_induced: false,
+      ice_photolysis: false,
+      ice_photolysis_factor: ICE_PHOTOLYSIS_FACTOR,
+    }),
     photochemistry: photochemistrySection.default({ h2_self_shielding: true }),
     initial: initialSection.default('low-metal'),
     times: timesSection.default({ start_yr: 1e3, end_yr: 1e7, count: 41 }),

@@ -34,7 +34,16 @@ export interface GridPlan {
 
 export function grainOptions(pipeline: Pipeline): GrainOptions {
   const g = pipeline.config.grain;
-  return { tunnelling: g.tunnelling, diffusionCompetition: g.diffusion_competition, h2Formation: g.h2_formation };
+  return {
+    tunnelling: g.tunnelling,
+    diffusionCompetition: g.diffusion_competition,
+    h2Formation: g.h2_formation,
+    threeBody: g.three_body,
+    eleyRideal: g.eley_rideal,
+    photodissociationInduced: g.photodissociation_induced,
+    icePhotolysis: g.ice_photolysis,
+    icePhotolysisFactor: g.ice_photolysis_factor,
+  };
 }
 
 export function solverSettings(pipeline: Pipeline): SolverSettings {

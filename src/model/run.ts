@@ -114,7 +114,10 @@ export function runModel(input: ModelInput): ModelResult {
     conservation: conservation.report(),
     stats,
     clampNotes: notes,
-    skippedNotes: system.skipped.map((s) => `reaction ${s.reaction.index + 1} (${s.reaction.reactants.join(' + ')} -> ${s.reaction.products.join(' + ')}): ${s.reason}`),
+    skippedNotes: [
+      ...system.skipped.map((s) => `${s.reaction.derived ? `derived ${s.reaction.derived.label}` : `reaction ${s.reaction.index + 1} (${s.reaction.reactants.join(' + ')} -> ${s.reaction.products.join(' + ')})`}: ${s.reason}`),
+      ...system.notes,
+    ],
     wallMs: performance.now() - started,
   };
 }

@@ -205,10 +205,13 @@ describe('compile', () => {
 
 describe('compile the default network', () => {
   const network = loadNetwork(join(import.meta.dirname, '..', '..', 'config', 'networks', 'dark-cloud.yaml'));
+  const nonDiffusive = { ...DEFAULT_GRAIN_OPTIONS, threeBody: true, eleyRideal: true, photodissociationInduced: true, icePhotolysis: true };
   for (const grain of [
     DEFAULT_GRAIN_OPTIONS,
-    { tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const },
-    { tunnelling: true, diffusionCompetition: false, h2Formation: 'hollenbach-mckee' as const },
+    { ...DEFAULT_GRAIN_OPTIONS, tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const },
+    { ...DEFAULT_GRAIN_OPTIONS, tunnelling: true, h2Formation: 'hollenbach-mckee' as const },
+    // Ice photolysis and the non-diffusive reactions (docs/ice-nondiffusive.md): the coverage term's ice-total derivative included.
+    nonDiffusive,
   ]) {
     it(`has an exact Jacobian below and above a monolayer (${JSON.stringify(grain)})`, () => {
       const sys = compile(network, { ...c, dust_temperature: 15 }, grain);

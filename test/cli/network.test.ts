@@ -33,6 +33,20 @@ reactions:
 `;
 
 describe('hoarfrost network check', () => {
+  it('--derive counts, names and checks the reactions grain switches add; an unknown switch is a clear error', () => {
+    const r = hoarfrost('network', 'check', 'config/networks/dark-cloud.yaml', '--derive', 'three_body,ice_photolysis', '--json');
+    expect(r.status).toBe(0);
+    const report = JSON.parse(r.stdout) as { errors: number; derived: { options: string[]; byMechanism: Record<string, number>; reactions: { mechanism: string; label: string }[]; notes: string[] } };
+    expect(report.errors).toBe(0);
+    expect(report.derived.options).toEqual(['three_body', 'ice_photolysis']);
+    expect(Object.keys(report.derived.byMechanism).sort()).toEqual(['ice-photolysis', 'three-body']);
+    expect(report.derived.reactions.map((d) => d.label)).toContain('three-body (H(s) + O(s) -> OH(s), then CO(s) + OH(s) -> CO2(s) + H(s))');
+    expect(report.derived.notes.some((n) => n.startsWith('ice photolysis:'))).toBe(true);
+    const bad = hoarfrost('network', 'check', 'config/networks/dark-cloud.yaml', '--derive', 'three_bodies');
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/unknown: three_bodies/);
+    expect(bad.stderr).not.toMatch(STACK_LINE);
+  });
   it('passes on the default network and prints the counts', () => {
     const r = hoarfrost('network', 'check', 'config/networks/dark-cloud.yaml');
     expect(r.stderr).toBe('');

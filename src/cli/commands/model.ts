@@ -58,6 +58,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const { compile } = await import('../../chem/system.ts');
   const { YEAR_SECONDS } = await import('../../chem/constants.ts');
   const { loadInitialComposition, outputTimesYr, runModel, initialState } = await import('../../model/run.ts');
+  const { grainOptions } = await import('../../grid/plan.ts');
 
   const pipeline = loadPipeline(file);
   const cfg = pipeline.config;
@@ -66,7 +67,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const initialNotes: string[] = [];
   const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
   const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
-  const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation };
+  const grain = grainOptions(pipeline);
   const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
 
