@@ -17,7 +17,7 @@ import { fitJoint } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
 import { buildModelQuantities, collectTerms, termKey } from './model-quantities.ts';
 import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
-import { regionLevels } from './regions.ts';
+import { regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
 import {
   AGE_PARAMETER,
@@ -30,8 +30,6 @@ import {
   type SightlineProfiles,
 } from './types.ts';
 
-/** The level of the bounds in best_fits.csv and of the map interval images: 68.3%, one Gaussian sigma (common practice); always computed. */
-export const TABLE_LEVEL = 0.683;
 /** A p-value above this, with more than one dof, means the errors are larger than the misfit (common practice: the other tail of the chi-square test). */
 const SUSPICIOUSLY_GOOD_P = 0.99;
 /** Problems listed one by one before the rest are counted. */

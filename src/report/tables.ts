@@ -5,6 +5,7 @@
  * \tablenotetext, \tablecomments). Every text from user files is escaped.
  * The tables hold no time stamps or paths, so the same run gives the same bytes.
  */
+import { TABLE_LEVEL } from '../fit/regions.ts';
 import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
 import { escapeLatex } from './escape.ts';
 import { numberLatex } from './numbers.ts';
@@ -45,7 +46,7 @@ export interface SummaryTable {
 
 export function summaryTable(input: ReportInput): SummaryTable {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
-  const level = levels[0] ?? 0.683;
+  const level = levels[0] ?? TABLE_LEVEL;
   const av = new Map(input.observations.sightlines.map((s) => [s.id, s.av] as const));
   const parameters = orderParameters(input.fit.fittedParameters);
   const rows = input.fit.fits.map((fit) => ({

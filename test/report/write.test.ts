@@ -18,7 +18,6 @@ import { writeReport } from '../../src/report/index.ts';
 import { carriedCards } from '../../src/report/maps.ts';
 import { outputPath } from '../../src/report/paths.ts';
 import { numberHtml, numberLatex, numberText } from '../../src/report/numbers.ts';
-import { deltaChi2Threshold } from '../../src/report/thresholds.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
 import { HOSTILE_NAMES, SIGHTLINES, syntheticInput } from './fixture.ts';
 
@@ -299,16 +298,5 @@ describe('numbers and thresholds', () => {
     expect(numberLatex(0.5)).toBe('0.50');
     expect(numberHtml(3.2e-5)).toBe('3.2×10<sup>−5</sup>');
     expect(numberText(2.5e5)).toBe('2.5×10⁵');
-  });
-
-  it('gives the Delta chi^2 thresholds of Avni (1976) / Numerical Recipes section 15.6', () => {
-    // Table of NR 15.6 (and physics.md section 6): p = 1: 1.00, 2.71, 4.00, 6.63; p = 2: 2.30, 4.61, 6.18, 9.21.
-    const cases: [number, 1 | 2, number][] = [
-      [0.683, 1, 1.0], [0.9, 1, 2.71], [0.9545, 1, 4.0], [0.99, 1, 6.63],
-      [0.683, 2, 2.3], [0.9, 2, 4.61], [0.9545, 2, 6.18], [0.99, 2, 9.21],
-    ];
-    for (const [level, p, value] of cases) expect(Math.abs(deltaChi2Threshold(level, p) - value)).toBeLessThan(0.006);
-    // A threshold the fit stage stated wins over the computed one.
-    expect(deltaChi2Threshold(0.683, 1, [{ level: 0.683, parametersOfInterest: 1, deltaChi2: 1.5 }])).toBe(1.5);
   });
 });

@@ -5,6 +5,7 @@
  */
 import { FIGURE_KINDS, type FigureKind, type FigureRequestConfig } from '../../config/sections/report.ts';
 import { UserError, UserErrors } from '../../config/errors.ts';
+import { DEFAULT_LEVELS } from '../../fit/regions.ts';
 import { checkOutputName, outputNameProblem } from '../paths.ts';
 import type { ReportInput } from '../types.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
@@ -36,7 +37,7 @@ export function figureContext(input: ReportInput, warnings: string[]): FigureCon
     input,
     fits: new Map(input.fit.fits.map((f) => [f.sightline, f] as const)),
     profiles: new Map((input.profiles?.sightlines ?? []).map((p) => [p.sightline, p] as const)),
-    levels: levels.length > 0 ? levels : [0.683, 0.954],
+    levels: levels.length > 0 ? levels : [...DEFAULT_LEVELS],
     warnings,
   };
 }
