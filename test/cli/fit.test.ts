@@ -3,14 +3,14 @@
  * observations table, and a model store written with invented analytic
  * abundances (see test/fit/synthetic.ts), so no model has to run.
  */
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { defaultConditions } from '../../src/config/conditions.ts';
 import { ModelStore, type StoredModel } from '../../src/grid/store.ts';
 import { analyticAbundances, logSpaced } from '../fit/synthetic.ts';
 import { runCli } from '../support/cli.ts';
+import { scratch } from '../support/scratch.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const NETWORK = join(ROOT, 'config', 'networks', 'dark-cloud.yaml');
@@ -41,7 +41,7 @@ function writeStore(file: string): void {
 
 /** A project folder: observations (exact columns from the true models, stated errors), column mapping, pipeline, store. */
 function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?: boolean } = {}): string {
-  const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-fit-cli-'));
+  const dir = scratch('hoarfrost-fit-cli-');
   const species = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)'];
   const col = (s: string) => s.replace('(s)', '_ice');
   const header = ['star', 'av', 'av_err', ...species.flatMap((s) => [`N_${col(s)}`, `N_${col(s)}_err`])];
