@@ -3,9 +3,9 @@
  * intervals.csv, residuals.csv, joint_fits.csv, fit.json, profiles.json and,
  * for a map, map.json. Formatting only; the caller writes them.
  */
+import { toCsv, type CsvCell } from '../config/csv.ts';
 import type { ObservationSet } from '../obs/types.ts';
 import { candidateValue } from './candidate-ref.ts';
-import { toCsv, type CsvCell } from './csv.ts';
 import { TABLE_LEVEL } from './regions.ts';
 import {
   AGE_PARAMETER,
