@@ -16,7 +16,7 @@ import {
   type ConditionName,
   type PhysicalConditions,
 } from '../config/conditions.ts';
-import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
+import { throwProblems, UserError, type ErrorLocation } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import type { ConditionAxisSpec, ConditionsSection, ExcludeSection } from '../config/sections/conditions.ts';
 import { binSightlineAv, DEFAULT_SIGHTLINE_AV_STEP } from './sightlines.ts';
@@ -217,8 +217,7 @@ export function expandGrid(spec: GridSpec): ExpandedGrid {
 
   const tieOrder = orderTies(ties, (name, cycle) => fail(['conditions', name, 'tie'], `the ties ${cycle.join(' -> ')} form a loop; one of them needs a value.`));
   checkExcludeNames(spec, fail);
-  if (problems.length === 1) throw problems[0];
-  if (problems.length > 1) throw new UserErrors(`${problems.length} problems in the grid conditions:`, problems);
+  throwProblems(problems, `${problems.length} problems in the grid conditions:`);
 
   const productAxes = axes.filter((a) => a.kind !== 'tie');
   let total = 1;

@@ -5,7 +5,7 @@
  * are collected and reported together; nothing is dropped without a word.
  */
 import { erf } from 'simple-statistics';
-import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
+import { throwProblems, UserError, type ErrorLocation } from '../config/errors.ts';
 import type { ColumnMapping, ObservationFormat, SpeciesColumns } from '../config/sections/observations.ts';
 import { speciesNameProblem } from './species-name.ts';
 import { parseAngle, parseCell, parseFlag, describeCell, type Cell } from './cells.ts';
@@ -54,8 +54,6 @@ export interface TableOptions {
   maxErrorRatio: number;
 }
 
-/** At most this many problems are listed one by one; the rest are counted. */
-const MAX_LISTED_PROBLEMS = 40;
 /** Row warnings of one kind and column listed one by one before the rest are counted. */
 const MAX_WARNINGS_EACH = 5;
 
@@ -303,7 +301,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
   const problems: UserError[] = [];
   const warnings: string[] = [...(table.warnings ?? [])];
   const plan = buildPlan(table, opts, problems, warnings);
-  if (problems.length > 0) throw collect(table.file, problems);
+  throwProblems(problems, `${problems.length} problems:`, { file: table.file });
   const cellAt = (col: number | undefined, row: number): Cell => (col === undefined ? undefined : table.columns[col].values[row]);
   const colName = (col: number) => table.columns[col].name;
   const sightlines: Sightline[] = [];
@@ -488,7 +486,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
     }
     sightlines.push(s);
   }
-  if (problems.length > 0) throw collect(table.file, problems);
+  throwProblems(problems, `${problems.length} problems:`, { file: table.file });
   for (const g of rowWarnings.values()) {
     warnings.push(...g.lines.slice(0, MAX_WARNINGS_EACH));
     const more = g.lines.length - MAX_WARNINGS_EACH;
@@ -511,10 +509,3 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
   return set;
 }
 
-/** All problems of one file in one error; long lists are cut with a count of the rest. */
-export function collect(file: string, problems: UserError[]): UserError {
-  if (problems.length === 1) return problems[0];
-  const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
-  if (problems.length > MAX_LISTED_PROBLEMS) listed.push(new UserError(`... and ${problems.length - MAX_LISTED_PROBLEMS} more problems`));
-  return new UserErrors(`${problems.length} problems:`, listed, { file });
-}

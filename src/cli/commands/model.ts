@@ -12,7 +12,7 @@ import type { TopLevelSpec } from 'vega-lite';
 import type { CommandContext } from '../main.ts';
 import { CONDITION_NAMES, checkConditionValue, defaultConditions, isConditionName, type PhysicalConditions } from '../../config/conditions.ts';
 import { toCsv } from '../../config/csv.ts';
-import { UserError, UserErrors } from '../../config/errors.ts';
+import { throwProblems, UserError } from '../../config/errors.ts';
 import type { Pipeline } from '../../config/pipeline.ts';
 import type { ModelResult } from '../../model/types.ts';
 import { logAxis } from '../../report/figures/axes.ts';
@@ -195,8 +195,7 @@ function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditio
   for (const tie of ties) {
     if (pending.has(tie.name)) problems.push(new UserError(`the ties of ${[...pending].join(', ')} go round in a circle; give one of them a value.`, tie.where));
   }
-  if (problems.length === 1) throw problems[0];
-  if (problems.length > 1) throw new UserErrors(`${problems.length} problems with the physical conditions:`, problems);
+  throwProblems(problems, `${problems.length} problems with the physical conditions:`);
   return conditions;
 }
 
