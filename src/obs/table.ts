@@ -385,6 +385,13 @@ function readId(rd: RowReader, seen: Map<string, string>): string {
   return id;
 }
 
+/** An extinction and its error (either may be absent), checked: the value positive, the error not negative. */
+function checkExtinction(rd: RowReader, name: string, value: number | undefined, error: number | undefined, col: number | undefined, errorCol: number | undefined): void {
+  if (value === undefined) return;
+  if (value <= 0) rd.fail(col, `${name} must be positive, found ${value} mag.`);
+  if (error !== undefined && error < 0) rd.fail(errorCol, `the ${name} error must not be negative, found ${error}.`);
+}
+
 /** A_V and A_K with their errors, checked; A_V from A_K when only A_K is given. */
 function readExtinction(rd: RowReader, s: Sightline, akPerAv: number): void {
   const { plan } = rd;
@@ -392,21 +399,15 @@ function readExtinction(rd: RowReader, s: Sightline, akPerAv: number): void {
   const avErr = rd.extinction(plan.avError, 'the A_V error');
   const ak = rd.extinction(plan.ak, 'A_K');
   const akErr = rd.extinction(plan.akError, 'the A_K error');
+  checkExtinction(rd, 'A_V', av, avErr, plan.av, plan.avError);
   if (av !== undefined) {
-    if (av <= 0) rd.fail(plan.av, `A_V must be positive, found ${av} mag.`);
     s.av = av;
-    if (avErr !== undefined) {
-      if (avErr < 0) rd.fail(plan.avError, `the A_V error must not be negative, found ${avErr}.`);
-      s.avErr = avErr;
-    }
+    if (avErr !== undefined) s.avErr = avErr;
   }
+  checkExtinction(rd, 'A_K', ak, akErr, plan.ak, plan.akError);
   if (ak !== undefined) {
-    if (ak <= 0) rd.fail(plan.ak, `A_K must be positive, found ${ak} mag.`);
     s.ak = ak;
-    if (akErr !== undefined) {
-      if (akErr < 0) rd.fail(plan.akError, `the A_K error must not be negative, found ${akErr}.`);
-      s.akErr = akErr;
-    }
+    if (akErr !== undefined) s.akErr = akErr;
     if (av !== undefined) rd.warn(plan.ak!, 'both', `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
     else {
       // A_V = A_K / (A_K/A_V), A_K/A_V = 0.112 by default (Rieke & Lebofsky 1985).
