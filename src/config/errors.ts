@@ -33,6 +33,27 @@ export class UserErrors extends UserError {
   }
 }
 
+/** Problems listed one by one in a collected error before the rest are counted. */
+export const MAX_LISTED_PROBLEMS = 40;
+
+/**
+ * The problems one pass found (at least one) as one error: a single problem
+ * as itself, several as one UserErrors headed by `summary` (a long list cut
+ * after MAX_LISTED_PROBLEMS, with a count of the rest), so that a user sees
+ * every problem of a file at once.
+ */
+export function collectedError(problems: readonly UserError[], summary: string, location: ErrorLocation = {}): UserError {
+  if (problems.length === 1) return problems[0];
+  const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
+  if (problems.length > MAX_LISTED_PROBLEMS) listed.push(new UserError(`... and ${problems.length - MAX_LISTED_PROBLEMS} more problems`));
+  return new UserErrors(summary, listed, location);
+}
+
+/** Throw the problems one pass found, if any (see collectedError). */
+export function throwProblems(problems: readonly UserError[], summary: string, location: ErrorLocation = {}): void {
+  if (problems.length > 0) throw collectedError(problems, summary, location);
+}
+
 function formatMessage(message: string, loc: ErrorLocation): string {
   const where: string[] = [];
   if (loc.file) {

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { isMap, isSeq, isScalar, LineCounter, parseDocument, type Node } from 'yaml';
 import type { z } from 'zod';
-import { UserError, UserErrors } from './errors.ts';
+import { collectedError, UserError } from './errors.ts';
 
 export type PathKey = string | number;
 
@@ -60,8 +60,7 @@ export function parseYamlText(text: string, file: string): LoadedYaml {
       const what = err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '').replace(/[.:]$/, '');
       return new UserError(`malformed YAML: ${what}${column !== undefined ? ` (column ${column})` : ''}.`, { file, line });
     });
-    if (problems.length === 1) throw problems[0];
-    throw new UserErrors('malformed YAML:', problems, { file });
+    throw collectedError(problems, 'malformed YAML:', { file });
   }
   if (text.trim() === '' || doc.contents === null) {
     throw new UserError('the file is empty; expected a YAML document.', { file });
@@ -107,8 +106,7 @@ export function validate<S extends z.ZodType>(schema: S, loaded: LoadedYaml, bas
   const result = schema.safeParse(data);
   if (result.success) return result.data as z.infer<S>;
   const problems = result.error.issues.flatMap((issue) => issueToErrors(issue, loaded, basePath));
-  if (problems.length === 1) throw problems[0];
-  throw new UserErrors(`${problems.length} problems in ${loaded.file}:`, problems, { file: loaded.file });
+  throw collectedError(problems, `${problems.length} problems in ${loaded.file}:`, { file: loaded.file });
 }
 
 function describeValue(v: unknown): string {

@@ -3,9 +3,10 @@
  * intervals.csv, residuals.csv, joint_fits.csv, fit.json, profiles.json and,
  * for a map, map.json. Formatting only; the caller writes them.
  */
+import { toCsv, type CsvCell } from '../config/csv.ts';
 import type { ObservationSet } from '../obs/types.ts';
 import { candidateValue } from './candidate-ref.ts';
-import { toCsv, type CsvCell } from './csv.ts';
+import { TABLE_LEVEL } from './regions.ts';
 import {
   AGE_PARAMETER,
   FIT_OUTPUT_FILES,
@@ -21,9 +22,6 @@ import {
 } from './types.ts';
 
 const DENSITY = 'density';
-/** Level of the bounds in best_fits.csv (as TABLE_LEVEL in stage.ts). */
-const TABLE_LEVEL = 0.683;
-
 function tableInterval(fit: SightlineFit, parameter: string): ParameterInterval | undefined {
   return fit.intervals.find((iv) => iv.parameter === parameter && iv.level === TABLE_LEVEL);
 }

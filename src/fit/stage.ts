@@ -6,7 +6,7 @@
  * writes `files` under the output folder.
  */
 import type { FitSection } from '../config/sections/fit.ts';
-import { UserError, UserErrors } from '../config/errors.ts';
+import { throwProblems, UserError } from '../config/errors.ts';
 import type { ObservationSet, ObservedQuantity } from '../obs/types.ts';
 import { buildAxes, type GridAxes } from './axes.ts';
 import { MODEL_CAUTIONS } from './cautions.ts';
@@ -17,7 +17,7 @@ import { fitJoint } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
 import { buildModelQuantities, collectTerms, termKey } from './model-quantities.ts';
 import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
-import { regionLevels } from './regions.ts';
+import { regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
 import {
   AGE_PARAMETER,
@@ -30,12 +30,10 @@ import {
   type SightlineProfiles,
 } from './types.ts';
 
-/** The level of the bounds in best_fits.csv and of the map interval images: 68.3%, one Gaussian sigma (common practice); always computed. */
-export const TABLE_LEVEL = 0.683;
 /** A p-value above this, with more than one dof, means the errors are larger than the misfit (common practice: the other tail of the chi-square test). */
 const SUSPICIOUSLY_GOOD_P = 0.99;
-/** Problems listed one by one before the rest are counted. */
-const MAX_LISTED_PROBLEMS = 20;
+/** Unfitted sightlines named in the warning before the rest are elided. */
+const MAX_LISTED_SIGHTLINES = 20;
 
 /** Where the pipeline file is, for located errors (a LoadedYaml fits). */
 export interface FitSource {
@@ -66,14 +64,6 @@ function located(source: FitSource | undefined, path: (string | number)[], messa
   return new UserError(message, { file: source?.file, line: source?.lineOf?.(path), field: path.join('.') });
 }
 
-function throwAll(problems: UserError[], summary: string): void {
-  if (problems.length === 0) return;
-  if (problems.length === 1) throw problems[0];
-  const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
-  const rest = problems.length - listed.length;
-  throw new UserErrors(`${summary}${rest > 0 ? ` (the first ${listed.length} of ${problems.length} shown)` : ''}:`, listed);
-}
-
 function checkOptions(section: FitSection, axes: GridAxes, table: CandidateTable, source: FitSource | undefined): void {
   const known = [...table.parameterNames, AGE_PARAMETER];
   const problems: UserError[] = [];
@@ -89,7 +79,7 @@ function checkOptions(section: FitSection, axes: GridAxes, table: CandidateTable
       if (!axes.byName.has(s)) unknown(s, ['fit', 'joint', i, 'share', k]);
     });
   });
-  throwAll(problems, 'the fit section names parameters the model grid lacks');
+  throwProblems(problems, 'the fit section names parameters the model grid lacks:');
 }
 
 /**
@@ -116,14 +106,14 @@ function checkRatioReferences(observations: ObservationSet, quantities: readonly
       );
     }
   }
-  throwAll(problems, 'ratios to reference species that have only limits');
+  throwProblems(problems, 'ratios to reference species that have only limits:');
 }
 
 function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
   const broken = quantities.filter((q) => q.kind === 'detection' && Number.isFinite(q.log10) && !(q.sigmaLoDex >= 0 && q.sigmaHiDex >= 0 && Number.isFinite(q.sigmaLoDex) && Number.isFinite(q.sigmaHiDex)));
-  throwAll(
+  throwProblems(
     broken.map((q) => new UserError(`sightline ${q.sightline}: ${q.label} has error ${q.sigmaLoDex}/${q.sigmaHiDex} dex; an error must be a finite number, 0 or more. Check its error column.`, { field: q.label })),
-    'detections without a usable error',
+    'detections without a usable error:',
   );
   const floors = termFloors(section, quantities);
   const floorOf = (q: ObservedQuantity) => floors.get(termKey(q.numerator, q.denominator)) ?? section.model_sigma_dex;
@@ -193,7 +183,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     if (first !== undefined) duplicates.push(new UserError(`sightline id '${s.id}' is used twice (${first} and ${where}); each sightline needs its own id for its fit. Rename one.`, { file: s.source.file, row: s.source.row, line: s.source.line }));
     else seen.set(s.id, where);
   }
-  throwAll(duplicates, 'sightline ids used more than once');
+  throwProblems(duplicates, 'sightline ids used more than once:');
   const byId = new Map<string, ObservedQuantity[]>();
   for (const q of quantities) {
     const list = byId.get(q.sightline);
@@ -217,7 +207,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     vectors.push(v);
   }
   if (unfitted.length > 0) {
-    warnings.push(`${unfitted.length} sightline(s) have none of the fitted quantities and are not fitted: ${unfitted.slice(0, MAX_LISTED_PROBLEMS).join(', ')}${unfitted.length > MAX_LISTED_PROBLEMS ? ', ...' : ''}.`);
+    warnings.push(`${unfitted.length} sightline(s) have none of the fitted quantities and are not fitted: ${unfitted.slice(0, MAX_LISTED_SIGHTLINES).join(', ')}${unfitted.length > MAX_LISTED_SIGHTLINES ? ', ...' : ''}.`);
   }
 
   const fits: SightlineFit[] = [];
@@ -271,7 +261,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
       members.push(v);
     });
     if (members.length < 2 && problems.length === 0) problems.push(located(source, ['fit', 'joint', i, 'sightlines'], `group ${g.name} needs at least two fitted sightlines, found ${members.length}.`));
-    throwAll(problems, `joint group ${g.name}`);
+    throwProblems(problems, `joint group ${g.name}:`);
     const out = fitJoint(ctx, g.name, members, g.share);
     if (!Number.isFinite(out.fit.chi2)) {
       throw located(source, ['fit', 'joint', i], `the members of group ${g.name} have no common value of ${g.share.join(' and ')} among the models open to them (held parameters differ); share another parameter or split the group.`);

@@ -6,7 +6,7 @@
  */
 import { mkdirSync, readdirSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
-import { UserError, UserErrors } from '../config/errors.ts';
+import { throwProblems, UserError } from '../config/errors.ts';
 import { mainStoreFile, type GridPlan } from './plan.ts';
 import { acquireRunLock } from './run-lock.ts';
 import { ModelStore } from './store.ts';
@@ -92,8 +92,7 @@ export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStor
       shard.close();
     }
   }
-  if (problems.length === 1) throw problems[0];
-  if (problems.length > 1) throw new UserErrors(`${problems.length} shard stores cannot be merged; nothing was copied:`, problems);
+  throwProblems(problems, `${problems.length} shard stores cannot be merged; nothing was copied:`);
 
   mkdirSync(dirname(storeFile), { recursive: true });
   const release = acquireRunLock(storeFile);

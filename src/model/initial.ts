@@ -20,7 +20,7 @@ import { existsSync, readdirSync } from 'node:fs';
 import { dirname, isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
-import { UserError, UserErrors } from '../config/errors.ts';
+import { throwProblems, UserError } from '../config/errors.ts';
 import { loadYamlFile, validate, type LoadedYaml } from '../config/yaml.ts';
 import type { Network } from '../chem/network-types.ts';
 
@@ -125,8 +125,7 @@ export function loadInitialComposition(spec: string | Record<string, number>, ba
     charge += network.species[i].charge * value;
     result[name] = value;
   }
-  if (problems.length === 1) throw problems[0];
-  if (problems.length > 1) throw new UserErrors(`${problems.length} problems with the initial composition:`, problems, { file: comp.file });
+  throwProblems(problems, `${problems.length} problems with the initial composition:`, { file: comp.file });
   if (!(ELECTRON in result) && charge !== 0) {
     if (!network.speciesIndex.has(ELECTRON) || charge < 0) {
       throw new UserError(

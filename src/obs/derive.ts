@@ -26,10 +26,9 @@
  *   lower limit); two limits of the same kind bound nothing and are reported
  *   as unusable.
  */
-import { UserError } from '../config/errors.ts';
+import { throwProblems, UserError } from '../config/errors.ts';
 import type { ObservationsSection } from '../config/sections/observations.ts';
 import { isIceName } from './species-name.ts';
-import { collect } from './table.ts';
 import type { Measurement, MeasurementKind, ObservationSet, ObservedQuantity, Sightline } from './types.ts';
 
 export interface WantedQuantity {
@@ -176,6 +175,6 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
     if (noRef.length > 0) warnings.push(`${set.file}: the reference '${ref}' is not observed toward ${names(noRef)}; no ratio ${w.species}/${ref} there.`);
     if (unbounded.length > 0) warnings.push(`${set.file}: ${w.species}/${ref} is unusable toward ${names(unbounded)}: two limits of the same kind bound nothing.`);
   }
-  if (problems.length > 0) throw collect(set.file, problems);
+  throwProblems(problems, `${problems.length} problems:`, { file: set.file });
   return { quantities, warnings };
 }

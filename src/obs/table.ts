@@ -5,7 +5,7 @@
  * are collected and reported together; nothing is dropped without a word.
  */
 import { erf } from 'simple-statistics';
-import { UserError, UserErrors, type ErrorLocation } from '../config/errors.ts';
+import { throwProblems, UserError, type ErrorLocation } from '../config/errors.ts';
 import type { ColumnMapping, ObservationFormat, SpeciesColumns } from '../config/sections/observations.ts';
 import { speciesNameProblem } from './species-name.ts';
 import { parseAngle, parseCell, parseFlag, describeCell, type Cell } from './cells.ts';
@@ -54,8 +54,6 @@ export interface TableOptions {
   maxErrorRatio: number;
 }
 
-/** At most this many problems are listed one by one; the rest are counted. */
-const MAX_LISTED_PROBLEMS = 40;
 /** Row warnings of one kind and column listed one by one before the rest are counted. */
 const MAX_WARNINGS_EACH = 5;
 
@@ -299,201 +297,267 @@ function confidenceOf(v: number): number | undefined {
   return undefined;
 }
 
+/**
+ * The reading of one table, row by row: where the row being read is, and the
+ * problems and warnings found at it. Made once per table and moved from row
+ * to row (nothing is allocated per cell for the bookkeeping).
+ */
+class RowReader {
+  readonly problems: UserError[] = [];
+  /** Row warnings grouped by column and kind, so a map with many such pixels gives a few lines and a count. */
+  private readonly rowWarnings = new Map<string, { col: number; lines: string[] }>();
+  /** The row being read, and where it is for messages (set once the row is known not to be blank). */
+  r = 0;
+  place: RowPlace;
+
+  constructor(
+    readonly table: RawTable,
+    readonly plan: Plan,
+  ) {
+    this.place = { text: '', loc: {}, source: { file: table.file } };
+  }
+
+  cell(col: number | undefined): Cell {
+    return col === undefined ? undefined : this.table.columns[col].values[this.r];
+  }
+
+  colName(col: number): string {
+    return this.table.columns[col].name;
+  }
+
+  isBlank(c: Cell): boolean {
+    return c === null || c === undefined || (typeof c === 'number' ? Number.isNaN(c) : parseCell(c).kind === 'blank');
+  }
+
+  fail(col: number | undefined, msg: string): void {
+    this.problems.push(new UserError(this.table.map ? `${this.place.text}: ${msg}` : msg, { ...this.place.loc, field: col === undefined ? undefined : this.colName(col) }));
+  }
+
+  warn(col: number, kind: string, msg: string): void {
+    const key = `${col}\u0000${kind}`;
+    const g = this.rowWarnings.get(key) ?? { col, lines: [] };
+    this.rowWarnings.set(key, g);
+    g.lines.push(`${this.table.file}, ${this.place.text}, ${this.table.map ? 'image' : 'column'} '${this.colName(col)}': ${msg}`);
+  }
+
+  /** A plain number or blank; anything else is a problem at (row, column). */
+  plainNumber(col: number | undefined, what: string): number | undefined {
+    if (col === undefined) return undefined;
+    const raw = this.cell(col);
+    const p = parseCell(raw);
+    if (p.kind === 'blank') return undefined;
+    if (p.kind === 'bad') return this.fail(col, `cannot read ${describeCell(raw)} as ${what}; expected a number such as 1.2e17, or a blank cell.`), undefined;
+    if (p.kind !== 'detection') return this.fail(col, `${what} cannot be a limit (found ${describeCell(raw)}).`), undefined;
+    return p.value;
+  }
+
+  /** An extinction in magnitudes (the column's unit factor applied). */
+  extinction(col: number | undefined, what: string): number | undefined {
+    const v = this.plainNumber(col, what);
+    return v === undefined || col === undefined ? v : v * (this.plan.extinctionFactors.get(col) ?? 1);
+  }
+
+  /** The warnings, at most MAX_WARNINGS_EACH of each kind and column, the rest counted. */
+  warnings(): string[] {
+    const out: string[] = [];
+    for (const g of this.rowWarnings.values()) {
+      out.push(...g.lines.slice(0, MAX_WARNINGS_EACH));
+      const more = g.lines.length - MAX_WARNINGS_EACH;
+      if (more > 0) out.push(`${this.table.file}: ... and ${more} more ${this.table.map ? 'pixels' : 'rows'} with the same warning for ${this.table.map ? 'image' : 'column'} '${this.colName(g.col)}'.`);
+    }
+    return out;
+  }
+}
+
+/** The sightline's name: the pixel of a map, the id cell, or (with a warning) the row's place; a name used twice is a problem. */
+function readId(rd: RowReader, seen: Map<string, string>): string {
+  const { place, plan } = rd;
+  let id: string;
+  const idCell = rd.cell(plan.id);
+  if (place.pixel) id = `${place.pixel.x},${place.pixel.y}`;
+  else if (idCell === undefined || idCell === null || String(idCell).trim() === '') {
+    id = place.text.replace(/\s+/g, '-');
+    if (plan.id !== undefined) rd.warn(plan.id, 'unnamed', `the sightline has no name; it is called '${id}' in the results. Give it a name in this column.`);
+  } else id = String(idCell).trim();
+  const prev = seen.get(id);
+  if (prev !== undefined) rd.fail(plan.id, `sightline '${id}' appears twice (also at ${prev}); give every sightline its own name.`);
+  seen.set(id, place.text);
+  return id;
+}
+
+/** An extinction and its error (either may be absent), checked: the value positive, the error not negative. */
+function checkExtinction(rd: RowReader, name: string, value: number | undefined, error: number | undefined, col: number | undefined, errorCol: number | undefined): void {
+  if (value === undefined) return;
+  if (value <= 0) rd.fail(col, `${name} must be positive, found ${value} mag.`);
+  if (error !== undefined && error < 0) rd.fail(errorCol, `the ${name} error must not be negative, found ${error}.`);
+}
+
+/** A_V and A_K with their errors, checked; A_V from A_K when only A_K is given. */
+function readExtinction(rd: RowReader, s: Sightline, akPerAv: number): void {
+  const { plan } = rd;
+  const av = rd.extinction(plan.av, 'A_V');
+  const avErr = rd.extinction(plan.avError, 'the A_V error');
+  const ak = rd.extinction(plan.ak, 'A_K');
+  const akErr = rd.extinction(plan.akError, 'the A_K error');
+  checkExtinction(rd, 'A_V', av, avErr, plan.av, plan.avError);
+  if (av !== undefined) {
+    s.av = av;
+    if (avErr !== undefined) s.avErr = avErr;
+  }
+  checkExtinction(rd, 'A_K', ak, akErr, plan.ak, plan.akError);
+  if (ak !== undefined) {
+    s.ak = ak;
+    if (akErr !== undefined) s.akErr = akErr;
+    if (av !== undefined) rd.warn(plan.ak!, 'both', `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
+    else {
+      // A_V = A_K / (A_K/A_V), A_K/A_V = 0.112 by default (Rieke & Lebofsky 1985).
+      s.av = ak / akPerAv;
+      if (akErr !== undefined) s.avErr = akErr / akPerAv;
+    }
+  }
+}
+
+/** Right ascension and declination in degrees, from degrees or sexagesimal text. */
+function readPosition(rd: RowReader, s: Sightline): void {
+  for (const [col, axis] of [[rd.plan.ra, 'ra'], [rd.plan.dec, 'dec']] as const) {
+    const raw = rd.cell(col);
+    if (col === undefined || rd.isBlank(raw)) continue;
+    const deg = parseAngle(raw, axis);
+    if (deg === undefined) rd.fail(col, `cannot read ${describeCell(raw)} as ${axis === 'ra' ? 'a right ascension' : 'a declination'}; expected degrees (70.1021) or sexagesimal text (${axis === 'ra' ? '04:40:24.5, in hours' : '+25:48:51, in degrees'}).`);
+    else s[axis] = deg;
+  }
+}
+
+/** The kind of the value once its limit flag column is read: undefined (a problem was reported) when the flag is unreadable or disagrees with the value. */
+function limitKind(rd: RowReader, sp: SpeciesPlan, valueCol: number, kind: Measurement['kind']): Measurement['kind'] | undefined {
+  if (sp.limit === undefined) return kind;
+  const flagCell = rd.cell(sp.limit);
+  const f = parseFlag(flagCell);
+  if (f === 'bad') {
+    rd.fail(sp.limit, `cannot read the limit flag ${describeCell(flagCell)}; expected '<' (upper limit), '>' (lower limit) or blank (detection).`);
+    return undefined;
+  }
+  if (f === 'detection') return kind;
+  if (kind !== 'detection' && kind !== f) {
+    rd.fail(valueCol, `the value ${describeCell(rd.cell(valueCol))} and the limit flag ${describeCell(flagCell)} ('${rd.colName(sp.limit)}') disagree.`);
+    return undefined;
+  }
+  return f;
+}
+
+/** The confidence of a limit: its confidence cell, else the mapping's limit_confidence. */
+function limitConfidence(rd: RowReader, sp: SpeciesPlan): number | undefined {
+  let conf = sp.limitConfidence;
+  if (sp.confidence !== undefined) {
+    const c = rd.plainNumber(sp.confidence, 'a confidence level');
+    if (c !== undefined) {
+      conf = confidenceOf(c);
+      if (conf === undefined) rd.fail(sp.confidence, `a confidence level must be a fraction in (0, 1) or a number of sigma (>= 1), found ${c}.`);
+    }
+  }
+  return conf;
+}
+
+/**
+ * One species' cells of the row as a measurement: value, limit flag, errors
+ * and confidence, each checked. Undefined when the value is blank (not
+ * observed) or a problem was reported.
+ */
+function readMeasurement(rd: RowReader, sp: SpeciesPlan, maxErrorRatio: number): Measurement | undefined {
+  const valueCol = (sp.value ?? sp.tau)!;
+  const raw = rd.cell(valueCol);
+  const p = parseCell(raw);
+  if (p.kind === 'blank') {
+    for (const c of [sp.error, sp.errorLo, sp.errorHi, sp.tauError]) {
+      if (c !== undefined && parseCell(rd.cell(c)).kind !== 'blank') rd.warn(c, 'orphan-error', `an error is given but the value ('${rd.colName(valueCol)}') is blank; read as not observed.`);
+    }
+    return undefined;
+  }
+  if (p.kind === 'bad') {
+    rd.fail(valueCol, `cannot read ${describeCell(raw)} as a ${sp.tau !== undefined ? 'optical depth' : 'column density'}; expected a number (1.2e17), an upper limit (<1.2e17), a lower limit (>1.2e17), or a blank cell for not observed.`);
+    return undefined;
+  }
+  const kind = limitKind(rd, sp, valueCol, p.kind);
+  if (kind === undefined) return undefined;
+  const factor = sp.factors.get(valueCol) ?? 1;
+  // N = tau_int / A for optical depths (physics.md section 5).
+  const toColumn = (x: number) => (sp.band ? x / sp.band.strength : x);
+  const value = toColumn(p.value * factor);
+  if (!(p.value > 0)) {
+    rd.fail(valueCol, `a ${sp.tau !== undefined ? 'optical depth' : 'column density'} must be positive, found ${describeCell(raw)}. Leave the cell blank if '${sp.name}' was not observed, or give an upper limit (<value).`);
+    return undefined;
+  }
+  const errCols = sp.tau !== undefined ? [sp.tauError] : [sp.error, sp.errorLo, sp.errorHi];
+  const rawErrs = errCols.map((c) => {
+    const v = rd.plainNumber(c, 'an error');
+    return v === undefined || c === undefined ? undefined : v * (sp.factors.get(c) ?? 1);
+  });
+  const errs = rawErrs.map((e) => (e === undefined ? undefined : toColumn(e)));
+  const given = errCols.filter((c, i) => c !== undefined && errs[i] !== undefined) as number[];
+  const meas: Measurement = { kind, value };
+  if (kind !== 'detection') {
+    if (given.length > 0) {
+      rd.fail(given[0], `'${sp.name}' is ${kind === 'upper' ? 'an upper' : 'a lower'} limit (${describeCell(raw)}) but has an error (${describeCell(rd.cell(given[0]))}). A limit carries no error: blank the error cell, or give the value as a detection.`);
+      return undefined;
+    }
+    const conf = limitConfidence(rd, sp);
+    if (conf !== undefined) meas.confidence = conf;
+  } else {
+    const [lo, hi] = sp.tau !== undefined || sp.error !== undefined ? [errs[0], errs[0]] : [errs[1], errs[2]];
+    if (lo === undefined || hi === undefined) {
+      const col = errCols.find((c) => c !== undefined);
+      rd.fail(col ?? valueCol, `the detection ${describeCell(raw)} of '${sp.name}' has no error. Give its 1-sigma error${col === undefined ? ` (map an error ${rd.table.map ? 'image' : 'column'} for '${sp.name}')` : ''}, or mark the value as a limit (<value).`);
+      return undefined;
+    }
+    if (!(lo > 0) || !(hi > 0)) {
+      rd.fail(errCols.find((c, i) => c !== undefined && !((errs[i] ?? 0) > 0)) ?? valueCol, `errors must be positive, found ${lo === hi ? lo : `${lo} below and ${hi} above`}.`);
+      return undefined;
+    }
+    const biggest = Math.max(lo, hi);
+    if (biggest > maxErrorRatio * value) rd.warn(given[given.length - 1], 'error-ratio', `the error (${biggest.toPrecision(3)}) is more than ${maxErrorRatio} times the value (${value.toPrecision(3)}) of '${sp.name}'; check the units or the exponent.`);
+    meas.errLo = lo;
+    meas.errHi = hi;
+  }
+  if (sp.band) {
+    meas.fromTau = { tauInt: p.value * factor, band: sp.band.name, bandStrength: sp.band.strength };
+    if (rawErrs[0] !== undefined) meas.fromTau.tauIntErr = rawErrs[0];
+  }
+  return meas;
+}
+
 export function tableToObservations(table: RawTable, opts: TableOptions): ObservationSet {
-  const problems: UserError[] = [];
+  const planProblems: UserError[] = [];
   const warnings: string[] = [...(table.warnings ?? [])];
-  const plan = buildPlan(table, opts, problems, warnings);
-  if (problems.length > 0) throw collect(table.file, problems);
-  const cellAt = (col: number | undefined, row: number): Cell => (col === undefined ? undefined : table.columns[col].values[row]);
-  const colName = (col: number) => table.columns[col].name;
+  const plan = buildPlan(table, opts, planProblems, warnings);
+  throwProblems(planProblems, `${planProblems.length} problems:`, { file: table.file });
+  const rd = new RowReader(table, plan);
   const sightlines: Sightline[] = [];
   const seen = new Map<string, string>();
   let extinctionOnly = 0;
   const usedCols = [...plan.used];
-  const isBlank = (c: Cell) => c === null || c === undefined || (typeof c === 'number' ? Number.isNaN(c) : parseCell(c).kind === 'blank');
+  const rowBlank = (c: number) => rd.isBlank(rd.cell(c));
+  const speciesBlank = (sp: SpeciesPlan) => rd.isBlank(rd.cell(sp.value ?? sp.tau));
 
-  // The row being read; the helpers below report problems at it. They are made once, not per row.
-  let r = 0;
-  let place: RowPlace = { text: '', loc: {}, source: { file: table.file } };
-  const fail = (col: number | undefined, msg: string) => {
-    problems.push(new UserError(table.map ? `${place.text}: ${msg}` : msg, { ...place.loc, field: col === undefined ? undefined : colName(col) }));
-  };
-  // Row warnings are grouped by column and kind, so a map with many such pixels gives a few lines and a count.
-  const rowWarnings = new Map<string, { col: number; lines: string[] }>();
-  const warn = (col: number, kind: string, msg: string) => {
-    const key = `${col}\u0000${kind}`;
-    const g = rowWarnings.get(key) ?? { col, lines: [] };
-    rowWarnings.set(key, g);
-    g.lines.push(`${table.file}, ${place.text}, ${table.map ? 'image' : 'column'} '${colName(col)}': ${msg}`);
-  };
-  // A plain number or blank; anything else is a problem at (row, column).
-  const plainNumber = (col: number | undefined, what: string): number | undefined => {
-    if (col === undefined) return undefined;
-    const raw = cellAt(col, r);
-    const p = parseCell(raw);
-    if (p.kind === 'blank') return undefined;
-    if (p.kind === 'bad') return fail(col, `cannot read ${describeCell(raw)} as ${what}; expected a number such as 1.2e17, or a blank cell.`), undefined;
-    if (p.kind !== 'detection') return fail(col, `${what} cannot be a limit (found ${describeCell(raw)}).`), undefined;
-    return p.value;
-  };
-  const ext = (col: number | undefined, what: string) => {
-    const v = plainNumber(col, what);
-    return v === undefined || col === undefined ? v : v * (plan.extinctionFactors.get(col) ?? 1);
-  };
-  const rowBlank = (c: number) => isBlank(cellAt(c, r));
-  const speciesBlank = (sp: SpeciesPlan) => isBlank(cellAt(sp.value ?? sp.tau, r));
-
-  for (r = 0; r < table.nrows; r++) {
+  for (let r = 0; r < table.nrows; r++) {
+    rd.r = r;
     if (usedCols.every(rowBlank)) continue;
     if (table.map && plan.species.every(speciesBlank)) {
       extinctionOnly++;
       continue;
     }
-    place = table.place(r);
-
-    let id: string;
-    const idCell = cellAt(plan.id, r);
-    if (place.pixel) id = `${place.pixel.x},${place.pixel.y}`;
-    else if (idCell === undefined || idCell === null || String(idCell).trim() === '') {
-      id = place.text.replace(/\s+/g, '-');
-      if (plan.id !== undefined) warn(plan.id, 'unnamed', `the sightline has no name; it is called '${id}' in the results. Give it a name in this column.`);
-    } else id = String(idCell).trim();
-    const prev = seen.get(id);
-    if (prev !== undefined) fail(plan.id, `sightline '${id}' appears twice (also at ${prev}); give every sightline its own name.`);
-    seen.set(id, place.text);
-
-    const s: Sightline = { id, columns: {}, source: place.source };
-    if (place.pixel) s.pixel = place.pixel;
-    const av = ext(plan.av, 'A_V');
-    const avErr = ext(plan.avError, 'the A_V error');
-    const ak = ext(plan.ak, 'A_K');
-    const akErr = ext(plan.akError, 'the A_K error');
-    if (av !== undefined) {
-      if (av <= 0) fail(plan.av, `A_V must be positive, found ${av} mag.`);
-      s.av = av;
-      if (avErr !== undefined) {
-        if (avErr < 0) fail(plan.avError, `the A_V error must not be negative, found ${avErr}.`);
-        s.avErr = avErr;
-      }
-    }
-    if (ak !== undefined) {
-      if (ak <= 0) fail(plan.ak, `A_K must be positive, found ${ak} mag.`);
-      s.ak = ak;
-      if (akErr !== undefined) {
-        if (akErr < 0) fail(plan.akError, `the A_K error must not be negative, found ${akErr}.`);
-        s.akErr = akErr;
-      }
-      if (av !== undefined) warn(plan.ak!, 'both', `both A_V (${av}) and A_K (${ak}) are given; A_V is used.`);
-      else {
-        // A_V = A_K / (A_K/A_V), A_K/A_V = 0.112 by default (Rieke & Lebofsky 1985).
-        s.av = ak / opts.akPerAv;
-        if (akErr !== undefined) s.avErr = akErr / opts.akPerAv;
-      }
-    }
-    for (const [col, axis] of [[plan.ra, 'ra'], [plan.dec, 'dec']] as const) {
-      const raw = cellAt(col, r);
-      if (col === undefined || isBlank(raw)) continue;
-      const deg = parseAngle(raw, axis);
-      if (deg === undefined) fail(col, `cannot read ${describeCell(raw)} as ${axis === 'ra' ? 'a right ascension' : 'a declination'}; expected degrees (70.1021) or sexagesimal text (${axis === 'ra' ? '04:40:24.5, in hours' : '+25:48:51, in degrees'}).`);
-      else s[axis] = deg;
-    }
-
+    rd.place = table.place(r);
+    const s: Sightline = { id: readId(rd, seen), columns: {}, source: rd.place.source };
+    if (rd.place.pixel) s.pixel = rd.place.pixel;
+    readExtinction(rd, s, opts.akPerAv);
+    readPosition(rd, s);
     for (const sp of plan.species) {
-      const valueCol = (sp.value ?? sp.tau)!;
-      const raw = cellAt(valueCol, r);
-      const p = parseCell(raw);
-      if (p.kind === 'blank') {
-        for (const c of [sp.error, sp.errorLo, sp.errorHi, sp.tauError]) {
-          if (c !== undefined && parseCell(cellAt(c, r)).kind !== 'blank') warn(c, 'orphan-error', `an error is given but the value ('${colName(valueCol)}') is blank; read as not observed.`);
-        }
-        continue;
-      }
-      if (p.kind === 'bad') {
-        fail(valueCol, `cannot read ${describeCell(raw)} as a ${sp.tau !== undefined ? 'optical depth' : 'column density'}; expected a number (1.2e17), an upper limit (<1.2e17), a lower limit (>1.2e17), or a blank cell for not observed.`);
-        continue;
-      }
-      let kind = p.kind;
-      if (sp.limit !== undefined) {
-        const flagCell = cellAt(sp.limit, r);
-        const f = parseFlag(flagCell);
-        if (f === 'bad') {
-          fail(sp.limit, `cannot read the limit flag ${describeCell(flagCell)}; expected '<' (upper limit), '>' (lower limit) or blank (detection).`);
-          continue;
-        }
-        if (f !== 'detection') {
-          if (kind !== 'detection' && kind !== f) {
-            fail(valueCol, `the value ${describeCell(raw)} and the limit flag ${describeCell(flagCell)} ('${colName(sp.limit)}') disagree.`);
-            continue;
-          }
-          kind = f;
-        }
-      }
-      const factor = sp.factors.get(valueCol) ?? 1;
-      // N = tau_int / A for optical depths (physics.md section 5).
-      const toColumn = (x: number) => (sp.band ? x / sp.band.strength : x);
-      const value = toColumn(p.value * factor);
-      if (!(p.value > 0)) {
-        fail(valueCol, `a ${sp.tau !== undefined ? 'optical depth' : 'column density'} must be positive, found ${describeCell(raw)}. Leave the cell blank if '${sp.name}' was not observed, or give an upper limit (<value).`);
-        continue;
-      }
-      const errCols = sp.tau !== undefined ? [sp.tauError] : [sp.error, sp.errorLo, sp.errorHi];
-      const rawErrs = errCols.map((c) => {
-        const v = plainNumber(c, 'an error');
-        return v === undefined || c === undefined ? undefined : v * (sp.factors.get(c) ?? 1);
-      });
-      const errs = rawErrs.map((e) => (e === undefined ? undefined : toColumn(e)));
-      const given = errCols.filter((c, i) => c !== undefined && errs[i] !== undefined) as number[];
-      const meas: Measurement = { kind, value };
-      if (kind !== 'detection') {
-        if (given.length > 0) {
-          fail(given[0], `'${sp.name}' is ${kind === 'upper' ? 'an upper' : 'a lower'} limit (${describeCell(raw)}) but has an error (${describeCell(cellAt(given[0], r))}). A limit carries no error: blank the error cell, or give the value as a detection.`);
-          continue;
-        }
-        let conf = sp.limitConfidence;
-        if (sp.confidence !== undefined) {
-          const c = plainNumber(sp.confidence, 'a confidence level');
-          if (c !== undefined) {
-            conf = confidenceOf(c);
-            if (conf === undefined) fail(sp.confidence, `a confidence level must be a fraction in (0, 1) or a number of sigma (>= 1), found ${c}.`);
-          }
-        }
-        if (conf !== undefined) meas.confidence = conf;
-      } else {
-        let lo: number | undefined;
-        let hi: number | undefined;
-        if (sp.tau !== undefined || sp.error !== undefined) lo = hi = errs[0];
-        else {
-          lo = errs[1];
-          hi = errs[2];
-        }
-        if (lo === undefined || hi === undefined) {
-          const col = errCols.find((c) => c !== undefined);
-          fail(col ?? valueCol, `the detection ${describeCell(raw)} of '${sp.name}' has no error. Give its 1-sigma error${col === undefined ? ` (map an error ${table.map ? 'image' : 'column'} for '${sp.name}')` : ''}, or mark the value as a limit (<value).`);
-          continue;
-        }
-        if (!(lo > 0) || !(hi > 0)) {
-          fail(errCols.find((c, i) => c !== undefined && !((errs[i] ?? 0) > 0)) ?? valueCol, `errors must be positive, found ${lo === hi ? lo : `${lo} below and ${hi} above`}.`);
-          continue;
-        }
-        const biggest = Math.max(lo, hi);
-        if (biggest > opts.maxErrorRatio * value) warn(given[given.length - 1], 'error-ratio', `the error (${biggest.toPrecision(3)}) is more than ${opts.maxErrorRatio} times the value (${value.toPrecision(3)}) of '${sp.name}'; check the units or the exponent.`);
-        meas.errLo = lo;
-        meas.errHi = hi;
-      }
-      if (sp.band) {
-        meas.fromTau = { tauInt: p.value * factor, band: sp.band.name, bandStrength: sp.band.strength };
-        if (rawErrs[0] !== undefined) meas.fromTau.tauIntErr = rawErrs[0];
-      }
-      s.columns[sp.name] = meas;
+      const meas = readMeasurement(rd, sp, opts.maxErrorRatio);
+      if (meas) s.columns[sp.name] = meas;
     }
     sightlines.push(s);
   }
-  if (problems.length > 0) throw collect(table.file, problems);
-  for (const g of rowWarnings.values()) {
-    warnings.push(...g.lines.slice(0, MAX_WARNINGS_EACH));
-    const more = g.lines.length - MAX_WARNINGS_EACH;
-    if (more > 0) warnings.push(`${table.file}: ... and ${more} more ${table.map ? 'pixels' : 'rows'} with the same warning for ${table.map ? 'image' : 'column'} '${colName(g.col)}'.`);
-  }
+  throwProblems(rd.problems, `${rd.problems.length} problems:`, { file: table.file });
+  warnings.push(...rd.warnings());
   if (!sightlines.some((s) => Object.keys(s.columns).length > 0)) {
     const what = table.map ? 'pixel' : 'row';
     throw new UserError(table.nrows === 0 ? `the table has no rows.` : `none of its ${table.nrows} ${what}${table.nrows > 1 ? 's' : ''} holds a column density; every species value is blank or not observed.`, { file: table.file });
@@ -509,12 +573,4 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
   };
   if (table.map) set.map = table.map;
   return set;
-}
-
-/** All problems of one file in one error; long lists are cut with a count of the rest. */
-export function collect(file: string, problems: UserError[]): UserError {
-  if (problems.length === 1) return problems[0];
-  const listed = problems.slice(0, MAX_LISTED_PROBLEMS);
-  if (problems.length > MAX_LISTED_PROBLEMS) listed.push(new UserError(`... and ${problems.length - MAX_LISTED_PROBLEMS} more problems`));
-  return new UserErrors(`${problems.length} problems:`, listed, { file });
 }

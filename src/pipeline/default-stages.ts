@@ -9,6 +9,7 @@
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { basename, dirname, extname, join, relative, sep } from 'node:path';
 import { isTableFile } from '../chem/network-table.ts';
+import { toCsv } from '../config/csv.ts';
 import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
@@ -130,16 +131,9 @@ function portable(set: ObservationSet, baseDir: string): ObservationSet {
   };
 }
 
-function csvCell(v: string | number | undefined): string {
-  if (v === undefined) return '';
-  const s = String(v);
-  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
 function quantitiesCsv(quantities: readonly ObservedQuantity[]): string {
   const header = ['sightline', 'quantity', 'kind', 'log10', 'sigma_lo_dex', 'sigma_hi_dex'];
-  const rows = quantities.map((q) => [q.sightline, q.label, q.kind, q.log10, q.sigmaLoDex, q.sigmaHiDex].map(csvCell).join(','));
-  return [header.join(','), ...rows].join('\n') + '\n';
+  return toCsv(header, quantities.map((q) => [q.sightline, q.label, q.kind, q.log10, q.sigmaLoDex, q.sigmaHiDex]));
 }
 
 const observe: StageImpl<PipelineData, 'observe'> = {

@@ -6,13 +6,12 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { UserError } from '../config/errors.ts';
+import { TABLE_LEVEL } from '../fit/regions.ts';
 import { AGE_PARAMETER, FIT_OUTPUT_FILES, type FitStageResult, type SightlineFit } from '../fit/types.ts';
 import { hashFile } from './hash.ts';
 import type { LockedFit } from './lock.ts';
 import type { StageState } from './state.ts';
 
-/** The confidence level whose interval is locked: 68.3%, the one of best_fits.csv. */
-const LOCKED_LEVEL = 0.683;
 const DENSITY = 'density';
 
 /** Outputs that are tables (bytes must not change between clones), as opposed to figures and the HTML page. */
@@ -32,7 +31,7 @@ export function readFitResult(outDir: string): FitStageResult {
 function intervalOf(fit: SightlineFit, parameter: string, best: number): { lo: number; hi: number } {
   const candidates = fit.intervals.filter((i) => i.parameter === parameter);
   if (candidates.length === 0) return { lo: best, hi: best };
-  const closest = candidates.reduce((a, b) => (Math.abs(b.level - LOCKED_LEVEL) < Math.abs(a.level - LOCKED_LEVEL) ? b : a));
+  const closest = candidates.reduce((a, b) => (Math.abs(b.level - TABLE_LEVEL) < Math.abs(a.level - TABLE_LEVEL) ? b : a));
   return { lo: closest.lo, hi: closest.hi };
 }
 

@@ -4,10 +4,9 @@
  * A_V, and a sightline may only be compared with the models of its bin.
  */
 import type { Pipeline } from '../config/pipeline.ts';
+import { DEFAULT_MODEL_AV_FRACTION } from '../config/sections/observations.ts';
 import { DEFAULT_SIGHTLINE_AV_STEP, sightlineModelAv } from '../grid/sightlines.ts';
 import type { ObservationSet } from '../obs/types.ts';
-
-const DEFAULT_MODEL_AV_FRACTION = 0.5;
 
 export function heldParameters(pipeline: Pipeline, observations: ObservationSet): Record<string, Record<string, number>> | undefined {
   const axis = pipeline.config.conditions.visual_extinction;

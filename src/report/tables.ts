@@ -5,6 +5,8 @@
  * \tablenotetext, \tablecomments). Every text from user files is escaped.
  * The tables hold no time stamps or paths, so the same run gives the same bytes.
  */
+import { toCsv, type CsvCell } from '../config/csv.ts';
+import { TABLE_LEVEL } from '../fit/regions.ts';
 import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
 import { escapeLatex } from './escape.ts';
 import { numberLatex } from './numbers.ts';
@@ -45,7 +47,7 @@ export interface SummaryTable {
 
 export function summaryTable(input: ReportInput): SummaryTable {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
-  const level = levels[0] ?? 0.683;
+  const level = levels[0] ?? TABLE_LEVEL;
   const av = new Map(input.observations.sightlines.map((s) => [s.id, s.av] as const));
   const parameters = orderParameters(input.fit.fittedParameters);
   const rows = input.fit.fits.map((fit) => ({
@@ -76,25 +78,17 @@ function cell(fit: SightlineFit, parameter: string, level: number): ParameterCel
 
 // ---------------------------------------------------------------- CSV
 
-/** RFC 4180 field: quoted when it holds a comma, quote, CR or LF; quotes doubled. */
-export function csvField(value: string | number | boolean | null): string {
-  if (value === null) return '';
-  const s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : String(value);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
 export function summaryCsv(table: SummaryTable): string {
   const header = ['sightline', 'av_mag'];
   for (const p of table.parameters) header.push(p, `${p}_lo`, `${p}_hi`, `${p}_at_edge`, `${p}_unresolved`);
   header.push('level', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'agreement', 'warnings');
-  const lines = [header.join(',')];
-  for (const r of table.rows) {
-    const f: (string | number | boolean | null)[] = [r.sightline, r.av];
+  const rows = table.rows.map((r) => {
+    const f: CsvCell[] = [r.sightline, r.av];
     for (const c of r.parameters) f.push(c.best, c.lo, c.hi, c.loAtEdge || c.hiAtEdge, c.unresolved);
     f.push(table.level, r.chi2, r.dof, r.reducedChi2, r.pValue, r.agreement, r.warnings.join('; '));
-    lines.push(f.map(csvField).join(','));
-  }
-  return `${lines.join('\r\n')}\r\n`;
+    return f;
+  });
+  return toCsv(header, rows);
 }
 
 // ---------------------------------------------------------------- JSON

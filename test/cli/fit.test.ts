@@ -3,14 +3,15 @@
  * observations table, and a model store written with invented analytic
  * abundances (see test/fit/synthetic.ts), so no model has to run.
  */
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
+import { csvParseRows } from 'd3-dsv';
 import { describe, expect, it } from 'vitest';
 import { defaultConditions } from '../../src/config/conditions.ts';
 import { ModelStore, type StoredModel } from '../../src/grid/store.ts';
 import { analyticAbundances, logSpaced } from '../fit/synthetic.ts';
 import { runCli } from '../support/cli.ts';
+import { scratch } from '../support/scratch.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const NETWORK = join(ROOT, 'config', 'networks', 'dark-cloud.yaml');
@@ -40,12 +41,13 @@ function writeStore(file: string): void {
 }
 
 /** A project folder: observations (exact columns from the true models, stated errors), column mapping, pipeline, store. */
-function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?: boolean } = {}): string {
-  const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-fit-cli-'));
+function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?: boolean; names?: string[] } = {}): string {
+  const dir = scratch('hoarfrost-fit-cli-');
   const species = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)'];
   const col = (s: string) => s.replace('(s)', '_ice');
   const header = ['star', 'av', 'av_err', ...species.flatMap((s) => [`N_${col(s)}`, `N_${col(s)}_err`])];
-  const rows = STARS.map(([name, av, i, k]) => {
+  const rows = STARS.map(([star, av, i, k], row) => {
+    const name = options.names?.[row] ?? star;
     const x = analyticAbundances(DENSITIES[i], TIMES[k]);
     const cells = species.flatMap((s, j) => {
       if (s === 'NH3(s)') return ['1.0e16', '3.0e15'];
@@ -53,7 +55,7 @@ function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?:
       if (s === 'H2O(s)' && options.waterLimit) return [`<${n.toExponential(4)}`, ''];
       return [n.toExponential(6), (0.25 * n).toExponential(3)];
     });
-    return [name, String(av), '0.01', ...cells].join(',');
+    return [`"${name.replace(/"/g, '""')}"`, String(av), '0.01', ...cells].join(',');
   });
   writeFileSync(join(dir, 'quillmarsh.csv'), `# INVENTED test data: the Quillmarsh Cloud is not a real object.\n${header.join(',')}\n${rows.join('\n')}\n`);
   const mapping = ['id: star', 'av: av', 'av_error: av_err', 'species:', ...species.map((s) => `  "${s}": { value: N_${col(s)}, error: N_${col(s)}_err, unit: cm-2, limit_confidence: 0.997 }`)];
@@ -103,6 +105,25 @@ describe('hoarfrost fit', () => {
       expect(r.stdout).toMatch(new RegExp(`^${name}\\s`, 'm'));
     });
     for (const f of ['fit.json', 'profiles.json', 'intervals.csv', 'residuals.csv']) expect(existsSync(join(dir, 'out', 'fit', f))).toBe(true);
+  });
+
+  it('writes sightline names that a spreadsheet would take for formulas as text (OWASP CSV injection; issue 16 item 7)', () => {
+    // The reader trims names, so the tab of '\t+QM-3' is gone by then; the writer's own test covers a leading tab.
+    const names = ['=1+1', '@QM-2', '\t+QM-3'];
+    const dir = project({ names });
+    const r = hoarfrost(dir);
+    expect(r.code, r.stderr).toBe(0);
+    const expected = ['=1+1', '@QM-2', '+QM-3'];
+    for (const file of ['best_fits.csv', 'intervals.csv', 'residuals.csv']) {
+      const rows = csvParseRows(readFileSync(join(dir, 'out', 'fit', file), 'utf8').trimEnd());
+      const column = rows[0].indexOf(file === 'intervals.csv' ? 'fit' : 'sightline');
+      const names = new Set(rows.slice(1).map((row) => row[column]));
+      expect([...names].sort(), file).toEqual(expected.map((n) => `'${n}`).sort());
+    }
+    const best = readFileSync(join(dir, 'out', 'fit', 'best_fits.csv'), 'utf8').split('\n');
+    expect(best.slice(1, 4).map((line) => line.split(',')[0])).toEqual(expected.map((n) => `"'${n}"`));
+    // Numbers stay numbers: no numeric cell is quoted or prefixed.
+    for (const line of best.slice(1, 4)) for (const cell of line.split(',').slice(1)) expect(cell).not.toMatch(/^["']/);
   });
 
   it('a species the store lacks: a clear error, exit 2, no stack', () => {

@@ -15,9 +15,9 @@ import { loadCandidates } from '../../src/grid/candidates.ts';
 import { runGrid } from '../../src/grid/run.ts';
 import { storeContentHash } from '../../src/grid/status.ts';
 import { BIN, scratch, writePipeline } from '../grid/helpers.ts';
+import { needReference, referenceMissing, SLURM } from '../support/references.ts';
 
 const SCRIPT = fileURLToPath(new URL('../../scripts/slurm-local.sh', import.meta.url));
-const REQUIRED = process.env.HOARFROST_REQUIRE_SLURM === '1';
 const JOB_WAIT_MS = 120_000;
 const POLL_MS = 500;
 const SHARDS = 3;
@@ -25,7 +25,7 @@ const GRID = 'conditions:\n  density: { from: 1.0e3, to: 1.0e6, count: 4 }\n  ga
 const ALL_SPECIES = ['CO', 'H2', 'H', 'H2+', 'e-', 'H3+', 'HCO+', 'CO(s)'];
 
 let clusterDir = '';
-let unavailable: string | undefined;
+let unavailable: string | null = null;
 let env: NodeJS.ProcessEnv = process.env;
 
 function run(cmd: string, args: string[], cwd?: string) {
@@ -34,15 +34,12 @@ function run(cmd: string, args: string[], cwd?: string) {
 }
 
 beforeAll(() => {
-  const missing = ['munged', 'mungekey', 'slurmctld', 'slurmd', 'sbatch', 'squeue'].filter((c) => spawnSync('sh', ['-c', `command -v ${c}`]).status !== 0);
-  if (missing.length > 0) {
-    unavailable = `Slurm is not installed (missing ${missing.join(', ')}); install slurm-wlm slurmctld slurmd slurm-client munge (.ci/run does).`;
-    return;
-  }
+  unavailable = referenceMissing(SLURM);
+  if (unavailable) return;
   clusterDir = scratch('hoarfrost-slurm-');
   const started = run('bash', [SCRIPT, 'start', clusterDir]);
   if (started.code !== 0) {
-    unavailable = `Slurm could not start: ${(started.stderr || started.stdout || String(started.error)).trim()}`;
+    unavailable = `it could not start: ${(started.stderr || started.stdout || String(started.error)).trim()}`;
     return;
   }
   env = { ...process.env, SLURM_CONF: join(clusterDir, 'slurm.conf') };
@@ -54,11 +51,7 @@ afterAll(() => {
 
 describe('the grid as a Slurm job array', () => {
   it('runs every shard on Slurm, merges, and equals a local run', async (ctx) => {
-    if (unavailable) {
-      if (REQUIRED) throw new Error(`${unavailable} (HOARFROST_REQUIRE_SLURM=1: this test must run)`);
-      console.warn(`SKIPPED: ${unavailable}`);
-      ctx.skip();
-    }
+    needReference(ctx, SLURM, unavailable);
     const dir = scratch();
     const file = writePipeline(dir, GRID);
     const written = run(process.execPath, [BIN, 'slurm', file, '--shards', String(SHARDS), '--cpus', '1', '--time', '10'], dir);

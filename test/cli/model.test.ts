@@ -1,7 +1,6 @@
 /** `hoarfrost model` end to end: files written, emitted system round trip, and bad input (clear error, exit 2, no stack trace). */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { createRequire } from 'node:module';
 import AjvModule from 'ajv';
@@ -9,6 +8,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { EmittedSystem } from '../../src/chem/system.ts';
 import { integrate } from '../../src/solve/index.ts';
 import { problemFromJson } from '../model/fixtures.ts';
+import { scratch } from '../support/scratch.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const BIN = join(ROOT, 'bin', 'hoarfrost.mjs');
@@ -47,7 +47,7 @@ describe('hoarfrost model', () => {
   let dir: string;
   let run: ReturnType<typeof hoarfrost>;
   beforeAll(() => {
-    dir = mkdtempSync(join(tmpdir(), 'hoarfrost-model-'));
+    dir = scratch('hoarfrost-model-');
     pipeline(dir, 'p.yaml');
     run = hoarfrost(['model', 'p.yaml', '--out', 'res', '--set', 'gas_temperature=12', '--species', 'CO,H2O(s)', '--emit-system', 'sys.json', '--mass-action-only'], dir);
   });
@@ -101,7 +101,7 @@ describe('hoarfrost model', () => {
 
 describe('hoarfrost model: conditions of a grid pipeline', () => {
   it('takes --set for a grid axis and resolves ties to other conditions', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-model-tie-'));
+    const dir = scratch('hoarfrost-model-tie-');
     pipeline(dir, 'grid.yaml', { conditions: '  density: { from: 1.0e3, to: 1.0e5, count: 3 }\n  gas_temperature: 12\n  dust_temperature: { tie: gas_temperature, factor: 0.75 }' });
     const r = hoarfrost(['model', 'grid.yaml', '--out', 'o', '--set', 'density=3e4'], dir);
     expect(r.stderr).toBe('');
@@ -112,7 +112,7 @@ describe('hoarfrost model: conditions of a grid pipeline', () => {
 });
 
 describe('hoarfrost model: bad input', () => {
-  const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-model-bad-'));
+  const dir = scratch('hoarfrost-model-bad-');
   pipeline(dir, 'good.yaml');
 
   it('rejects an unknown --set key, listing the known ones', () => {

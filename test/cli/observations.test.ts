@@ -1,9 +1,9 @@
 /** `hoarfrost observations FILE|PIPELINE` end to end on the example files: what it prints, exit codes, bad input without a stack trace. */
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../support/cli.ts';
+import { scratch } from '../support/scratch.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const TABLE = join(ROOT, 'pipelines', 'examples', 'frostmere-ices.csv');
@@ -63,7 +63,7 @@ describe('hoarfrost observations', () => {
   });
 
   it("reads a pipeline's observations section with its settings and the fit's quantities, checking species against its network", () => {
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-obs-cli-'));
+    const dir = scratch('hoarfrost-obs-cli-');
     writeFileSync(join(dir, 'ices.csv'), readFileSync(TABLE));
     writeFileSync(join(dir, 'ices.columns.yaml'), readFileSync(TABLE.replace('.csv', '.columns.yaml')));
     const p = join(dir, 'p.yaml');
@@ -90,7 +90,7 @@ describe('hoarfrost observations', () => {
   });
 
   it('bad input: exit 2, the file and column named, no stack trace', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-obs-cli-'));
+    const dir = scratch('hoarfrost-obs-cli-');
     writeFileSync(join(dir, 'bad.csv'), 'id,AV,N(CO(s)),N(CO(s))_err\na,5,-3e17,1e16\n');
     const r = hoarfrost(['bad.csv'], dir);
     expect(r.code).toBe(2);

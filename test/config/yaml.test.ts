@@ -1,5 +1,4 @@
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
@@ -7,6 +6,7 @@ import { loadYamlFile, parseYamlText, validate } from '../../src/config/yaml.ts'
 import { checkConditionValue, defaultConditions } from '../../src/config/conditions.ts';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { catchUserError } from '../support/errors.ts';
+import { scratch } from '../support/scratch.ts';
 
 const caught = catchUserError;
 
@@ -62,7 +62,7 @@ describe('physical conditions', () => {
 
 describe('pipeline file', () => {
   it('resolves paths against the pipeline folder and fills defaults', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'hf-pipe-'));
+    const dir = scratch('hf-pipe-');
     const file = join(dir, 'p.yaml');
     writeFileSync(file, 'network: nets/n.yaml\n');
     const p = loadPipeline(file);
@@ -70,7 +70,7 @@ describe('pipeline file', () => {
     expect(p.config.solver.rtol).toBeGreaterThan(0);
   });
   it('refuses an unknown top-level key', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'hf-pipe-'));
+    const dir = scratch('hf-pipe-');
     const file = join(dir, 'p.yaml');
     writeFileSync(file, 'network: n.yaml\nnetwrok: m.yaml\n');
     expect(caught(() => loadPipeline(file)).message).toContain("unknown key 'netwrok'");

@@ -2,7 +2,8 @@ import { chiSquaredDistributionTable } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { chiSquareCdf, chiSquarePValue, chiSquareQuantile } from '../../src/fit/chi-square.ts';
 import { logGamma, regularizedGammaP, regularizedGammaQ } from '../../src/fit/gamma.ts';
-import { regionLevels } from '../../src/fit/regions.ts';
+import { fitSection } from '../../src/config/sections/fit.ts';
+import { DEFAULT_LEVELS, deltaChi2Threshold, regionLevels, TABLE_LEVEL } from '../../src/fit/regions.ts';
 
 /** The Gaussian 1- and 2-sigma probabilities, erf(1/sqrt 2) and erf(2/sqrt 2), which the Avni table prints as 68.3% and 95.4% (common practice). */
 const ONE_SIGMA = 0.6826894921370859;
@@ -29,8 +30,8 @@ describe('incomplete gamma (Numerical Recipes 6.1-6.2)', () => {
   });
 });
 
-describe('Delta chi^2 thresholds (Avni 1976; Numerical Recipes 15.6)', () => {
-  // physics.md section 6: rows 68.3%, 90%, 95.4%, 99% for p = 1, 2, 3, printed to 3 significant figures.
+describe("the fit room's table of Delta chi^2 thresholds against Avni (1976) and Numerical Recipes 15.6", () => {
+  // The published table (Avni 1976, table 1; Numerical Recipes 15.6; physics.md section 6): rows 68.3%, 90%, 95.4%, 99% for p = 1, 2, 3, printed to 3 significant figures.
   const table: [number, number[]][] = [
     [ONE_SIGMA, [1.0, 2.3, 3.53]],
     [0.9, [2.71, 4.61, 6.25]],
@@ -40,7 +41,7 @@ describe('Delta chi^2 thresholds (Avni 1976; Numerical Recipes 15.6)', () => {
   it.each(table)('level %f', (level, values) => {
     values.forEach((expected, i) => {
       const p = i + 1;
-      const got = chiSquareQuantile(level, p);
+      const got = deltaChi2Threshold(level, p);
       // Rounded to the table's precision: half a unit of its last printed digit.
       const halfUlp = expected >= 10 ? 0.05 : 0.005;
       expect(Math.abs(got - expected)).toBeLessThanOrEqual(halfUlp);
@@ -55,6 +56,18 @@ describe('Delta chi^2 thresholds (Avni 1976; Numerical Recipes 15.6)', () => {
     expect(levels[0].deltaChi2).toBeCloseTo(-2 * Math.log(1 - 0.683), 10);
     expect(levels[1].deltaChi2).toBeCloseTo(-2 * Math.log(1 - 0.954), 10);
     expect(levels.every((l) => l.parametersOfInterest === 2)).toBe(true);
+  });
+
+  it('a threshold the fit stage stated for that level and p wins over the computed one', () => {
+    const stated = [{ level: 0.683, parametersOfInterest: 1, deltaChi2: 1.5 }];
+    expect(deltaChi2Threshold(0.683, 1, stated)).toBe(1.5);
+    expect(deltaChi2Threshold(0.683, 2, stated)).toBeCloseTo(-2 * Math.log(1 - 0.683), 10);
+  });
+
+  it("the fit section's default levels are the table's, and the table level is one of them", () => {
+    // config imports nothing of ours, so its schema restates the default; this ties the two.
+    expect(fitSection.parse({ quantities: [{ species: 'CO(s)' }] }).levels).toEqual(DEFAULT_LEVELS);
+    expect(DEFAULT_LEVELS).toContain(TABLE_LEVEL);
   });
 });
 

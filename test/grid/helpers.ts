@@ -1,16 +1,17 @@
 /** Shared helpers of the grid tests: scratch folders and pipeline files on the tiny test network. */
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { UserError } from '../../src/config/errors.ts';
+import { scratch as scratchFolder } from '../support/scratch.ts';
 
 export const TINY_NETWORK = fileURLToPath(new URL('./fixtures/tiny-network.yaml', import.meta.url));
 export const FAKE_WORKER = new URL('./fixtures/fake-worker.ts', import.meta.url);
 export const BIN = fileURLToPath(new URL('../../bin/hoarfrost.mjs', import.meta.url));
 
+/** A scratch folder, removed after the test file (test/support/scratch.ts). */
 export function scratch(prefix = 'hoarfrost-grid-'): string {
-  return mkdtempSync(join(tmpdir(), prefix));
+  return scratchFolder(prefix);
 }
 
 /** A pipeline file on the tiny network with the given conditions/exclude YAML (indented blocks). */

@@ -7,19 +7,17 @@
  * the JSON alone. Skipped where SciPy is not installed, except when
  * HOARFROST_REQUIRE_SCIPY=1 (CI): then a missing SciPy fails.
  */
-import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { execFileSync } from 'node:child_process';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { expect, it } from 'vitest';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
 import { loadNetwork } from '../../src/chem/network.ts';
 import { compile } from '../../src/chem/system.ts';
 import { YEAR_SECONDS } from '../../src/chem/constants.ts';
 import { initialState, loadInitialComposition, outputTimesYr, runModel } from '../../src/model/run.ts';
-
-const PYTHON = '/usr/bin/python3';
-const hasScipy = spawnSync(PYTHON, ['-c', 'import scipy.integrate'], { encoding: 'utf8' }).status === 0;
+import { describeWithReference, PYTHON, SCIPY } from '../support/references.ts';
+import { scratch } from '../support/scratch.ts';
 
 const SOLVE = String.raw`
 import json, sys
@@ -49,13 +47,7 @@ sol = solve_ivp(f, (0.0, S['times_s'][-1]), np.array(S['y0']), method='BDF', t_e
 print(json.dumps({'status': int(sol.status), 'message': sol.message, 'y': sol.y.T.tolist()}))
 `;
 
-describe.runIf(!hasScipy && process.env.HOARFROST_REQUIRE_SCIPY === '1')('SciPy', () => {
-  it('is installed (HOARFROST_REQUIRE_SCIPY=1)', () => {
-    expect.fail(`HOARFROST_REQUIRE_SCIPY=1 but ${PYTHON} cannot import scipy.integrate. Install Debian's python3-scipy.`);
-  });
-});
-
-describe.runIf(hasScipy)('emitted default network vs SciPy BDF', () => {
+describeWithReference(SCIPY, 'emitted default network vs SciPy BDF', () => {
   it('agrees with runModel(massActionOnly) at every output time', () => {
     const network = loadNetwork(join(import.meta.dirname, '..', '..', 'config', 'networks', 'dark-cloud.yaml'));
     const conditions = defaultConditions();
@@ -63,7 +55,7 @@ describe.runIf(hasScipy)('emitted default network vs SciPy BDF', () => {
     const timesYr = outputTimesYr(1e3, 1e7, 9);
     const input = { network, conditions, grain: DEFAULT_GRAIN_OPTIONS, initial, timesYr, solver: { rtol: 1e-8, atol: 1e-22, maxSteps: 50000 }, massActionOnly: true };
     const system = compile(network, conditions, DEFAULT_GRAIN_OPTIONS, { massActionOnly: true });
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-emit-'));
+    const dir = scratch('hoarfrost-emit-');
     const file = join(dir, 'system.json');
     writeFileSync(file, JSON.stringify(system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS))));
     const reference = JSON.parse(execFileSync(PYTHON, ['-c', SOLVE, file], { encoding: 'utf8', maxBuffer: 64 * 2 ** 20 })) as { status: number; message: string; y: number[][] };

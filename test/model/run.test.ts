@@ -1,6 +1,5 @@
 /** One model run: analytic freeze-out, output times, initial compositions, failure status. */
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
@@ -9,6 +8,7 @@ import { YEAR_SECONDS } from '../../src/chem/constants.ts';
 import { computeRates } from '../../src/chem/rates.ts';
 import { loadInitialComposition, outputTimesYr, runModel } from '../../src/model/run.ts';
 import { makeNetwork } from './fixtures.ts';
+import { scratch } from '../support/scratch.ts';
 
 const solver = { rtol: 1e-8, atol: 1e-25, maxSteps: 20000 };
 
@@ -74,7 +74,7 @@ describe('loadInitialComposition', () => {
   });
   it('takes an explicit mapping and a file path relative to the base folder', () => {
     expect(loadInitialComposition({ H2: 0.5, 'C+': 1e-4, 'e-': 1e-4 }, '.', net)).toEqual({ H2: 0.5, 'C+': 1e-4, 'e-': 1e-4 });
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-initial-'));
+    const dir = scratch('hoarfrost-initial-');
     writeFileSync(join(dir, 'mine.yaml'), 'format: hoarfrost-initial 1\nabundances:\n  H2: 0.5\n  C+: { value: 2.0e-4, origin: test }\n');
     expect(loadInitialComposition('mine.yaml', dir, net)).toEqual({ H2: 0.5, 'C+': 2e-4, 'e-': 2e-4 });
   });

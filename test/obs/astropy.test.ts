@@ -9,19 +9,13 @@
  * astropy fails the test; otherwise the tests are skipped with a message.
  */
 import { spawnSync } from 'node:child_process';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, expect, it } from 'vitest';
 import { writeFitsImages, writeFitsTable } from '../../src/report/fits.ts';
 import { readFits, readFitsImage, readFitsBinaryTable } from '../../src/obs/fits-read.ts';
 import { loadObservations } from '../../src/obs/load.ts';
+import { ASTROPY, describeWithReference, PYTHON } from '../support/references.ts';
 import { scratch, section, write } from './helpers.ts';
 
-const PYTHON = '/usr/bin/python3';
-const probe = spawnSync(PYTHON, ['-c', 'import astropy, numpy'], { encoding: 'utf8' });
-const HAVE_ASTROPY = probe.status === 0;
-const REQUIRED = process.env.HOARFROST_REQUIRE_ASTROPY === '1';
-if (!HAVE_ASTROPY && !REQUIRED) {
-  console.warn(`astropy tests skipped: ${PYTHON} cannot import astropy (install Debian's python3-astropy; CI sets HOARFROST_REQUIRE_ASTROPY=1 and then fails instead).`);
-}
 
 const SCRIPT = String.raw`
 import json, sys, math
@@ -113,13 +107,7 @@ interface PyOut {
 
 const nanToNull = (xs: ArrayLike<number>) => Array.from(xs, (v) => (Number.isNaN(v) ? null : v));
 
-describe.runIf(!HAVE_ASTROPY && REQUIRED)('astropy', () => {
-  it('is installed (HOARFROST_REQUIRE_ASTROPY=1)', () => {
-    expect.fail(`HOARFROST_REQUIRE_ASTROPY=1 but ${PYTHON} cannot import astropy: ${probe.stderr || probe.error?.message}. Install Debian's python3-astropy.`);
-  });
-});
-
-describe.skipIf(!HAVE_ASTROPY)('FITS against astropy.io.fits', () => {
+describeWithReference(ASTROPY, 'FITS against astropy.io.fits', () => {
   const dir = scratch('hoarfrost-astropy-');
   let py: PyOut;
   const f64 = Float64Array.from({ length: 12 }, (_, i) => (i === 5 ? NaN : (i + 1) * 1.2345678901234567e17));

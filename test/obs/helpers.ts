@@ -1,11 +1,12 @@
 /** Shared pieces of the observation tests: a scratch folder and a section with defaults. */
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { observationsSection, type ObservationsSection, type ObservationsSectionInput } from '../../src/config/sections/observations.ts';
+import { scratch as scratchFolder } from '../support/scratch.ts';
 
+/** A scratch folder, removed after the test file (test/support/scratch.ts). */
 export function scratch(prefix = 'hoarfrost-obs-'): string {
-  return mkdtempSync(join(tmpdir(), prefix));
+  return scratchFolder(prefix);
 }
 
 export function section(input: ObservationsSectionInput): ObservationsSection {

@@ -6,22 +6,17 @@
  * chromium the test is skipped with a message; with
  * HOARFROST_REQUIRE_CHROMIUM=1 (CI) it fails instead.
  */
-import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium, type BrowserContext } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, expect, it } from 'vitest';
 import { writeReport } from '../../src/report/index.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
+import { CHROMIUM, CHROMIUM_REFERENCE, describeWithReference } from '../support/references.ts';
 import { HOSTILE_NAMES, syntheticInput } from './fixture.ts';
 
-const CHROMIUM = '/usr/bin/chromium';
-const HAVE_CHROMIUM = existsSync(CHROMIUM);
-const REQUIRED = process.env.HOARFROST_REQUIRE_CHROMIUM === '1';
-if (!HAVE_CHROMIUM && !REQUIRED) {
-  console.warn(`HTML report browser tests skipped: ${CHROMIUM} not found (install Debian's chromium; CI sets HOARFROST_REQUIRE_CHROMIUM=1 and then fails instead).`);
-}
 /** Flags from figures-notes.md: no sandbox (root in a container), no GPU, nothing fetched in the background. */
 const FLAGS = ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
 const READY_TIMEOUT_MS = 30_000;
@@ -67,14 +62,13 @@ async function loadReport(context: BrowserContext, html: string): Promise<PageRu
   return { messages, requests, dialogs, ready, svgs, marksPerFigure, summaryText, jointText, scriptsInBody };
 }
 
-describe.runIf(HAVE_CHROMIUM || REQUIRED)('HTML report in headless Chromium', () => {
+describeWithReference(CHROMIUM_REFERENCE, 'HTML report in headless Chromium', () => {
   let context: BrowserContext;
   let userDataDir: string;
   let dir: string;
   let table: ReportFiles;
   let map: ReportFiles;
   beforeAll(async () => {
-    if (!HAVE_CHROMIUM) throw new Error(`HOARFROST_REQUIRE_CHROMIUM=1 but ${CHROMIUM} is missing: install Debian's chromium`);
     dir = mkdtempSync(join(tmpdir(), 'hoarfrost-html-'));
     table = await writeReport(syntheticInput({ joint: true, config: { formats: ['svg'] } }), join(dir, 'table'));
     map = await writeReport(syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'], sightlines: ['Frostmere-01'] } }), join(dir, 'map'));

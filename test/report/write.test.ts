@@ -6,11 +6,10 @@
  * with a clear error.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { csvParse } from 'd3-dsv';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { UserError } from '../../src/config/errors.ts';
 import { parseYamlText, validate } from '../../src/config/yaml.ts';
 import { reportSection } from '../../src/config/sections/report.ts';
@@ -18,19 +17,12 @@ import { writeReport } from '../../src/report/index.ts';
 import { carriedCards } from '../../src/report/maps.ts';
 import { outputPath } from '../../src/report/paths.ts';
 import { numberHtml, numberLatex, numberText } from '../../src/report/numbers.ts';
-import { deltaChi2Threshold } from '../../src/report/thresholds.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
+import { ASTROPY, needReference, PYTHON } from '../support/references.ts';
+import { scratch as scratchFolder } from '../support/scratch.ts';
 import { HOSTILE_NAMES, SIGHTLINES, syntheticInput } from './fixture.ts';
 
-const scratchDirs: string[] = [];
-const scratch = (): string => {
-  const d = mkdtempSync(join(tmpdir(), 'hoarfrost-report-'));
-  scratchDirs.push(d);
-  return d;
-};
-afterAll(() => {
-  for (const d of scratchDirs) rmSync(d, { recursive: true, force: true });
-});
+const scratch = (): string => scratchFolder('hoarfrost-report-');
 
 function expectUserError(f: () => unknown, ...parts: (string | RegExp)[]): UserError {
   let caught: unknown;
@@ -173,12 +165,7 @@ describe('writeReport on a map', () => {
     const files = await writeReport(syntheticInput({ map: { nx: 6, ny: 5 }, config: { formats: ['svg'] } }), join(dir, 'report'));
     expect(files.maps.map((m) => m.split('/').pop())).toEqual(['best_age_yr.fits', 'best_density.fits', 'best_chi2.fits', 'density_width_dex.fits', 'age_width_dex.fits']);
     expect(files.figures.map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2', 'fit_vs_av']);
-    const probe = spawnSync('/usr/bin/python3', ['-c', 'import astropy'], { encoding: 'utf8' });
-    if (probe.status !== 0) {
-      if (process.env.HOARFROST_REQUIRE_ASTROPY === '1') throw new Error('astropy is required (HOARFROST_REQUIRE_ASTROPY=1) but /usr/bin/python3 cannot import it');
-      t.skip();
-      return;
-    }
+    needReference(t, ASTROPY);
     const script = String.raw`
 import json, sys, math
 from astropy.io import fits
@@ -195,7 +182,7 @@ for f in sys.argv[1:]:
             'corner': None if math.isnan(d[4, 0]) else float(d[4, 0]), 'x5y0': float(d[0, 5])}
 print(json.dumps(out))
 `;
-    const r = spawnSync('/usr/bin/python3', ['-c', script, ...files.maps], { encoding: 'utf8' });
+    const r = spawnSync(PYTHON, ['-c', script, ...files.maps], { encoding: 'utf8' });
     expect(r.stderr).toBe('');
     const got = JSON.parse(r.stdout);
     const density = got['best_density.fits'];
@@ -299,16 +286,5 @@ describe('numbers and thresholds', () => {
     expect(numberLatex(0.5)).toBe('0.50');
     expect(numberHtml(3.2e-5)).toBe('3.2×10<sup>−5</sup>');
     expect(numberText(2.5e5)).toBe('2.5×10⁵');
-  });
-
-  it('gives the Delta chi^2 thresholds of Avni (1976) / Numerical Recipes section 15.6', () => {
-    // Table of NR 15.6 (and physics.md section 6): p = 1: 1.00, 2.71, 4.00, 6.63; p = 2: 2.30, 4.61, 6.18, 9.21.
-    const cases: [number, 1 | 2, number][] = [
-      [0.683, 1, 1.0], [0.9, 1, 2.71], [0.9545, 1, 4.0], [0.99, 1, 6.63],
-      [0.683, 2, 2.3], [0.9, 2, 4.61], [0.9545, 2, 6.18], [0.99, 2, 9.21],
-    ];
-    for (const [level, p, value] of cases) expect(Math.abs(deltaChi2Threshold(level, p) - value)).toBeLessThan(0.006);
-    // A threshold the fit stage stated wins over the computed one.
-    expect(deltaChi2Threshold(0.683, 1, [{ level: 0.683, parametersOfInterest: 1, deltaChi2: 1.5 }])).toBe(1.5);
   });
 });

@@ -9,6 +9,7 @@ import { dirname, join, relative } from 'node:path';
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
 import type { Pipeline } from '../../config/pipeline.ts';
+import { TABLE_LEVEL } from '../../fit/regions.ts';
 import type { FitStageOutput } from '../../fit/stage.ts';
 import type { FitStageResult, ParameterInterval, SightlineFit } from '../../fit/types.ts';
 import type { ObservationSet, ObservedQuantity } from '../../obs/types.ts';
@@ -16,8 +17,6 @@ import type { CommandContext } from '../main.ts';
 
 /** Sightlines printed before the rest are counted (the CSV holds them all). */
 const DEFAULT_ROWS = 40;
-/** Level of the printed intervals (the bounds of best_fits.csv). */
-const PRINTED_LEVEL = 0.683;
 
 interface Options {
   rows?: number;
@@ -36,7 +35,7 @@ function textTable(header: string[], rows: string[][]): string {
 }
 
 function intervalText(fit: SightlineFit, parameter: string, best: number): string {
-  const iv: ParameterInterval | undefined = fit.intervals.find((i) => i.parameter === parameter && i.level === PRINTED_LEVEL);
+  const iv: ParameterInterval | undefined = fit.intervals.find((i) => i.parameter === parameter && i.level === TABLE_LEVEL);
   if (!iv) return `${num(best)} (held)`;
   const lo = `${iv.loAtEdge ? '<=' : ''}${num(iv.lo)}`;
   const hi = `${iv.hiAtEdge ? '>=' : ''}${num(iv.hi)}`;
@@ -68,7 +67,7 @@ export function formatFitSummary(result: FitStageResult, output: FitStageOutput,
       f.pValue < 1e-3 ? f.pValue.toExponential(1) : f.pValue.toFixed(3),
       `${Math.round(f.agreementFraction * 100)}%`,
     ]);
-    out.push(`Best fits, with ${(PRINTED_LEVEL * 100).toFixed(1)}% intervals ([<=lo, >=hi]: the interval reaches the grid's edge; *: narrower than the grid spacing):`);
+    out.push(`Best fits, with ${(TABLE_LEVEL * 100).toFixed(1)}% intervals ([<=lo, >=hi]: the interval reaches the grid's edge; *: narrower than the grid spacing):`);
     out.push(textTable(header, rows));
     if (result.fits.length > shown.length) out.push(`... and ${result.fits.length - shown.length} more in fit/best_fits.csv (show them with --rows ${result.fits.length})`);
   }

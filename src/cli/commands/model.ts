@@ -11,7 +11,8 @@ import type { Command } from 'commander';
 import type { TopLevelSpec } from 'vega-lite';
 import type { CommandContext } from '../main.ts';
 import { CONDITION_NAMES, checkConditionValue, defaultConditions, isConditionName, type PhysicalConditions } from '../../config/conditions.ts';
-import { UserError, UserErrors } from '../../config/errors.ts';
+import { toCsv } from '../../config/csv.ts';
+import { throwProblems, UserError } from '../../config/errors.ts';
 import type { Pipeline } from '../../config/pipeline.ts';
 import type { ModelResult } from '../../model/types.ts';
 import { logAxis } from '../../report/figures/axes.ts';
@@ -197,8 +198,7 @@ function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditio
   for (const tie of ties) {
     if (pending.has(tie.name)) problems.push(new UserError(`the ties of ${[...pending].join(', ')} go round in a circle; give one of them a value.`, tie.where));
   }
-  if (problems.length === 1) throw problems[0];
-  if (problems.length > 1) throw new UserErrors(`${problems.length} problems with the physical conditions:`, problems);
+  throwProblems(problems, `${problems.length} problems with the physical conditions:`);
   return conditions;
 }
 
@@ -235,23 +235,17 @@ function reachedRows(result: ModelResult): number {
   return k;
 }
 
-function csvField(name: string): string {
-  return /[",\n]/.test(name) ? `"${name.replace(/"/g, '""')}"` : name;
-}
-
-function formatAbundance(x: number): string {
+/** Time to 6 significant figures, abundances to 6 in exponent form (0 written as 0). */
+function formatCell(x: number, column: number): string {
+  if (column === 0) return x.toPrecision(6);
   return x === 0 ? '0' : x.toExponential(5);
 }
 
 function abundanceCsv(result: ModelResult, rows: number): string {
   const n = result.species.length;
-  const lines = [['time_yr', ...result.species].map(csvField).join(',')];
-  for (let k = 0; k < rows; k++) {
-    const row = [result.timesYr[k].toPrecision(6)];
-    for (let i = 0; i < n; i++) row.push(formatAbundance(result.abundances[k * n + i]));
-    lines.push(row.join(','));
-  }
-  return lines.join('\n') + '\n';
+  const table: number[][] = [];
+  for (let k = 0; k < rows; k++) table.push([result.timesYr[k], ...result.abundances.subarray(k * n, (k + 1) * n)]);
+  return toCsv(['time_yr', ...result.species], table, { formatNumber: formatCell });
 }
 
 function figureSpec(result: ModelResult, rows: number, species: string[], title: string): TopLevelSpec {

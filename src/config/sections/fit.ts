@@ -33,7 +33,7 @@ export const fitSection = z
     model_sigma_dex: z.number().min(0).default(0.3),
     /** Width of a limit in dex, added in quadrature to the model floor in the censored likelihood (0: the floor alone). */
     limit_sigma_dex: z.number().min(0).default(0),
-    /** Confidence levels of the Delta chi^2 regions (68.3% and 95.4%: the 1 and 2 sigma of a Gaussian, common practice). */
+    /** Confidence levels of the Delta chi^2 regions (68.3% and 95.4%: the 1 and 2 sigma of a Gaussian, common practice); the same as DEFAULT_LEVELS of the fit room's table, src/fit/regions.ts. */
     levels: z.array(z.number().gt(0).lt(1)).min(1).default([0.683, 0.954]),
     /** Parameters of interest p of the Delta chi^2 thresholds (Avni 1976): 2 for density and age jointly. */
     parameters_of_interest: z.number().int().min(1).max(10).default(2),

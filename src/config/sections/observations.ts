@@ -51,6 +51,9 @@ export type ColumnMapping = z.infer<typeof columnMapping>;
 export const observationFormats = ['csv', 'tsv', 'yaml', 'votable', 'fits'] as const;
 export type ObservationFormat = (typeof observationFormats)[number];
 
+/** Model-cloud A_V as a fraction of the observed line-of-sight A_V, also when the pipeline has no observations section (0.5 toward background stars: common practice). */
+export const DEFAULT_MODEL_AV_FRACTION = 0.5;
+
 export const observationsSection = z
   .object({
     /** Path to the table, YAML list, VOTable or FITS file (relative to the pipeline file). */
@@ -70,7 +73,7 @@ export const observationsSection = z
     /** Extinction subtracted from A_V for ice species (0 to turn off; about 3 mag for water ice: Whittet and co-workers, memory). */
     ice_threshold_av: z.number().min(0).default(0),
     /** Model-cloud A_V as a fraction of the observed line-of-sight A_V (0.5 toward background stars: common practice). */
-    model_av_fraction: z.number().positive().max(1).default(0.5),
+    model_av_fraction: z.number().positive().max(1).default(DEFAULT_MODEL_AV_FRACTION),
     /** Reference species for ratios. */
     reference: z.string().default('H2O(s)'),
     /** Band-strength table, relative to the pipeline file; default the tool's config/band-strengths.yaml. */

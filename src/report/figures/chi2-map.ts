@@ -7,11 +7,11 @@
  * replaced by the single best value (physics.md section 8).
  */
 import type { TopLevelSpec } from 'vega-lite';
+import { deltaChi2Threshold } from '../../fit/regions.ts';
 import type { Profile2D, SightlineFit } from '../../fit/types.ts';
 import { contourSegments } from '../contours.ts';
 import { slug } from '../escape.ts';
 import { figureConfig, figureSize, MAP_SCHEME } from '../theme.ts';
-import { deltaChi2Threshold } from '../thresholds.ts';
 import { cellEdges, DELTA_CHI2_TITLE, fromScale, logAxis, parameterTitle, positionScale, scaleKind, toScale } from './axes.ts';
 import { bestValue, levelLabel, sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 

@@ -4,7 +4,8 @@
  * unsafe or repeated names refused with a UserError naming the field.
  */
 import { FIGURE_KINDS, type FigureKind, type FigureRequestConfig } from '../../config/sections/report.ts';
-import { UserError, UserErrors } from '../../config/errors.ts';
+import { throwProblems, UserError } from '../../config/errors.ts';
+import { DEFAULT_LEVELS } from '../../fit/regions.ts';
 import { checkOutputName, outputNameProblem } from '../paths.ts';
 import type { ReportInput } from '../types.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
@@ -36,7 +37,7 @@ export function figureContext(input: ReportInput, warnings: string[]): FigureCon
     input,
     fits: new Map(input.fit.fits.map((f) => [f.sightline, f] as const)),
     profiles: new Map((input.profiles?.sightlines ?? []).map((p) => [p.sightline, p] as const)),
-    levels: levels.length > 0 ? levels : [0.683, 0.954],
+    levels: levels.length > 0 ? levels : [...DEFAULT_LEVELS],
     warnings,
   };
 }
@@ -110,8 +111,7 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
     if (full.species) checkSpecies(full.species, `${field}.species`);
     requests.push({ kind: builder.kind, name, named: full.name !== undefined, explicit, sightlines, species: full.species ?? input.config.species ?? [], formats: full.formats, field });
   }
-  if (problems.length === 1) throw problems[0];
-  if (problems.length > 1) throw new UserErrors(`${problems.length} problems in the report section:`, problems, { file: input.configFile });
+  throwProblems(problems, `${problems.length} problems in the report section:`, { file: input.configFile });
   return requests;
 }
 

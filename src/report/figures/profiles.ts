@@ -5,10 +5,10 @@
  * interval is where the profile lies below a line).
  */
 import type { TopLevelSpec } from 'vega-lite';
+import { deltaChi2Threshold } from '../../fit/regions.ts';
 import type { Profile1D, SightlineFit } from '../../fit/types.ts';
 import { slug } from '../escape.ts';
 import { figureConfig, figureSize } from '../theme.ts';
-import { deltaChi2Threshold } from '../thresholds.ts';
 import { DELTA_CHI2_TITLE, logAxis, paddedDomain, parameterTitle, positionScale, scaleKind } from './axes.ts';
 import { bestValue, levelLabel, sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
