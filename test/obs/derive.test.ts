@@ -159,7 +159,7 @@ describe('a reference of its own per quantity', () => {
   it("a reference the observations lack names the quantity's reference, not observations.reference", () => {
     const obs = set(sightline('a', undefined, undefined, { 'CH3OH(s)': det(3e16, 3e15), 'H2O(s)': det(1e18, 1e17) }));
     expect(() => deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'CH3OH(s)', as: 'ratio', reference: 'CO(s)' }])).toThrow(
-      /x\.csv, field 'fit\.quantities': the ratio CH3OH\(s\)\/CO\(s\) is asked for, but the observations have no column for its reference 'CO\(s\)' \(they have CH3OH\(s\), H2O\(s\)\)/,
+      /hand\.csv, field 'fit\.quantities': the ratio CH3OH\(s\)\/CO\(s\) is asked for, but the observations have no column for its reference 'CO\(s\)' \(they have CH3OH\(s\), H2O\(s\)\)/,
     );
   });
 
