@@ -1,6 +1,6 @@
 /**
  * Rate coefficients of every reaction of a network for given physical
- * conditions (physics.md sections 1-3). Coefficients are in number-density
+ * conditions (docs/physics.md sections 1-3). Coefficients are in number-density
  * units: s^-1 for one reactant, cm^3 s^-1 for two (the event rate per volume
  * is k n_i n_j); src/chem/system.ts folds them with n_H for fractional
  * abundances.
@@ -61,7 +61,7 @@ export interface RateOptions {
   selfShielding?: boolean;
 }
 
-/** Gas species that do not stay on a grain: helium binds at about 100 K (physics.md section 3). */
+/** Gas species that do not stay on a grain: helium binds at about 100 K (docs/physics.md section 3). */
 const NON_STICKING = new Set(['He']);
 
 /**
@@ -161,7 +161,7 @@ function isH2Photodissociation(r: Reaction, data: SurfaceData): boolean {
   return r.reactants.length === 1 && r.reactants[0] === 'H2' && r.products.length === 2 && r.products.every((n) => data.species(n).name === 'H');
 }
 
-/** Evaluate every reaction's coefficient (physics.md sections 1-3). */
+/** Evaluate every reaction's coefficient (docs/physics.md sections 1-3). */
 export function computeRates(network: Network, c: PhysicalConditions, grain: GrainOptions, options: RateOptions = {}): RateSet {
   const selfShielding = options.selfShielding ?? true;
   const props = grainProperties(c);
@@ -220,7 +220,7 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
       case 'accretion': {
         const s = data.species(r.reactants[0]);
         if (NON_STICKING.has(s.gasName)) {
-          skipped.push({ reaction: r, reason: `${s.gasName} does not stay on grains (binding about 100 K, physics.md section 3): accretion left out` });
+          skipped.push({ reaction: r, reason: `${s.gasName} does not stay on grains (binding about 100 K, docs/physics.md section 3): accretion left out` });
           break;
         }
         rates.push({ reaction: r, k: accretionRate(p.sticking, props.crossSection, c.gas_temperature, data.mass(r.reactants[0]), grainDensity), form: 'mass-action' });

@@ -2,7 +2,7 @@
  * From column densities to what the fit compares with models: abundances
  * relative to H nuclei and ratios to a reference species (the quantity's
  * own, or the observations section's), in log10 with
- * errors in dex, limits carried through (physics.md section 5).
+ * errors in dex, limits carried through (docs/physics.md section 5).
  *
  * - N_H = (N_H/A_V) A_V, N_H/A_V = 1.87e21 cm^-2 mag^-1 by default (Bohlin,
  *   Savage & Drake 1978). Abundances use the observed line-of-sight A_V:

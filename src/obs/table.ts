@@ -429,7 +429,7 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
         }
       }
       const factor = sp.factors.get(valueCol) ?? 1;
-      // N = tau_int / A for optical depths (physics.md section 5).
+      // N = tau_int / A for optical depths (docs/physics.md section 5).
       const toColumn = (x: number) => (sp.band ? x / sp.band.strength : x);
       const value = toColumn(p.value * factor);
       if (!(p.value > 0)) {
