@@ -1,5 +1,5 @@
 /** `hoarfrost observations FILE|PIPELINE` end to end on the example files: what it prints, exit codes, bad input without a stack trace. */
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -87,6 +87,20 @@ describe('hoarfrost observations', () => {
     expect(header.split(/\s{2,}/)).toEqual(['sightline', 'X(H2O(s))', 'CO2(s)/CO(s)']);
     // FM-01: X = 6.1e17 / (1.87e21 * (8.4 - 3)) = 6.04e-5, log10 = -4.22.
     expect(r.stdout.split('\n').filter((l) => l.startsWith('FM-01'))[1]).toMatch(/^FM-01\s+-4\.22/);
+  });
+
+  it('columns of species outside the network (HCOOH(s), OCN-(s)) are carried with a note, and no quantity is derived from them', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-obs-cli-'));
+    writeFileSync(join(dir, 'more.csv'), 'id,AV,N(H2O(s)),N(H2O(s))_err,N(CO(s)),N(CO(s))_err,N(HCOOH(s)),N(HCOOH(s))_err,N(OCN-(s)),N(OCN-(s))_err\na,8,1e18,1e17,3e17,3e16,2e16,4e15,<1e16,\n');
+    const r = hoarfrost(['more.csv', '--json', '--network', NETWORK], dir);
+    rmSync(dir, { recursive: true, force: true });
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout) as { observations: { outsideNetwork: string[]; sightlines: { columns: Record<string, unknown> }[] }; quantities: { label: string }[]; warnings: string[] };
+    expect(out.observations.outsideNetwork).toEqual(['HCOOH(s)', 'OCN-(s)']);
+    expect(Object.keys(out.observations.sightlines[0].columns)).toEqual(['H2O(s)', 'CO(s)', 'HCOOH(s)', 'OCN-(s)']);
+    expect(out.quantities.map((q) => q.label)).toEqual(['X(H2O(s))', 'X(CO(s))', 'CO(s)/H2O(s)']);
+    for (const sp of ['HCOOH(s)', 'OCN-(s)']) expect(out.warnings.some((w) => w.includes(`species '${sp}'`) && w.includes('is not in the network: its column is read and kept, but it cannot be fitted'))).toBe(true);
   });
 
   it('bad input: exit 2, the file and column named, no stack trace', () => {
