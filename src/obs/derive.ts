@@ -1,8 +1,8 @@
 /**
  * From column densities to what the fit compares with models: abundances
  * relative to H nuclei and ratios to a reference species (the quantity's
- * own, or the observations section's), in log10 with
- * errors in dex, limits carried through (docs/physics.md section 5).
+ * own, or the observations section's), in log10 with errors in dex, limits
+ * carried through (docs/physics.md section 5).
  *
  * - N_H = (N_H/A_V) A_V, N_H/A_V = 1.87e21 cm^-2 mag^-1 by default (Bohlin,
  *   Savage & Drake 1978). Abundances use the observed line-of-sight A_V:
@@ -122,7 +122,7 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
     // A column the network lacks is carried for the reader, but no model gives it, so it cannot be fitted.
     const lacking = [w.species, ...(w.as === 'ratio' ? [ref] : [])].filter((sp) => outside.has(sp));
     if (lacking.length > 0) {
-      problems.push(new UserError(`the ${what} is asked for, but the network has no species ${lacking.map((sp) => `'${sp}'`).join(' or ')}, so no model gives it. Remove the quantity from fit.quantities, or add the species to the network.`, { file: set.file, field: 'fit.quantities' }));
+      problems.push(new UserError(`the ${what} is asked for, but the network has no species ${lacking.map((sp) => `'${sp}'`).join(' or ')}, so no model gives it. Remove the quantity from fit.quantities, or add the species to the network.`, { field: 'fit.quantities' }));
       continue;
     }
     if (!set.sightlines.some((s) => s.columns[w.species])) {
