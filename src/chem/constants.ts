@@ -34,13 +34,13 @@ export const CR_REFERENCE_RATE = 1.3e-17;
 /** Mean mass per H nucleus in units of m_H, with helium (common practice). */
 export const MEAN_MASS_PER_H = 1.4;
 
-/** Photon flux of a G0 = 1 field in the photodesorbing band, photons cm^-2 s^-1 (physics.md section 3; common practice). */
+/** Photon flux of a G0 = 1 field in the photodesorbing band, photons cm^-2 s^-1 (docs/physics.md section 3; common practice). */
 export const HABING_PHOTON_FLUX = 1e8;
 
-/** Dust attenuation of the photodesorbing UV per mag of A_V: F ∝ exp(-2 A_V) (physics.md section 3; common practice). */
+/** Dust attenuation of the photodesorbing UV per mag of A_V: F ∝ exp(-2 A_V) (docs/physics.md section 3; common practice). */
 export const PHOTODESORPTION_ATTENUATION = 2;
 
-/** Cosmic-ray induced UV photon flux at zeta = zeta_0, photons cm^-2 s^-1 (physics.md section 3: "about 1e4", the order of magnitude, memory; Prasad & Tarafdar 1983 mechanism). */
+/** Cosmic-ray induced UV photon flux at zeta = zeta_0, photons cm^-2 s^-1 (docs/physics.md section 3: "about 1e4", the order of magnitude, memory; Prasad & Tarafdar 1983 mechanism). */
 export const CR_UV_PHOTON_FLUX = 1e4;
 
 /** Fraction of time a grain spends near the peak temperature after a cosmic-ray hit (Hasegawa & Herbst 1993). */

@@ -1,4 +1,4 @@
-/** Freeze-out of gas particles onto grains (physics.md section 3; HHL92). */
+/** Freeze-out of gas particles onto grains (docs/physics.md section 3; HHL92). */
 import { ATOMIC_MASS_UNIT, BOLTZMANN } from './constants.ts';
 
 /** Mean thermal speed v = sqrt(8 k_B T / (pi m)), cm s^-1 (kinetic theory); mass in u. */

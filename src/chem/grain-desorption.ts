@@ -1,6 +1,6 @@
 /**
  * Desorption from grains: thermal, cosmic-ray induced and UV photodesorption
- * (physics.md section 3; HHL92; Hasegawa & Herbst 1993).
+ * (docs/physics.md section 3; HHL92; Hasegawa & Herbst 1993).
  */
 import {
   ATOMIC_MASS_UNIT,
@@ -38,7 +38,7 @@ export function crDesorptionRate(nu0: number, bindingEnergy: number, crIonisatio
 
 /**
  * UV photon flux at the grain, photons cm^-2 s^-1: G0 1e8 exp(-2 A_V) from the
- * external field plus 1e4 zeta/zeta_0 from cosmic-ray induced UV (physics.md section 3).
+ * external field plus 1e4 zeta/zeta_0 from cosmic-ray induced UV (docs/physics.md section 3).
  */
 export function photodesorptionFlux(uvField: number, visualExtinction: number, crIonisationRate: number): number {
   return uvField * HABING_PHOTON_FLUX * Math.exp(-PHOTODESORPTION_ATTENUATION * visualExtinction) + CR_UV_PHOTON_FLUX * (crIonisationRate / CR_REFERENCE_RATE);
@@ -47,7 +47,7 @@ export function photodesorptionFlux(uvField: number, visualExtinction: number, c
 /**
  * First-order photodesorption rate below one monolayer, s^-1: each grain loses
  * Y F pi a^2 times the fraction of its sites holding the species, so per ice
- * particle k = Y F pi a^2 / N_sites (physics.md section 3). Above one monolayer
+ * particle k = Y F pi a^2 / N_sites (docs/physics.md section 3). Above one monolayer
  * the per-grain rate saturates (see the system's monolayer term).
  */
 export function photodesorptionRate(yieldPerPhoton: number, flux: number, crossSection: number, sitesPerGrain: number): number {

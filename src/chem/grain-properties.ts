@@ -1,6 +1,6 @@
 /**
  * The dust grain as one size: cross-section, number per H nucleus, surface
- * sites and the abundance of one monolayer (physics.md section 2; HHL92).
+ * sites and the abundance of one monolayer (docs/physics.md section 2; HHL92).
  */
 import type { PhysicalConditions } from '../config/conditions.ts';
 import { HYDROGEN_MASS, MEAN_MASS_PER_H, MICROMETRE } from './constants.ts';
@@ -22,7 +22,7 @@ export interface GrainProperties {
 
 /**
  * Grain number per H nucleus: n_gr / n_H = (dust-to-gas) 1.4 m_H / (4/3 pi a^3 rho_gr)
- * (physics.md section 2; about 1.9e-12 with the defaults).
+ * (docs/physics.md section 2; about 1.9e-12 with the defaults).
  */
 export function grainAbundance(radiusCm: number, grainDensity: number, dustToGas: number): number {
   const grainMass = (4 / 3) * Math.PI * radiusCm ** 3 * grainDensity;

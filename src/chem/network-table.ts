@@ -90,7 +90,7 @@ export function isTableFile(file: string): boolean {
 export function loadNetworkTable(tableFile: string, mappingFile?: string): Network {
   const mapping = mappingFile ?? join(dirname(tableFile), basename(tableFile, extname(tableFile)) + MAPPING_SUFFIX);
   if (mappingFile === undefined && !existsSync(mapping)) {
-    throw new UserError(`a table network needs a column mapping; none found at ${mapping}. Write one there (format: ${TABLE_MAPPING_FORMAT}, see DEVELOPERS.md) or name it with --mapping.`, { file: tableFile });
+    throw new UserError(`a table network needs a column mapping; none found at ${mapping}. Write one there (format: ${TABLE_MAPPING_FORMAT}; its keys are in docs/formats.md section 2) or name it with --mapping.`, { file: tableFile });
   }
   const bytes = readBytes(mapping, 'column mapping');
   const loaded = parseYamlText(decodeText(bytes, mapping, 'column mapping'), mapping);

@@ -1,6 +1,6 @@
 /**
  * Rate coefficients of every reaction of a network for given physical
- * conditions (physics.md sections 1-3). Coefficients are in number-density
+ * conditions (docs/physics.md sections 1-3). Coefficients are in number-density
  * units: s^-1 for one reactant, cm^3 s^-1 for two (the event rate per volume
  * is k n_i n_j); src/chem/system.ts folds them with n_H for fractional
  * abundances.
@@ -76,7 +76,7 @@ export interface RateOptions {
   selfShielding?: boolean;
 }
 
-/** Gas species that do not stay on a grain: helium binds at about 100 K (physics.md section 3). */
+/** Gas species that do not stay on a grain: helium binds at about 100 K (docs/physics.md section 3). */
 const NON_STICKING = new Set(['He']);
 
 /**
@@ -178,7 +178,7 @@ function isH2Photodissociation(r: Reaction, data: SurfaceData): boolean {
 
 /**
  * Warning for the Hollenbach & McKee treatment used where its recombination
- * fraction has fallen below one half (physics.md section 10). The surface
+ * fraction has fallen below one half (docs/ice-h2-tunnelling.md). The surface
  * route's warning depends on the state and is given by the model run.
  */
 function h2RangeNotes(grain: GrainOptions, dustTemperature: number): string[] {
@@ -190,7 +190,7 @@ function h2RangeNotes(grain: GrainOptions, dustTemperature: number): string[] {
   return [];
 }
 
-/** Evaluate every reaction's coefficient (physics.md sections 1-3). */
+/** Evaluate every reaction's coefficient (docs/physics.md sections 1-3). */
 export function computeRates(network: Network, c: PhysicalConditions, grain: GrainOptions, options: RateOptions = {}): RateSet {
   const selfShielding = options.selfShielding ?? true;
   const props = grainProperties(c);
@@ -274,7 +274,7 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
       case 'accretion': {
         const s = data.species(r.reactants[0]);
         if (NON_STICKING.has(s.gasName)) {
-          skipped.push({ reaction: r, reason: `${s.gasName} does not stay on grains (binding about 100 K, physics.md section 3): accretion left out` });
+          skipped.push({ reaction: r, reason: `${s.gasName} does not stay on grains (binding about 100 K, docs/physics.md section 3): accretion left out` });
           break;
         }
         rates.push({ reaction: r, k: accretionRate(p.sticking, props.crossSection, c.gas_temperature, data.mass(r.reactants[0]), grainDensity), form: 'mass-action' });

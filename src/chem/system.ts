@@ -103,7 +103,7 @@ function reactionName(r: Reaction): string {
 }
 
 /**
- * Photodesorption with the monolayer treatment (physics.md section 3): a grain
+ * Photodesorption with the monolayer treatment (docs/physics.md section 3): a grain
  * loses Y F pi a^2 times the share of its outer layer held by species i. Below
  * one monolayer of ice that share is N_i / N_sites (first order, rate k x_i);
  * above it, for a well-mixed ice, x_i / x_ice of a full layer, so the rate is

@@ -1,6 +1,6 @@
 /**
- * The censored-likelihood cost of a limit (a Tobit-style likelihood; physics.md
- * section 6): for an upper limit L, -2 ln Phi((log10 L - log10 X_model) / sigma),
+ * The censored-likelihood cost of a limit (a Tobit-style likelihood;
+ * docs/statistics.md section 3): for an upper limit L, -2 ln Phi((log10 L - log10 X_model) / sigma),
  * and mirrored for a lower limit, -2 ln Phi((log10 X_model - log10 L) / sigma).
  * Far inside the allowed side it tends to 0; across the limit it grows like a
  * one-sided Gaussian, ((log10 X_model - log10 L) / sigma)^2 plus a slowly growing log term.

@@ -1,6 +1,6 @@
 /**
  * One sightline's (or pixel's) observed quantities aligned to the fit's
- * quantity terms, with the widths of physics.md section 6 folded in:
+ * quantity terms, with the widths of docs/statistics.md section 2 folded in:
  * sigma^2 = sigma_obs^2 + sigma_model^2 for detections (the lower or upper
  * observational error chosen later by the sign of d), and
  * sigma^2 = sigma_limit^2 + sigma_model^2 for limits.

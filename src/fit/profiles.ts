@@ -1,7 +1,7 @@
 /**
  * Profiles: chi^2 minimised over every other parameter (and time) as a
- * function of one parameter's grid values, or of a pair's (physics.md
- * section 6; the profile-likelihood form of Avni's projection).
+ * function of one parameter's grid values, or of a pair's (docs/statistics.md
+ * section 5; the profile-likelihood form of Avni's projection).
  */
 import type { Axis } from './axes.ts';
 import type { Profile1D, Profile2D } from './types.ts';

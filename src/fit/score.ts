@@ -1,11 +1,11 @@
 /**
- * chi^2 of every candidate against one sightline (physics.md section 6):
+ * chi^2 of every candidate against one sightline (docs/statistics.md section 3):
  * chi^2 = sum over detections of (d_j / sigma_j)^2, d_j = log10 X_model,j -
  * log10 X_obs,j, sigma_j from the observational error on the side of d
  * (upper error when the model lies above) combined with the model floor,
  * plus the censored cost of every limit. The loop runs on typed arrays and
  * allocates nothing. Quantities are scored as independent, as the sum of
- * physics.md section 6 is: ratios to one reference share that reference's
+ * docs/statistics.md section 2 says: ratios to one reference share that reference's
  * observational error, a correlation this sum leaves out (it matters when the
  * reference's error is comparable to the others and the model floor small).
  */

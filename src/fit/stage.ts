@@ -101,7 +101,7 @@ function checkRatioReferences(observations: ObservationSet, quantities: readonly
           source,
           ['fit', 'quantities'],
           `the ratios ${labels.join(', ')} are to ${ref}, which ${observations.file} gives only as a limit (on all ${measured.length} sightline(s) that list it), so no ratio is measured. ` +
-            `Fit these species as abundances (fit.quantities: { species: ..., as: abundance }), or choose a reference detected on the sightlines (observations.reference).`,
+            `Fit these species as abundances (fit.quantities: { species: ..., as: abundance }), or choose a reference detected on the sightlines (the quantity's reference, or observations.reference).`,
         ),
       );
     }
@@ -130,15 +130,21 @@ function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[
 }
 
 /**
- * Term floors set per quantity: a quantity `{ species: S, as: ratio }` is the
- * term S/reference, `{ species: S, as: abundance }` the term S alone.
+ * Term floors set per quantity: `{ species: S, as: abundance }` is the term S
+ * alone, `{ species: S, as: ratio, reference: R }` the term S/R, and
+ * `{ species: S, as: ratio }` the ratio of S to the observations' reference:
+ * the one ratio term of S whose denominator no entry of S names itself.
  */
 function termFloors(section: FitSection, quantities: readonly ObservedQuantity[]): Map<string, number> {
   const floors = new Map<string, number>();
+  const named = new Set(section.quantities.flatMap((fq) => (fq.reference === undefined ? [] : [termKey(fq.species, fq.reference)])));
   for (const fq of section.quantities) {
     if (fq.model_sigma_dex === undefined) continue;
     for (const q of quantities) {
-      if (q.numerator === fq.species && (q.denominator !== undefined) === (fq.as === 'ratio')) floors.set(termKey(q.numerator, q.denominator), fq.model_sigma_dex);
+      if (q.numerator !== fq.species || (q.denominator !== undefined) !== (fq.as === 'ratio')) continue;
+      const key = termKey(q.numerator, q.denominator);
+      if (q.denominator !== undefined && (fq.reference !== undefined ? q.denominator !== fq.reference : named.has(key))) continue;
+      floors.set(key, fq.model_sigma_dex);
     }
   }
   return floors;

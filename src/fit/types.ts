@@ -262,7 +262,7 @@ export interface FitStageResult {
   joint: JointFit[];
   /** Every warning of the stage: the observations', the stage's, and each fit's and joint group's (also kept in that fit). */
   warnings: string[];
-  /** Model cautions to show the reader (physics.md section 8). */
+  /** Model cautions to show the reader (docs/physics.md section 8). */
   cautions: string[];
 }
 

@@ -1,6 +1,6 @@
 /**
  * Element and charge totals of a state, and their drift from the start: a
- * check of the integration at every output (physics.md section 7).
+ * check of the integration at every output (docs/physics.md section 7).
  */
 import type { Network } from '../chem/network-types.ts';
 import type { ConservationReport } from './types.ts';

@@ -1,6 +1,6 @@
 /**
  * Band strengths for ice columns from integrated optical depth,
- * N = integral(tau d nu) / A (physics.md section 5). The table lives in
+ * N = integral(tau d nu) / A (docs/physics.md section 5). The table lives in
  * config/band-strengths.yaml; its values are recalled ("memory").
  */
 import { fileURLToPath } from 'node:url';

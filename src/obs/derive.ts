@@ -1,7 +1,8 @@
 /**
  * From column densities to what the fit compares with models: abundances
- * relative to H nuclei and ratios to a reference species, in log10 with
- * errors in dex, limits carried through (physics.md section 5).
+ * relative to H nuclei and ratios to a reference species (the quantity's
+ * own, or the observations section's), in log10 with errors in dex, limits
+ * carried through (docs/physics.md section 5).
  *
  * - N_H = (N_H/A_V) A_V, N_H/A_V = 1.87e21 cm^-2 mag^-1 by default (Bohlin,
  *   Savage & Drake 1978). Abundances use the observed line-of-sight A_V:
@@ -34,6 +35,8 @@ import type { Measurement, MeasurementKind, ObservationSet, ObservedQuantity, Si
 export interface WantedQuantity {
   species: string;
   as: 'abundance' | 'ratio';
+  /** Denominator of a ratio, any species the observations hold; default the section's reference. */
+  reference?: string;
 }
 
 /** How many sightline names a warning lists before counting the rest. */
@@ -93,20 +96,32 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
   const quantities: ObservedQuantity[] = [];
   const warnings: string[] = [];
   const problems: UserError[] = [];
-  const ref = section.reference;
+  const outside = new Set(set.outsideNetwork ?? []);
   const done = new Set<string>();
   for (const w of wanted) {
-    const key = `${w.as}:${w.species}`;
+    const ref = w.reference ?? section.reference;
+    const key = w.as === 'ratio' ? `ratio:${w.species}/${ref}` : `abundance:${w.species}`;
     if (done.has(key)) continue;
     done.add(key);
     const inFile = set.species ?? [...new Set(set.sightlines.flatMap((s) => Object.keys(s.columns)))];
+    const what = w.as === 'ratio' ? `ratio ${w.species}/${ref}` : `abundance X(${w.species})`;
     if (!inFile.includes(w.species)) {
       problems.push(new UserError(`the ${w.as === 'ratio' ? 'ratio' : 'abundance'} of '${w.species}' is asked for, but the observations have no column for it (they have ${inFile.join(', ') || 'none'}). Check the spelling or the column mapping.`, { file: set.file, field: w.species }));
       continue;
     }
     if (w.as === 'ratio' && w.species !== ref && !inFile.includes(ref)) {
-      // One problem for the reference, however many ratios ask for it.
-      if (!problems.some((p) => p.location.field === 'reference')) problems.push(new UserError(`ratios to the reference '${ref}' are asked for, but the observations have no column for it (they have ${inFile.join(', ')}). Set 'reference' in the observations section to a species they have.`, { file: set.file, field: 'reference' }));
+      if (w.reference !== undefined) {
+        problems.push(new UserError(`the ${what} is asked for, but the observations have no column for its reference '${ref}' (they have ${inFile.join(', ')}). Give the quantity a reference they have.`, { file: set.file, field: 'fit.quantities' }));
+      } else if (!problems.some((p) => p.location.field === 'reference')) {
+        // One problem for the section's reference, however many ratios ask for it.
+        problems.push(new UserError(`ratios to the reference '${ref}' are asked for, but the observations have no column for it (they have ${inFile.join(', ')}). Set 'reference' in the observations section to a species they have.`, { file: set.file, field: 'reference' }));
+      }
+      continue;
+    }
+    // A column the network lacks is carried for the reader, but no model gives it, so it cannot be fitted.
+    const lacking = [w.species, ...(w.as === 'ratio' ? [ref] : [])].filter((sp) => outside.has(sp));
+    if (lacking.length > 0) {
+      problems.push(new UserError(`the ${what} is asked for, but the network has no species ${lacking.map((sp) => `'${sp}'`).join(' or ')}, so no model gives it. Remove the quantity from fit.quantities, or add the species to the network.`, { field: 'fit.quantities' }));
       continue;
     }
     if (!set.sightlines.some((s) => s.columns[w.species])) {

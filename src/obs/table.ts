@@ -226,8 +226,8 @@ function buildPlan(table: RawTable, opts: TableOptions, problems: UserError[], w
       continue;
     }
     if (opts.knownSpecies && !opts.knownSpecies.has(name)) {
-      problems.push(new UserError(`species '${name}' (${what} '${cols.value ?? cols.tau_int}') is not in the network. Check the spelling (ices end in '(s)', e.g. CO(s)) or add the species to the network.`, { file, field: cols.value ?? cols.tau_int ?? field }));
-      continue;
+      // Observers list every column they measured; one no model gives is still shown. Fitting it is refused (deriveQuantities).
+      warnings.push(`${file}: species '${name}' (${what} '${cols.value ?? cols.tau_int}') is not in the network: its column is read and kept, but it cannot be fitted. If it should be, check the spelling (ices end in '(s)', e.g. CO(s)) or add the species to the network.`);
     }
     if (cols.value !== undefined && cols.tau_int !== undefined) {
       problems.push(new UserError(`species '${name}' has both a column density ('${cols.value}') and an optical depth ('${cols.tau_int}'); map one of them.`, { file, field }));
@@ -480,7 +480,7 @@ function readMeasurement(rd: RowReader, sp: SpeciesPlan, maxErrorRatio: number):
   const kind = limitKind(rd, sp, valueCol, p.kind);
   if (kind === undefined) return undefined;
   const factor = sp.factors.get(valueCol) ?? 1;
-  // N = tau_int / A for optical depths (physics.md section 5).
+  // N = tau_int / A for optical depths (docs/physics.md section 5).
   const toColumn = (x: number) => (sp.band ? x / sp.band.strength : x);
   const value = toColumn(p.value * factor);
   if (!(p.value > 0)) {
@@ -571,6 +571,8 @@ export function tableToObservations(table: RawTable, opts: TableOptions): Observ
     format: table.format,
     species: plan.species.map((s) => s.name),
   };
+  const outside = opts.knownSpecies ? set.species!.filter((n) => !opts.knownSpecies!.has(n)) : [];
+  if (outside.length > 0) set.outsideNetwork = outside;
   if (table.map) set.map = table.map;
   return set;
 }

@@ -51,6 +51,8 @@ export interface ObservationSet {
   format?: 'csv' | 'tsv' | 'yaml' | 'votable' | 'fits';
   /** Every species with a column in the file, in file order. */
   species?: string[];
+  /** Species read from the file that the network given to the reader lacks: carried and shown, never fitted. */
+  outsideNetwork?: string[];
 }
 
 /**

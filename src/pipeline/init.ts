@@ -20,6 +20,12 @@ const SOURCES = {
   'observations.columns.yaml': join(ROOT, 'pipelines/demo/sightlines.columns.yaml'),
 } as const;
 const README_TEMPLATE = join(HERE, 'templates/README.md');
+/**
+ * Every file `init` reads, found beside this module rather than in the
+ * current folder, so that an installed `hoarfrost` finds them wherever it
+ * runs (package.json's `files` must ship each one).
+ */
+export const PROJECT_TEMPLATE_FILES: readonly string[] = [...Object.values(SOURCES), README_TEMPLATE];
 
 export interface InitResult {
   dir: string;

@@ -1,5 +1,5 @@
 /**
- * Cautions every report shows beside its results (physics.md section 8, in
+ * Cautions every report shows beside its results (docs/physics.md section 8, in
  * our words): the fit stage's own list, which every fit result carries.
  */
 import { MODEL_CAUTIONS } from '../fit/cautions.ts';

@@ -89,6 +89,19 @@ describe('hoarfrost observations', () => {
     expect(r.stdout.split('\n').filter((l) => l.startsWith('FM-01'))[1]).toMatch(/^FM-01\s+-4\.22/);
   });
 
+  it('columns of species outside the network (HCOOH(s), OCN-(s)) are carried with a note, and no quantity is derived from them', () => {
+    const dir = scratch('hoarfrost-obs-cli-');
+    writeFileSync(join(dir, 'more.csv'), 'id,AV,N(H2O(s)),N(H2O(s))_err,N(CO(s)),N(CO(s))_err,N(HCOOH(s)),N(HCOOH(s))_err,N(OCN-(s)),N(OCN-(s))_err\na,8,1e18,1e17,3e17,3e16,2e16,4e15,<1e16,\n');
+    const r = hoarfrost(['more.csv', '--json', '--network', NETWORK], dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout) as { observations: { outsideNetwork: string[]; sightlines: { columns: Record<string, unknown> }[] }; quantities: { label: string }[]; warnings: string[] };
+    expect(out.observations.outsideNetwork).toEqual(['HCOOH(s)', 'OCN-(s)']);
+    expect(Object.keys(out.observations.sightlines[0].columns)).toEqual(['H2O(s)', 'CO(s)', 'HCOOH(s)', 'OCN-(s)']);
+    expect(out.quantities.map((q) => q.label)).toEqual(['X(H2O(s))', 'X(CO(s))', 'CO(s)/H2O(s)']);
+    for (const sp of ['HCOOH(s)', 'OCN-(s)']) expect(out.warnings.some((w) => w.includes(`species '${sp}'`) && w.includes('is not in the network: its column is read and kept, but it cannot be fitted'))).toBe(true);
+  });
+
   it('bad input: exit 2, the file and column named, no stack trace', () => {
     const dir = scratch('hoarfrost-obs-cli-');
     writeFileSync(join(dir, 'bad.csv'), 'id,AV,N(CO(s)),N(CO(s))_err\na,5,-3e17,1e16\n');

@@ -67,15 +67,19 @@ describe('hoarfrost init', () => {
     const r = cli(['init', 'survey'], dir);
     expect(r.code).toBe(0);
     for (const f of ['pipeline.yaml', 'observations.csv', 'observations.columns.yaml', 'network.yaml', 'README.md']) expect(existsSync(join(dir, 'survey', f)), f).toBe(true);
-    expect(r.stdout).toContain('next: npx hoarfrost run survey/pipeline.yaml');
-    expect(readFileSync(join(dir, 'survey/README.md'), 'utf8')).toContain('npx hoarfrost run survey/pipeline.yaml');
+    // The installed command, never `npx hoarfrost`: npx outside the clone asks the public registry for a package of that name.
+    expect(r.stdout).toContain('next: hoarfrost run survey/pipeline.yaml');
+    const readme = readFileSync(join(dir, 'survey/README.md'), 'utf8');
+    expect(readme).toContain('    hoarfrost run survey/pipeline.yaml');
+    expect(readme).not.toContain('npx');
     const before = readFileSync(join(dir, 'survey/pipeline.yaml'), 'utf8');
     writeFileSync(join(dir, 'survey/pipeline.yaml'), 'name: mine\n');
     const again = cli(['init', 'survey'], dir);
     expect(again.code).toBe(2);
     expect(again.stderr).toContain('survey: would overwrite pipeline.yaml, network.yaml, observations.csv, observations.columns.yaml, README.md; nothing was written. Choose an empty folder, or move these files away first.');
     expect(readFileSync(join(dir, 'survey/pipeline.yaml'), 'utf8')).toBe('name: mine\n');
-    expect(before).toContain('npx hoarfrost run pipeline.yaml');
+    expect(before).toContain('hoarfrost run pipeline.yaml');
+    expect(before).not.toContain('npx');
     expectNoStack(again.stderr);
   });
 });

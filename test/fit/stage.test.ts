@@ -111,6 +111,22 @@ describe('profiles, intervals and degrees of freedom', () => {
     expect(sigma('X(CO(s))')).toBeCloseTo(Math.hypot(0.1, 0.3), 12);
   });
 
+  it('a floor set on a ratio applies to the term of its own reference alone', () => {
+    const x = analyticAbundances(DENSITIES[3], TIMES[5]).map(Math.log10);
+    // SPECIES order: H2O(s), CO(s), CO2(s), CH3OH(s), CO.
+    const ratios = [detection('s1', 'CH3OH(s)', x[3] - x[1], 0.1, 'CO(s)'), detection('s1', 'CH3OH(s)', x[3] - x[0], 0.1, 'H2O(s)'), detection('s1', 'CO', x[4], 0.1)];
+    const sigmas = (quantities: Record<string, unknown>[]) => {
+      const out = runFitStage({ table, section: parse({ quantities }), observations: observationSet(['s1']), quantities: ratios }).result.fits[0];
+      return Object.fromEntries(out.residuals.map((r) => [r.label, r.sigmaDex]));
+    };
+    const own = sigmas([{ species: 'CH3OH(s)', as: 'ratio', reference: 'CO(s)', model_sigma_dex: 0.7 }, { species: 'CH3OH(s)', as: 'ratio' }, { species: 'CO', as: 'abundance' }]);
+    expect(own['CH3OH(s)/CO(s)']).toBeCloseTo(Math.hypot(0.1, 0.7), 12);
+    expect(own['CH3OH(s)/H2O(s)']).toBeCloseTo(Math.hypot(0.1, 0.3), 12);
+    const global = sigmas([{ species: 'CH3OH(s)', as: 'ratio', reference: 'CO(s)' }, { species: 'CH3OH(s)', as: 'ratio', model_sigma_dex: 0.5 }, { species: 'CO', as: 'abundance' }]);
+    expect(global['CH3OH(s)/CO(s)']).toBeCloseTo(Math.hypot(0.1, 0.3), 12);
+    expect(global['CH3OH(s)/H2O(s)']).toBeCloseTo(Math.hypot(0.1, 0.5), 12);
+  });
+
   it('a poor fit is flagged (p < 0.01)', () => {
     const bad = abundanceQuantities('s9', DENSITIES[3], TIMES[5], 0.05).map((q, j) => ({ ...q, log10: q.log10 + (j % 2 === 0 ? 1.5 : -1.5) }));
     const out = runFitStage({ table, section: parse(), observations: observationSet(['s9']), quantities: bad });

@@ -133,6 +133,45 @@ describe('ratios to the reference species', () => {
   });
 });
 
+describe('a reference of its own per quantity', () => {
+  it('CH3OH(s)/CO(s) and N2H+/CO beside ratios to the global reference, errors combined as for any ratio', () => {
+    // CH3OH(s)/CO(s) = 3e16 / 3e17 = 0.1, log10 = -1; lower side: sqrt(0.1^2 + 0.1^2) / ln 10 = 0.0614185146 (both errors 10 %).
+    // N2H+/CO = 2e12 / 1e18 = 2e-6, log10 = -5.698970004; sides: sqrt(0.2^2 + 0.05^2) / ln 10 = 0.0895321011.
+    const obs = set(sightline('a', undefined, undefined, { 'CH3OH(s)': det(3e16, 3e15), 'CO(s)': det(3e17, 3e16), 'H2O(s)': det(1e18, 1e17), 'N2H+': det(2e12, 4e11), CO: det(1e18, 5e16) }));
+    const { quantities, warnings } = deriveQuantities(obs, section({ file: 'x.csv' }), [
+      { species: 'CH3OH(s)', as: 'ratio', reference: 'CO(s)' },
+      { species: 'CH3OH(s)', as: 'ratio' },
+      { species: 'N2H+', as: 'ratio', reference: 'CO' },
+    ]);
+    expect(warnings).toEqual([]);
+    expect(quantities.map((q) => [q.label, q.numerator, q.denominator])).toEqual([
+      ['CH3OH(s)/CO(s)', 'CH3OH(s)', 'CO(s)'],
+      ['CH3OH(s)/H2O(s)', 'CH3OH(s)', 'H2O(s)'],
+      ['N2H+/CO', 'N2H+', 'CO'],
+    ]);
+    expect(quantities[0].log10).toBeCloseTo(-1, 12);
+    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0614185146, 9);
+    expect(quantities[1].log10).toBeCloseTo(Math.log10(0.03), 12);
+    expect(quantities[2].log10).toBeCloseTo(-5.698970004, 9);
+    expect(quantities[2].sigmaHiDex).toBeCloseTo(0.0895321011, 9);
+  });
+
+  it("a reference the observations lack names the quantity's reference, not observations.reference", () => {
+    const obs = set(sightline('a', undefined, undefined, { 'CH3OH(s)': det(3e16, 3e15), 'H2O(s)': det(1e18, 1e17) }));
+    expect(() => deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'CH3OH(s)', as: 'ratio', reference: 'CO(s)' }])).toThrow(
+      /hand\.csv, field 'fit\.quantities': the ratio CH3OH\(s\)\/CO\(s\) is asked for, but the observations have no column for its reference 'CO\(s\)' \(they have CH3OH\(s\), H2O\(s\)\)/,
+    );
+  });
+
+  it('a quantity whose species or reference the network lacks cannot be fitted; columns outside the network are otherwise carried', () => {
+    const obs = { ...set(sightline('a', 5, 0.5, { 'HCOOH(s)': det(5e16, 5e15), 'H2O(s)': det(1e18, 1e17), 'CO(s)': det(3e17, 3e16) })), outsideNetwork: ['HCOOH(s)'] };
+    expect(deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'CO(s)', as: 'ratio' }]).quantities).toHaveLength(1);
+    expect(() => deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'HCOOH(s)', as: 'ratio' }])).toThrow(/the ratio HCOOH\(s\)\/H2O\(s\) is asked for, but the network has no species 'HCOOH\(s\)', so no model gives it/);
+    expect(() => deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'CO(s)', as: 'ratio', reference: 'HCOOH(s)' }])).toThrow(/the ratio CO\(s\)\/HCOOH\(s\) is asked for, but the network has no species 'HCOOH\(s\)'/);
+    expect(() => deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'HCOOH(s)', as: 'abundance' }])).toThrow(/the abundance X\(HCOOH\(s\)\) is asked for, but the network has no species 'HCOOH\(s\)'/);
+  });
+});
+
 describe('model-cloud A_V', () => {
   it('is half the observed line-of-sight A_V by default (common practice) and follows the fraction', () => {
     const s = sightline('a', 12, 1, {});

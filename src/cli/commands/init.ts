@@ -12,6 +12,6 @@ export function register(program: Command, ctx: CommandContext): void {
       const { displayPath } = await import('../../pipeline/execute.ts');
       const r = initProject(dir);
       for (const f of r.files) ctx.stdout.write(`wrote ${displayPath(f)}\n`);
-      ctx.stdout.write(`next: npx hoarfrost run ${displayPath(`${r.dir}/pipeline.yaml`)}\n`);
+      ctx.stdout.write(`next: hoarfrost run ${displayPath(`${r.dir}/pipeline.yaml`)}\n`);
     });
 }

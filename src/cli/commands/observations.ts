@@ -150,7 +150,8 @@ export function register(program: Command, ctx: CommandContext): void {
         quantities = d.quantities;
         warnings.push(...d.warnings);
       } else {
-        const species = set.species ?? [];
+        // Species outside the network are shown as columns only: no model gives their abundances or ratios.
+        const species = (set.species ?? []).filter((sp) => !set.outsideNetwork?.includes(sp));
         const ratios = species.filter((s) => s !== section.reference).map((s) => ({ species: s, as: 'ratio' as const }));
         const abundances = species.map((s) => ({ species: s, as: 'abundance' as const }));
         const hasAv = set.sightlines.some((s) => s.av !== undefined);

@@ -4,12 +4,18 @@ import { z } from 'zod';
 export const fitQuantity = z
   .object({
     species: z.string().min(1),
-    /** `abundance`: X = N/N_H; `ratio`: N/N(reference), the reference being observations.reference. */
+    /** `abundance`: X = N/N_H; `ratio`: N/N(reference). */
     as: z.enum(['abundance', 'ratio']).default('ratio'),
+    /** The ratio's denominator, any species the observations hold (gas or ice); default observations.reference. */
+    reference: z.string().min(1).optional(),
     /** This quantity's own model-uncertainty floor, dex, in place of fit.model_sigma_dex (a species whose chemistry is less certain). */
     model_sigma_dex: z.number().min(0).optional(),
   })
-  .strict();
+  .strict()
+  .refine((q) => q.reference === undefined || q.as === 'ratio', {
+    path: ['reference'],
+    message: "a reference applies to 'as: ratio' only; remove it, or fit the ratio (as: ratio)",
+  });
 export type FitQuantity = z.infer<typeof fitQuantity>;
 
 /** Parameter names a fit can profile or share: any grid condition, or `age_yr` (the output time). */

@@ -4,7 +4,7 @@
  * the joint confidence regions of the two parameters as contour lines, and
  * the best fit marked. Degeneracies between density and age show as long
  * tilted regions: the map is drawn for every selected sightline, never
- * replaced by the single best value (physics.md section 8).
+ * replaced by the single best value (docs/physics.md section 8).
  */
 import type { TopLevelSpec } from 'vega-lite';
 import { deltaChi2Threshold } from '../../fit/regions.ts';
