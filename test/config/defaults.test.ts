@@ -10,7 +10,16 @@ describe('pipeline section defaults', () => {
     // The values are the fields' own defaults (src/config/pipeline.ts), spelled out here once as a check.
     expect(bare.times).toEqual({ start_yr: 1e3, end_yr: 1e7, count: 41 });
     expect(bare.solver).toEqual({ rtol: 1e-6, atol: 1e-25, max_steps: 50000 });
-    expect(bare.grain).toEqual({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' });
+    expect(bare.grain).toEqual({
+      tunnelling: false,
+      diffusion_competition: false,
+      h2_formation: 'surface',
+      three_body: false,
+      eley_rideal: false,
+      photodissociation_induced: false,
+      ice_photolysis: false,
+      ice_photolysis_factor: 1,
+    });
     expect(bare.photochemistry).toEqual({ h2_self_shielding: true });
   });
 
