@@ -111,7 +111,7 @@ function modelContext(pipeline: Pipeline): ModelContext {
   const network = loadNetwork(pipeline.resolvePath(c.network));
   const initial = loadInitialComposition(c.initial, pipeline.dir, network);
   const timesYr = outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count);
-  const grain: GrainOptions = { tunnelling: c.grain.tunnelling, diffusionCompetition: c.grain.diffusion_competition, h2Formation: c.grain.h2_formation };
+  const grain: GrainOptions = { tunnelling: c.grain.tunnelling, diffusionCompetition: c.grain.diffusion_competition, h2Formation: c.grain.h2_formation, mantle: c.grain.mantle, surfaceLayers: c.grain.surface_layers };
   const fixed: Partial<PhysicalConditions> = {};
   for (const [name, axis] of Object.entries(c.conditions)) if (isConditionName(name) && typeof axis === 'number') fixed[name] = axis;
   return {

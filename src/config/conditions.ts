@@ -42,9 +42,24 @@ export interface GrainOptions {
   diffusionCompetition: boolean;
   /** 'surface': H + H on the grain; 'parametric': R_f n_H n(H) (Jura 1975). */
   h2Formation: 'surface' | 'parametric';
+  /**
+   * Three-phase ice: a reactive surface over an inert bulk mantle, with
+   * surface-to-mantle transfer as the ice grows and back as it erodes
+   * (Hasegawa & Herbst 1993; Garrod & Pauly 2011; docs/ice-mantle.md).
+   */
+  mantle: boolean;
+  /** Monolayers that make the reactive surface when the mantle is on. */
+  surfaceLayers: number;
 }
 
-export const DEFAULT_GRAIN_OPTIONS: GrainOptions = { tunnelling: false, diffusionCompetition: false, h2Formation: 'surface' };
+/**
+ * Monolayers of the reactive surface: the outermost layer alone, as in
+ * Hasegawa & Herbst (1993) and Garrod & Pauly (2011) (memory: the papers'
+ * text was not at hand to re-check).
+ */
+export const DEFAULT_SURFACE_LAYERS = 1;
+
+export const DEFAULT_GRAIN_OPTIONS: GrainOptions = { tunnelling: false, diffusionCompetition: false, h2Formation: 'surface', mantle: false, surfaceLayers: DEFAULT_SURFACE_LAYERS };
 
 export function defaultConditions(): PhysicalConditions {
   const c = {} as PhysicalConditions;

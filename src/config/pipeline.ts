@@ -8,6 +8,7 @@
 import { existsSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
+import { DEFAULT_SURFACE_LAYERS } from './conditions.ts';
 import { UserError } from './errors.ts';
 import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
 import { observationsSection } from './sections/observations.ts';
@@ -38,6 +39,10 @@ export const grainSection = z
     tunnelling: z.boolean().default(false),
     diffusion_competition: z.boolean().default(false),
     h2_formation: z.enum(['surface', 'parametric']).default('surface'),
+    /** Three-phase ice: reactive surface over an inert mantle (docs/ice-mantle.md). Off by default. */
+    mantle: z.boolean().default(false),
+    /** Monolayers of the reactive surface when the mantle is on (default DEFAULT_SURFACE_LAYERS, with its source in conditions.ts). */
+    surface_layers: z.number().positive().default(DEFAULT_SURFACE_LAYERS),
   })
   .strict();
 
@@ -64,7 +69,7 @@ export const pipelineSchema = z
     conditions: conditionsSection.default({}),
     /** Grid points to leave out (see sections/conditions.ts). */
     exclude: excludeSection.default([]),
-    grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' }),
+    grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface', mantle: false, surface_layers: DEFAULT_SURFACE_LAYERS }),
     photochemistry: photochemistrySection.default({ h2_self_shielding: true }),
     initial: initialSection.default('low-metal'),
     times: timesSection.default({ start_yr: 1e3, end_yr: 1e7, count: 41 }),

@@ -4,6 +4,7 @@
  * live. Everything `grid`, `--status`, `merge` and `slurm` agree on.
  */
 import { join } from 'node:path';
+import { outputSpeciesNames } from '../chem/mantle.ts';
 import { loadNetwork } from '../chem/network.ts';
 import type { Network } from '../chem/network-types.ts';
 import type { GrainOptions } from '../config/conditions.ts';
@@ -34,7 +35,7 @@ export interface GridPlan {
 
 export function grainOptions(pipeline: Pipeline): GrainOptions {
   const g = pipeline.config.grain;
-  return { tunnelling: g.tunnelling, diffusionCompetition: g.diffusion_competition, h2Formation: g.h2_formation };
+  return { tunnelling: g.tunnelling, diffusionCompetition: g.diffusion_competition, h2Formation: g.h2_formation, mantle: g.mantle, surfaceLayers: g.surface_layers };
 }
 
 export function solverSettings(pipeline: Pipeline): SolverSettings {
@@ -67,7 +68,7 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
     points,
     gridHash: gridHash(points),
     network,
-    species: network.species.map((s) => s.name),
+    species: outputSpeciesNames(network, shared.grain),
     shared,
     workerInit: { networkFile, networkHash: network.contentHash, initial, timesYr, solver: shared.solver, grain: shared.grain, massActionOnly: false, selfShielding: shared.selfShielding },
     storeDir: join(pipeline.resolvePath(pipeline.config.output), 'store'),

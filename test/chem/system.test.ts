@@ -176,7 +176,7 @@ describe('compile', () => {
 
 describe('compile the default network', () => {
   const network = loadNetwork(join(import.meta.dirname, '..', '..', 'config', 'networks', 'dark-cloud.yaml'));
-  for (const grain of [DEFAULT_GRAIN_OPTIONS, { tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const }]) {
+  for (const grain of [DEFAULT_GRAIN_OPTIONS, { ...DEFAULT_GRAIN_OPTIONS, tunnelling: true, diffusionCompetition: true, h2Formation: 'parametric' as const }]) {
     it(`has an exact Jacobian below and above a monolayer (${JSON.stringify(grain)})`, () => {
       const sys = compile(network, { ...c, dust_temperature: 15 }, grain);
       const mono = sys.rateSet.grain.monolayerAbundance;
