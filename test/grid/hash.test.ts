@@ -41,6 +41,7 @@ describe('model content hash', () => {
     ['tunnelling', (s) => ({ ...s, grain: { ...s.grain, tunnelling: true } })],
     ['reaction-diffusion competition', (s) => ({ ...s, grain: { ...s.grain, diffusionCompetition: true } })],
     ['H2 formation route', (s) => ({ ...s, grain: { ...s.grain, h2Formation: 'parametric' } })],
+    ['three-phase ice', (s) => ({ ...s, grain: { ...s.grain, mantle: true } })],
     ['initial abundance', (s) => ({ ...s, initial: { ...s.initial, 'C+': 7.4e-5 } })],
     ['output times', (s) => ({ ...s, timesYr: Float64Array.from([1e3, 1e4, 2e5]) })],
     ['rtol', (s) => ({ ...s, solver: { ...s.solver, rtol: 1e-7 } })],
@@ -54,6 +55,13 @@ describe('model content hash', () => {
       expect(hashOf(change(shared()))).not.toBe(base);
     });
   }
+
+  it('changes with the surface layers of a three-phase ice, and not while the mantle is off', () => {
+    const s = shared();
+    const mantle = (layers: number) => hashOf({ ...s, grain: { ...s.grain, mantle: true, surfaceLayers: layers } });
+    expect(mantle(2)).not.toBe(mantle(1));
+    expect(hashOf({ ...s, grain: { ...s.grain, surfaceLayers: 2 } })).toBe(base);
+  });
 
   it('changes with any condition', () => {
     const c = defaultConditions();
