@@ -36,7 +36,7 @@ export function fdCheck(sys: CompiledSystem, y: Float64Array, floor = 0): number
       const scale = Math.max(Math.abs(fd), Math.abs(an), 1e-30);
       if (Math.abs(fd - an) > 1e-7 * rowMax[i] && Math.abs(fd - an) / scale > worst) {
         worst = Math.abs(fd - an) / scale;
-        if (process.env.DEBUG_FD) console.log(i, j, fd, an);
+        if (process.env.DEBUG_FD) console.log(sys.species[i], sys.species[j], fd, an);
       }
     }
   }
