@@ -212,7 +212,10 @@ function chooseSpecies(list: string | undefined, names: string[]): string[] {
   const missing = wanted.filter((s) => !names.includes(s));
   if (wanted.length === 0) throw new UserError('--species needs at least one species name, e.g. --species CO,H2O(s).', { field: '--species' });
   if (missing.length > 0) {
-    throw new UserError(`the network has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s)).`, { field: '--species' });
+    throw new UserError(
+      `the model has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s); with grain.mantle on, also H2O(surface) and H2O(mantle)).`,
+      { field: '--species' },
+    );
   }
   return wanted;
 }
