@@ -4,7 +4,7 @@
  * live. Everything `grid`, `--status`, `merge` and `slurm` agree on.
  */
 import { join } from 'node:path';
-import { outputSpeciesNames } from '../chem/mantle.ts';
+import { modelNetwork, outputSpeciesNames } from '../chem/mantle.ts';
 import { loadNetwork } from '../chem/network.ts';
 import type { Network } from '../chem/network-types.ts';
 import type { GrainOptions } from '../config/conditions.ts';
@@ -47,12 +47,14 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
   const grid = expandGrid(gridSpecFromPipeline(pipeline, sightlineAv));
   const networkFile = pipeline.resolvePath(pipeline.config.network);
   const network = loadNetwork(networkFile);
-  const initial = loadInitialComposition(pipeline.config.initial, pipeline.dir, network, [], { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
+  const grain = grainOptions(pipeline);
+  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
+  const initial = loadInitialComposition(pipeline.config.initial, pipeline.dir, modelNetwork(network, grain), [], { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
   const t = pipeline.config.times;
   const timesYr = outputTimesYr(t.start_yr, t.end_yr, t.count);
   const shared: SharedModelInputs = {
     networkHash: network.contentHash,
-    grain: grainOptions(pipeline),
+    grain,
     initial,
     timesYr,
     solver: solverSettings(pipeline),

@@ -64,10 +64,11 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const conditions = resolveConditions(pipeline, opts.set ?? []);
   const network = loadNetwork(pipeline.resolvePath(cfg.network));
   const initialNotes: string[] = [];
-  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
-  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
   const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation, mantle: cfg.grain.mantle, surfaceLayers: cfg.grain.surface_layers };
-  const { outputSpeciesNames } = await import('../../chem/mantle.ts');
+  const { modelNetwork, outputSpeciesNames } = await import('../../chem/mantle.ts');
+  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
+  const initial = loadInitialComposition(cfg.initial, pipeline.dir, modelNetwork(network, grain), initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
+  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
   const figureSpecies = chooseSpecies(opts.species, outputSpeciesNames(network, grain));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
 
