@@ -131,53 +131,64 @@ export function fillOutputs(columns: OutputColumns, y: ArrayLike<number>, out: F
  * The surface-mantle transfer as one non-mass-action term (rates in the module
  * comment). Its rate depends on F, the sum of every other term's contribution
  * to the surface rows, so it must be evaluated after all of them: the
- * compiler adds it last. In the Jacobian, dF/dx_j is the sum of the surface
- * rows of the others' Jacobian (read before this term adds its own), so every
- * row it touches holds the columns of all surface rows; F itself comes from
- * the others' rhs, evaluated into a scratch array.
+ * compiler adds it last, and F comes from the others' rhs evaluated into a
+ * scratch array.
+ *
+ * Its Jacobian is exact and has two parts. Each transfer rate is a share a_i
+ * of F (a_i = x_s(i)/Lambda growing, x_m(i)/max(x_surf, x_mant) eroding), so
+ * its derivative is a_i dF/dx_j, plus F da_i/dx_j. The first part, and the
+ * part of the second that comes from the denominator, form one dense rank-one
+ * block u w^T over the surface and mantle rows: u holds -a_i on the surface
+ * row and +a_i on the mantle row of species i; w holds dF/dx_j (the sum of the
+ * surface rows of the others' Jacobian, read before this term writes), less
+ * F/d on the columns of the sum d when eroding. The solver applies that block
+ * by the Sherman-Morrison formula (src/solve/newton-matrix.ts) rather than
+ * storing it, which would fill the LU. The rest, F/d on species i's own
+ * column, goes on four pattern entries per species.
  */
 export class IceTransfer implements NonMassActionTerm {
   readonly name: string;
   readonly entries: [number, number][] = [];
-  /** Rows: the K surface species, then their K mantle twins. */
+  /** The dense rank-one part of the Jacobian, rewritten by every addJacobian. */
+  readonly u: Float64Array;
+  readonly w: Float64Array;
   private readonly k: number;
-  private readonly cols: Int32Array;
-  /** Slot in cols of surface species k and of mantle species k. */
-  private readonly surfaceSlot: Int32Array;
-  private readonly mantleSlot: Int32Array;
-  private readonly gradient: Float64Array;
   private readonly scratch: Float64Array;
+  /** Per species, positions of (surface, surface), (mantle, surface), (surface, mantle), (mantle, mantle). */
   private positions: Int32Array = new Int32Array(0);
+  private rowPtr: Int32Array = new Int32Array(0);
+  private colIdx: Int32Array = new Int32Array(0);
 
   /**
-   * @param surfaceColumns columns of the surface rows in the other terms' Jacobian
    * @param layersAbundance Lambda = L x_ML, the abundance of the surface's monolayers
    * @param othersRhs the rhs of every other term (the system's, less this one)
    */
   constructor(
     private readonly surface: Int32Array,
     private readonly mantle: Int32Array,
-    surfaceColumns: Iterable<number>,
     private readonly layersAbundance: number,
     n: number,
     private readonly othersRhs: (y: Float64Array, dydt: Float64Array) => void,
   ) {
     this.k = surface.length;
     this.name = `surface-mantle transfer (${this.k} ice species, ${layersAbundance.toPrecision(3)} per H for the surface layers)`;
-    const cols = new Set<number>(surfaceColumns);
-    for (const i of surface) cols.add(i);
-    for (const i of mantle) cols.add(i);
-    this.cols = Int32Array.from([...cols].sort((a, b) => a - b));
-    const slot = new Map(Array.from(this.cols, (c, j) => [c, j]));
-    this.surfaceSlot = Int32Array.from(surface, (i) => slot.get(i)!);
-    this.mantleSlot = Int32Array.from(mantle, (i) => slot.get(i)!);
-    for (const row of [...surface, ...mantle]) for (const col of this.cols) this.entries.push([row, col]);
-    this.gradient = new Float64Array(this.cols.length);
+    surface.forEach((s, q) => {
+      const m = mantle[q];
+      this.entries.push([s, s], [m, s], [s, m], [m, m]);
+    });
+    this.u = new Float64Array(n);
+    this.w = new Float64Array(n);
     this.scratch = new Float64Array(n);
   }
 
   bind(positions: Int32Array): void {
     this.positions = positions;
+  }
+
+  /** The system's final pattern, to read the others' surface rows. */
+  readPattern(rowPtr: Int32Array, colIdx: Int32Array): void {
+    this.rowPtr = rowPtr;
+    this.colIdx = colIdx;
   }
 
   private surfaceRate(dydt: Float64Array): number {
@@ -214,38 +225,39 @@ export class IceTransfer implements NonMassActionTerm {
   }
 
   addJacobian(y: Float64Array, values: Float64Array): void {
+    const { u, w, rowPtr, colIdx, positions: pos } = this;
     this.othersRhs(y, this.scratch);
     const f = this.surfaceRate(this.scratch);
-    const nCols = this.cols.length;
-    const pos = this.positions;
-    const g = this.gradient;
-    // dF/dx_j: the surface rows of the other terms' Jacobian, before this term writes.
-    g.fill(0);
+    // w = dF/dx: the surface rows of the other terms' Jacobian, before this term writes.
+    w.fill(0);
+    u.fill(0);
     for (let q = 0; q < this.k; q++) {
-      const base = q * nCols;
-      for (let j = 0; j < nCols; j++) g[j] += values[pos[base + j]];
+      const row = this.surface[q];
+      for (let p = rowPtr[row]; p < rowPtr[row + 1]; p++) w[colIdx[p]] += values[p];
     }
-    const sMantle = this.total(y, this.mantle);
-    const sSurface = this.total(y, this.surface);
     const growth = f >= 0;
+    const sSurface = this.total(y, this.surface);
+    const sMantle = this.total(y, this.mantle);
     const d = growth ? this.layersAbundance : Math.max(sSurface, sMantle);
-    if (!(d > 0)) return;
+    if (!(d > 0)) {
+      w.fill(0);
+      return;
+    }
     const from = growth ? this.surface : this.mantle;
-    const ownSlot = growth ? this.surfaceSlot : this.mantleSlot;
-    // Erosion: d = max(x_surf, x_mant) depends on whichever sum is larger.
-    const denominatorSlots = growth ? undefined : sMantle >= sSurface ? this.mantleSlot : this.surfaceSlot;
+    if (!growth) {
+      // d = max(x_surf, x_mant) depends on whichever sum is the larger.
+      const denominator = sMantle >= sSurface ? this.mantle : this.surface;
+      for (let q = 0; q < this.k; q++) w[denominator[q]] -= f / d;
+    }
+    const own = f / d;
+    // The share's own column: the surface species when growing, the mantle species when eroding.
+    const at = growth ? 0 : 2;
     for (let q = 0; q < this.k; q++) {
       const a = y[from[q]] / d;
-      const selfTerm = f / d;
-      const spread = denominatorSlots ? -(f * y[from[q]]) / (d * d) : 0;
-      // Row q (surface, sign -1) and row k + q (mantle, sign +1) get the same derivative.
-      for (let side = 0; side < 2; side++) {
-        const sign = side === 0 ? -1 : 1;
-        const base = (side * this.k + q) * nCols;
-        for (let j = 0; j < nCols; j++) values[pos[base + j]] += sign * a * g[j];
-        values[pos[base + ownSlot[q]]] += sign * selfTerm;
-        if (denominatorSlots) for (let p = 0; p < this.k; p++) values[pos[base + denominatorSlots[p]]] += sign * spread;
-      }
+      u[this.surface[q]] = -a;
+      u[this.mantle[q]] = a;
+      values[pos[4 * q + at]] -= own;
+      values[pos[4 * q + at + 1]] += own;
     }
   }
 }

@@ -77,6 +77,13 @@ export interface CompiledSystem {
   clampNotes: string[];
   rateSet: RateSet;
   pattern: CsrPattern;
+  /**
+   * With the three-phase ice, the Jacobian's dense rank-one part u w^T (the
+   * surface-mantle transfer, src/chem/mantle.ts): J = J(pattern) + u w^T,
+   * u and w rewritten by every `jacobian` call; the solver applies it by
+   * Sherman-Morrison. Absent otherwise.
+   */
+  rankOne?: { u: Float64Array; w: Float64Array };
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
   jacobian(t: number, y: Float64Array, values: Float64Array): void;
   /** The mass-action part as JSON (the --emit-system contract of issue 4). */
@@ -315,10 +322,8 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   const othersCount = nonMassAction.length;
   let transfer: IceTransfer | undefined;
   if (pairs && pairs.surface.length > 0) {
-    const surfaceColumns = new Set<number>();
-    for (const i of pairs.surface) for (const col of rowsCols[i]) surfaceColumns.add(col);
     const layers = grain.surfaceLayers * rateSet.grain.monolayerAbundance;
-    transfer = new IceTransfer(pairs.surface, pairs.mantle, surfaceColumns, layers, n, (y, dydt) => othersRhs(y, dydt));
+    transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y, dydt) => othersRhs(y, dydt));
     omitted.push(transfer.name);
     if (options.massActionOnly) transfer = undefined;
     else {
@@ -360,6 +365,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   const jacPos = Int32Array.from(slotPos);
   const jacCoef = Float64Array.from(slotCoef);
   for (const term of nonMassAction) term.bind(Int32Array.from(term.entries.map(([row, col]) => at(row, col))));
+  transfer?.readPattern(rowPtr, colIdx);
 
   // Net stoichiometry of each term for the rhs, cancelling species that appear on both sides.
   const netStart = new Int32Array(m + 1);
@@ -435,6 +441,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     clampNotes: rateSet.clampNotes,
     rateSet,
     pattern: { rowPtr, colIdx },
+    rankOne: transfer ? { u: transfer.u, w: transfer.w } : undefined,
     rhs,
     jacobian,
     emitSystem,

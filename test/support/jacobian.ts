@@ -19,6 +19,8 @@ export function fdCheck(sys: CompiledSystem, y: Float64Array, floor = 0): number
   const f1 = new Float64Array(sys.n);
   const dense = new Float64Array(sys.n * sys.n);
   for (let i = 0; i < sys.n; i++) for (let p = sys.pattern.rowPtr[i]; p < sys.pattern.rowPtr[i + 1]; p++) dense[i * sys.n + sys.pattern.colIdx[p]] = values[p];
+  // J = J(pattern) + u w^T when the system has a rank-one part.
+  if (sys.rankOne) for (let i = 0; i < sys.n; i++) for (let j = 0; j < sys.n; j++) dense[i * sys.n + j] += sys.rankOne.u[i] * sys.rankOne.w[j];
   let worst = 0;
   const rowMax = new Float64Array(sys.n);
   for (let i = 0; i < sys.n; i++) for (let j = 0; j < sys.n; j++) rowMax[i] = Math.max(rowMax[i], Math.abs(dense[i * sys.n + j]));
