@@ -114,7 +114,7 @@ describe('hoarfrost model: three-phase ice (docs/ice-mantle.md)', () => {
     a['H2O(s)'].forEach((x, k) => expect(x).toBeCloseTo(a['H2O(surface)'][k] + a['H2O(mantle)'][k], 20));
     const header = readFileSync(join(dir, 'res', 'abundances.csv'), 'utf8').split('\n')[0].split(',');
     expect(header).toEqual(expect.arrayContaining(['H2O(s)', 'H2O(surface)', 'H2O(mantle)']));
-  rmSync(dir, { recursive: true, force: true });
+    rmSync(dir, { recursive: true, force: true });
   });
 });
 
