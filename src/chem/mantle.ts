@@ -90,8 +90,9 @@ export interface OutputColumns {
   parts: Int32Array;
 }
 
-export function outputColumns(species: readonly Species[]): OutputColumns {
-  const index = new Map(species.map((s, i) => [s.name, i]));
+export function outputColumns(species: readonly Species[], grain: Pick<GrainOptions, 'mantle'>): OutputColumns {
+  // Without the mantle, a mantle species a file lists is an inert species of its own, not a part of X(s).
+  const index = grain.mantle ? new Map(species.map((s, i) => [s.name, i])) : new Map<string, number>();
   const names: string[] = [];
   const start: number[] = [0];
   const parts: number[] = [];
@@ -114,7 +115,7 @@ export function outputColumns(species: readonly Species[]): OutputColumns {
 
 /** The output column names of a model of this network with these grain options. */
 export function outputSpeciesNames(network: Network, grain: GrainOptions): string[] {
-  return outputColumns(modelNetwork(network, grain).species).names;
+  return outputColumns(modelNetwork(network, grain).species, grain).names;
 }
 
 /** Writes the output columns of state y into out (length names.length). */

@@ -50,7 +50,7 @@ export function runModel(input: ModelInput): ModelResult {
   const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
   const y0 = initialState({ network, initial: input.initial });
   // With the mantle on, the outputs add the whole ice X(s) = X(surface) + X(mantle) (src/chem/mantle.ts).
-  const columns = outputColumns(network.species);
+  const columns = outputColumns(network.species, input.grain);
   const nOut = columns.names.length;
   const count = input.timesYr.length;
   const abundances = new Float64Array(count * nOut).fill(Number.NaN);

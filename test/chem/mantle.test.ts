@@ -48,7 +48,8 @@ describe('mantle species', () => {
   it('give the outputs the whole ice X(s) beside X(surface) and X(mantle); without the mantle the outputs are the species', () => {
     expect(outputSpeciesNames(net, DEFAULT_GRAIN_OPTIONS)).toEqual(net.species.map((s) => s.name));
     const three = withMantle(net);
-    const columns = outputColumns(three.species);
+    const columns = outputColumns(three.species, MANTLE);
+    expect(outputColumns(three.species, DEFAULT_GRAIN_OPTIONS).names).toEqual(three.species.map((s) => s.name));
     const at = (name: string) => columns.names.indexOf(name);
     const parts = (name: string) => Array.from(columns.parts.subarray(columns.start[at(name)], columns.start[at(name) + 1])).map((i) => three.species[i].name);
     expect(parts('CO(s)')).toEqual(['CO(s)', 'CO(mantle)']);
