@@ -14,7 +14,7 @@
 import { pathToFileURL } from 'node:url';
 import { integrate, type IntegrateOptions, type IntegrateResult, type OdeProblem } from '../src/solve/index.ts';
 import { massActionNetwork, robertson } from '../test/solve/problems.ts';
-import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../src/config/conditions.ts';
+import { DEFAULT_GRAIN_OPTIONS, defaultConditions, type GrainOptions } from '../src/config/conditions.ts';
 import { loadNetwork } from '../src/chem/network.ts';
 import { YEAR_SECONDS as YEAR } from '../src/chem/constants.ts';
 import { compile } from '../src/chem/system.ts';
@@ -133,38 +133,42 @@ export const PROBLEMS: [string, () => BenchCase][] = [
       };
     },
   ],
-  ...(
-    [
-      ['default network, dark cloud, 1e7 yr', {}, ''],
-      [
-        'default network, dark cloud, 1e7 yr, ice photolysis + non-diffusive',
-        { icePhotolysis: true, threeBody: true, eleyRideal: true, photodissociationInduced: true },
-        ', grain: ice_photolysis, three_body, eley_rideal, photodissociation_induced',
-      ],
-    ] as const
-  ).map(([name, switches, extra]): [string, () => BenchCase] => [
-    name,
-    () => {
-      const network = loadNetwork(new URL('../config/networks/dark-cloud.yaml', import.meta.url).pathname);
-      const conditions = {
-        ...defaultConditions(),
-        density: 2e4,
-        gas_temperature: 10,
-        dust_temperature: 10,
-        visual_extinction: 10,
-      };
-      const problem = compile(network, conditions, { ...DEFAULT_GRAIN_OPTIONS, ...switches }, {});
-      const y0 = initialState({ network, initial: loadInitialComposition('low-metal', '.', network) });
-      return {
-        problem,
-        y0,
-        outputTimes: logSpaced(1e3 * YEAR, 1e7 * YEAR, 13),
-        options: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
-        note: `config/networks/dark-cloud.yaml, n_H = 2e4 cm^-3, 10 K, A_V = 10, low-metal start${extra}`,
-      };
-    },
-  ]),
+  ['default network, dark cloud, 1e7 yr', () => darkCloud(DEFAULT_GRAIN_OPTIONS, '')],
+  ['default network, three-phase ice, 1e7 yr', () => darkCloud({ ...DEFAULT_GRAIN_OPTIONS, mantle: true }, ', grain.mantle on (docs/ice-mantle.md)')],
+  [
+    'default network, dark cloud, 1e7 yr, ice photolysis + non-diffusive',
+    () => darkCloud({ ...DEFAULT_GRAIN_OPTIONS, icePhotolysis: true, threeBody: true, eleyRideal: true, photodissociationInduced: true }, ', grain: ice_photolysis, three_body, eley_rideal, photodissociation_induced'),
+  ],
+  [
+    'default network, dark cloud, 1e7 yr, every ice switch',
+    () =>
+      darkCloud(
+        { ...DEFAULT_GRAIN_OPTIONS, mantle: true, icePhotolysis: true, threeBody: true, eleyRideal: true, photodissociationInduced: true },
+        ', grain: mantle, ice_photolysis, three_body, eley_rideal, photodissociation_induced',
+      ),
+  ],
 ];
+
+/** The default network in a dark cloud with the given grain options. */
+function darkCloud(grain: GrainOptions, noteTail: string): BenchCase {
+  const network = loadNetwork(new URL('../config/networks/dark-cloud.yaml', import.meta.url).pathname);
+  const conditions = {
+    ...defaultConditions(),
+    density: 2e4,
+    gas_temperature: 10,
+    dust_temperature: 10,
+    visual_extinction: 10,
+  };
+  const problem = compile(network, conditions, grain, {});
+  const y0 = initialState({ network, grain, initial: loadInitialComposition('low-metal', '.', network) });
+  return {
+    problem,
+    y0,
+    outputTimes: logSpaced(1e3 * YEAR, 1e7 * YEAR, 13),
+    options: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
+    note: `config/networks/dark-cloud.yaml, n_H = 2e4 cm^-3, 10 K, A_V = 10, low-metal start${noteTail}`,
+  };
+}
 
 export function main(): BenchRow[] {
   console.log(`stiff integrator benchmark: median of ${BENCH_REPEATS} runs after warm-up, Node ${process.version}`);

@@ -230,6 +230,13 @@ function parseAll(names: string[], field: string, fail: (m: string, f?: string) 
 }
 
 function checkPhases(law: RateLaw, reactants: Species[], products: Species[], fail: (m: string, f?: string) => void): void {
+  const mantle = [...reactants, ...products].filter((s) => s.phase === 'mantle');
+  if (mantle.length > 0) {
+    fail(
+      `${mantle.map((s) => s.name).join(', ')} ${mantle.length > 1 ? 'are mantle species' : 'is a mantle species'}: the inert bulk ice takes part in no reaction, and material moves between surface and mantle by the transfer the model derives when grain.mantle is on (docs/ice-mantle.md). Write the reaction with the surface species, ${mantle.map((s) => iceName(s.gasName)).join(', ')}.`,
+    );
+    return;
+  }
   reactants.forEach((s, i) => {
     if (s.phase !== law.reactantPhase) {
       fail(`the law ${law.name} takes ${law.reactantPhase === 'ice' ? 'ice reactants (written X(s))' : 'gas-phase reactants'}; ${s.name} is ${s.phase === 'ice' ? 'an ice' : 'a gas'} species.`, `reactants[${i}]`);

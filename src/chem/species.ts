@@ -1,18 +1,21 @@
 /**
  * Species names of the network: plain formulae with charge signs (`HCO+`,
- * `e-`), an optional isomer prefix (`l-C3H`, `c-C3H2`), and the IUPAC state
- * symbol `(s)` for ice (`H2O(s)`). The name is the identity; the formula
+ * `e-`), an optional isomer prefix (`l-C3H`, `c-C3H2`), and a state suffix:
+ * the IUPAC state symbol `(s)` for ice (`H2O(s)`), and `(mantle)` for the
+ * inert bulk ice beneath the reactive surface of the three-phase model
+ * (`H2O(mantle)`; docs/ice-mantle.md). The name is the identity; the formula
  * gives element counts, charge and mass.
  */
 import { UserError } from '../config/errors.ts';
 import { ATOMIC_WEIGHTS, ELECTRON_MASS_AMU } from './elements.ts';
 
-export type Phase = 'gas' | 'ice';
+/** 'ice': the reactive ice (the surface layers when the mantle is on); 'mantle': the inert bulk ice below them. */
+export type Phase = 'gas' | 'ice' | 'mantle';
 
 export interface Species {
   /** Name as written in the network, e.g. `CO(s)`. */
   name: string;
-  /** The same species in the gas phase (`CO` for `CO(s)`). */
+  /** The same species in the gas phase (`CO` for `CO(s)` and `CO(mantle)`). */
   gasName: string;
   phase: Phase;
   /** Element symbol -> count; electrons are not an element. */
@@ -25,6 +28,7 @@ export interface Species {
 }
 
 const ICE_SUFFIX = '(s)';
+const MANTLE_SUFFIX = '(mantle)';
 const ISOMER_PREFIX = /^(l|c|t|cis|trans|o|p)-/;
 
 export function iceName(gasName: string): string {
@@ -35,10 +39,15 @@ export function isIceName(name: string): boolean {
   return name.endsWith(ICE_SUFFIX);
 }
 
+/** The mantle twin of a species: `H2O(mantle)` for `H2O` (or its ice `H2O(s)`'s gas name). */
+export function mantleName(gasName: string): string {
+  return gasName + MANTLE_SUFFIX;
+}
+
 /** Parse a species name; throws a UserError explaining what is wrong. */
 export function parseSpecies(name: string): Species {
   const bad = (why: string): never => {
-    throw new UserError(`'${name}' is not a species name: ${why}. Write a formula such as H2O, HCO+, e- or CO(s).`);
+    throw new UserError(`'${name}' is not a species name: ${why}. Write a formula such as H2O, HCO+, e-, CO(s) or CO(mantle).`);
   };
   if (typeof name !== 'string' || name.length === 0) bad('it is empty');
   if (/\s/.test(name)) bad('it contains white space');
@@ -47,9 +56,13 @@ export function parseSpecies(name: string): Species {
   if (body.endsWith(ICE_SUFFIX)) {
     phase = 'ice';
     body = body.slice(0, -ICE_SUFFIX.length);
+  } else if (body.endsWith(MANTLE_SUFFIX)) {
+    phase = 'mantle';
+    body = body.slice(0, -MANTLE_SUFFIX.length);
   }
+  const gasName = body;
   if (body === 'e-') {
-    if (phase === 'ice') bad('electrons have no ice form');
+    if (phase !== 'gas') bad(`electrons have no ${phase} form`);
     return { name, gasName: 'e-', phase: 'gas', elements: {}, charge: -1, mass: ELECTRON_MASS_AMU, isElectron: true };
   }
   let charge = 0;
@@ -60,7 +73,7 @@ export function parseSpecies(name: string): Species {
     charge = signs[0] === '+' ? signs.length : -signs.length;
     body = body.slice(0, -signs.length);
   }
-  if (phase === 'ice' && charge !== 0) bad('ions are not kept in the ice');
+  if (phase !== 'gas' && charge !== 0) bad(`ions are not kept in the ${phase === 'ice' ? 'ice' : 'mantle'}`);
   const prefix = ISOMER_PREFIX.exec(body);
   if (prefix) body = body.slice(prefix[0].length);
   if (body.length === 0) bad('no elements');
@@ -86,7 +99,7 @@ export function parseSpecies(name: string): Species {
   let mass = 0;
   for (const [el, n] of Object.entries(elements)) mass += ATOMIC_WEIGHTS[el] * n;
   mass -= charge * ELECTRON_MASS_AMU;
-  return { name, gasName: phase === 'ice' ? name.slice(0, -ICE_SUFFIX.length) : name, phase, elements, charge, mass, isElectron: false };
+  return { name, gasName, phase, elements, charge, mass, isElectron: false };
 }
 
 /** Parse without throwing: the error message or the species. */

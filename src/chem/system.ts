@@ -14,10 +14,13 @@
  *
  * Processes that are not mass-action are terms of their own (NonMassActionTerm):
  * photodesorption above one monolayer, H2 self-shielding, the parametric H2
- * formation rate and the non-diffusive reactions (src/chem/nondiffusive.ts).
+ * formation rate, the non-diffusive reactions (src/chem/nondiffusive.ts) and,
+ * with the three-phase ice, the surface-mantle transfer (src/chem/mantle.ts),
+ * which reads the others' surface rows and so comes last.
  */
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
+import { IceTransfer, mantlePairs, modelNetwork } from './mantle.ts';
 import { CoverageTerms, type FreshGroup } from './nondiffusive.ts';
 import { computeRates, type RateForm, type RateSet, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
@@ -79,6 +82,13 @@ export interface CompiledSystem {
   notes: string[];
   rateSet: RateSet;
   pattern: CsrPattern;
+  /**
+   * With the three-phase ice, the Jacobian's dense rank-one part u w^T (the
+   * surface-mantle transfer, src/chem/mantle.ts): J = J(pattern) + u w^T,
+   * u and w rewritten by every `jacobian` call; the solver applies it by
+   * Sherman-Morrison. Absent otherwise.
+   */
+  rankOne?: { u: Float64Array; w: Float64Array };
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
   jacobian(t: number, y: Float64Array, values: Float64Array): void;
   /** The mass-action part as JSON (the --emit-system contract of issue 4). */
@@ -263,7 +273,9 @@ class H2SelfShielding extends OneSpeciesTerm {
 }
 
 /** Compile a network for fixed conditions (see the module comment). */
-export function compile(network: Network, conditions: PhysicalConditions, grain: GrainOptions, options: CompileOptions = {}): CompiledSystem {
+export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions, grain: GrainOptions, options: CompileOptions = {}): CompiledSystem {
+  // With the mantle on, every ice species has its mantle twin (appended when the file lists none).
+  const network = modelNetwork(twoPhaseNetwork, grain);
   const rateSet = computeRates(network, conditions, grain, { selfShielding: options.selfShielding });
   const n = network.species.length;
   const species = network.species.map((s) => s.name);
@@ -353,6 +365,20 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     }
   }
   for (const term of nonMassAction) for (const [row, col] of term.entries) rowsCols[row].add(col);
+
+  const pairs = grain.mantle ? mantlePairs(network.species) : undefined;
+  const othersCount = nonMassAction.length;
+  let transfer: IceTransfer | undefined;
+  if (pairs && pairs.surface.length > 0) {
+    const layers = grain.surfaceLayers * rateSet.grain.monolayerAbundance;
+    transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y, dydt) => othersRhs(y, dydt));
+    omitted.push(transfer.name);
+    if (options.massActionOnly) transfer = undefined;
+    else {
+      nonMassAction.push(transfer);
+      for (const [row, col] of transfer.entries) rowsCols[row].add(col);
+    }
+  }
   const rowPtr = new Int32Array(n + 1);
   for (let i = 0; i < n; i++) rowPtr[i + 1] = rowPtr[i] + rowsCols[i].size;
   const colIdx = new Int32Array(rowPtr[n]);
@@ -387,6 +413,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
   const jacPos = Int32Array.from(slotPos);
   const jacCoef = Float64Array.from(slotCoef);
   for (const term of nonMassAction) term.bind(Int32Array.from(term.entries.map(([row, col]) => at(row, col))));
+  transfer?.readPattern(rowPtr, colIdx);
 
   // Net stoichiometry of each term for the rhs, cancelling species that appear on both sides.
   const netStart = new Int32Array(m + 1);
@@ -406,7 +433,8 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
   const rhsSpecies = Int32Array.from(netSpecies);
   const rhsCoef = Float64Array.from(netCoef);
 
-  const rhs = (_t: number, y: Float64Array, dydt: Float64Array): void => {
+  /** Every term but the surface-mantle transfer, which reads what these write to the surface rows. */
+  const othersRhs = (y: Float64Array, dydt: Float64Array): void => {
     dydt.fill(0);
     // Terms are stored back to back, so one running index walks each array.
     let a = 0;
@@ -416,7 +444,12 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
       for (const end = reactantStart[t + 1]; a < end; a++) rate *= y[reactants[a]];
       for (const end = netStart[t + 1]; q < end; q++) dydt[rhsSpecies[q]] += rhsCoef[q] * rate;
     }
-    for (let g = 0; g < nonMassAction.length; g++) nonMassAction[g].addRhs(y, dydt);
+    for (let g = 0; g < othersCount; g++) nonMassAction[g].addRhs(y, dydt);
+  };
+
+  const rhs = (_t: number, y: Float64Array, dydt: Float64Array): void => {
+    othersRhs(y, dydt);
+    if (transfer) transfer.addRhs(y, dydt);
   };
 
   const jacobian = (_t: number, y: Float64Array, values: Float64Array): void => {
@@ -457,6 +490,7 @@ export function compile(network: Network, conditions: PhysicalConditions, grain:
     notes: rateSet.notes,
     rateSet,
     pattern: { rowPtr, colIdx },
+    rankOne: transfer ? { u: transfer.u, w: transfer.w } : undefined,
     rhs,
     jacobian,
     emitSystem,

@@ -57,6 +57,14 @@ export interface GrainOptions {
   icePhotolysis: boolean;
   /** Ice photolysis rate over its gas-phase counterpart (model choice; default 1, memory: see ICE_PHOTOLYSIS_FACTOR). */
   icePhotolysisFactor: number;
+  /**
+   * Three-phase ice: a reactive surface over an inert bulk mantle, with
+   * surface-to-mantle transfer as the ice grows and back as it erodes
+   * (Hasegawa & Herbst 1993; Garrod & Pauly 2011; docs/ice-mantle.md).
+   */
+  mantle: boolean;
+  /** Monolayers that make the reactive surface when the mantle is on. */
+  surfaceLayers: number;
 }
 
 /**
@@ -65,6 +73,13 @@ export interface GrainOptions {
  * the three-phase models after it take the gas-phase rates for the ice).
  */
 export const ICE_PHOTOLYSIS_FACTOR = 1;
+
+/**
+ * Monolayers of the reactive surface: the outermost layer alone, as in
+ * Hasegawa & Herbst (1993) and Garrod & Pauly (2011) (memory: the papers'
+ * text was not at hand to re-check).
+ */
+export const DEFAULT_SURFACE_LAYERS = 1;
 
 export const DEFAULT_GRAIN_OPTIONS: GrainOptions = {
   tunnelling: false,
@@ -75,6 +90,8 @@ export const DEFAULT_GRAIN_OPTIONS: GrainOptions = {
   photodissociationInduced: false,
   icePhotolysis: false,
   icePhotolysisFactor: ICE_PHOTOLYSIS_FACTOR,
+  mantle: false,
+  surfaceLayers: DEFAULT_SURFACE_LAYERS,
 };
 
 export function defaultConditions(): PhysicalConditions {

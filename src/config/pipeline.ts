@@ -8,7 +8,7 @@
 import { existsSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
-import { ICE_PHOTOLYSIS_FACTOR } from './conditions.ts';
+import { DEFAULT_SURFACE_LAYERS, ICE_PHOTOLYSIS_FACTOR } from './conditions.ts';
 import { UserError } from './errors.ts';
 import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
 import { observationsSection } from './sections/observations.ts';
@@ -47,6 +47,10 @@ export const grainSection = z
     /** Ice photolysis derived from the gas-phase photoreactions, at ice_photolysis_factor times their rate. */
     ice_photolysis: z.boolean().default(false),
     ice_photolysis_factor: z.number().min(0).default(ICE_PHOTOLYSIS_FACTOR),
+    /** Three-phase ice: reactive surface over an inert mantle (docs/ice-mantle.md). Off by default. */
+    mantle: z.boolean().default(false),
+    /** Monolayers of the reactive surface when the mantle is on (default DEFAULT_SURFACE_LAYERS, with its source in conditions.ts). */
+    surface_layers: z.number().positive().default(DEFAULT_SURFACE_LAYERS),
   })
   .strict();
 

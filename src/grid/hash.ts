@@ -32,6 +32,8 @@ export function sharedInputsHash(s: SharedModelInputs): string {
   const h = createHash('sha256').update(MODEL_HASH_TAG);
   h.update(`\ntool=${s.toolVersion}\nnetwork=${s.networkHash}`);
   h.update(`\ngrain=tunnelling:${s.grain.tunnelling},diffusionCompetition:${s.grain.diffusionCompetition},h2Formation:${s.grain.h2Formation},threeBody:${s.grain.threeBody},eleyRideal:${s.grain.eleyRideal},photodissociationInduced:${s.grain.photodissociationInduced},icePhotolysis:${s.grain.icePhotolysis},icePhotolysisFactor:${String(s.grain.icePhotolysisFactor)}`);
+  // Added only when on, so that the models stored before the option existed keep their hashes.
+  if (s.grain.mantle) h.update(`,mantle:true,surfaceLayers:${String(s.grain.surfaceLayers)}`);
   for (const name of Object.keys(s.initial).sort()) h.update(`\ninitial ${name}=${String(s.initial[name])}`);
   h.update(`\ntimes=${Array.from(s.timesYr, String).join(',')}`);
   h.update(`\nsolver=rtol:${String(s.solver.rtol)},atol:${String(s.solver.atol)},maxSteps:${String(s.solver.maxSteps ?? '')}`);

@@ -4,6 +4,7 @@
  * live. Everything `grid`, `--status`, `merge` and `slurm` agree on.
  */
 import { join } from 'node:path';
+import { modelNetwork, outputSpeciesNames } from '../chem/mantle.ts';
 import { loadNetwork } from '../chem/network.ts';
 import type { Network } from '../chem/network-types.ts';
 import type { GrainOptions } from '../config/conditions.ts';
@@ -43,6 +44,8 @@ export function grainOptions(pipeline: Pipeline): GrainOptions {
     photodissociationInduced: g.photodissociation_induced,
     icePhotolysis: g.ice_photolysis,
     icePhotolysisFactor: g.ice_photolysis_factor,
+    mantle: g.mantle,
+    surfaceLayers: g.surface_layers,
   };
 }
 
@@ -55,12 +58,14 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
   const grid = expandGrid(gridSpecFromPipeline(pipeline, sightlineAv));
   const networkFile = pipeline.resolvePath(pipeline.config.network);
   const network = loadNetwork(networkFile);
-  const initial = loadInitialComposition(pipeline.config.initial, pipeline.dir, network, [], { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
+  const grain = grainOptions(pipeline);
+  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
+  const initial = loadInitialComposition(pipeline.config.initial, pipeline.dir, modelNetwork(network, grain), [], { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
   const t = pipeline.config.times;
   const timesYr = outputTimesYr(t.start_yr, t.end_yr, t.count);
   const shared: SharedModelInputs = {
     networkHash: network.contentHash,
-    grain: grainOptions(pipeline),
+    grain,
     initial,
     timesYr,
     solver: solverSettings(pipeline),
@@ -76,7 +81,7 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
     points,
     gridHash: gridHash(points),
     network,
-    species: network.species.map((s) => s.name),
+    species: outputSpeciesNames(network, shared.grain),
     shared,
     workerInit: { networkFile, networkHash: network.contentHash, initial, timesYr, solver: shared.solver, grain: shared.grain, massActionOnly: false, selfShielding: shared.selfShielding },
     storeDir: join(pipeline.resolvePath(pipeline.config.output), 'store'),

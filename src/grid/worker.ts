@@ -1,5 +1,6 @@
 /** A model worker thread: loads the network once, then runs the grid's models with runModel. */
 import { UserError } from '../config/errors.ts';
+import { outputSpeciesNames } from '../chem/mantle.ts';
 import { loadNetwork } from '../chem/network.ts';
 import { runModel } from '../model/run.ts';
 import { serveModelTasks } from './worker-protocol.ts';
@@ -10,7 +11,7 @@ serveModelTasks((init) => {
     throw new UserError('the network file changed while the grid was starting; rerun the grid.', { file: init.networkFile });
   }
   return {
-    species: network.species.map((s) => s.name),
+    species: outputSpeciesNames(network, init.grain),
     run: (conditions) =>
       runModel({
         network,

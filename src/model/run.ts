@@ -4,6 +4,7 @@
  * conservation checked at every output. A solver failure is a status, never
  * an exception, so a grid can record it and go on.
  */
+import { fillOutputs, modelNetwork, outputColumns } from '../chem/mantle.ts';
 import { compile, type CompiledSystem } from '../chem/system.ts';
 import { evaporatedHydrogenShare, hydrogenGrainTerms, PHYSISORBED_H2_MAX_EVAPORATED_SHARE } from '../chem/grain-h2.ts';
 import { UserError } from '../config/errors.ts';
@@ -16,9 +17,14 @@ import { YEAR_SECONDS } from '../chem/constants.ts';
 export { outputTimesYr } from './times.ts';
 export { loadInitialComposition } from './initial.ts';
 
-/** The initial state vector; every named species must be in the network. */
-export function initialState(input: Pick<ModelInput, 'network' | 'initial'>): Float64Array {
-  const { network, initial } = input;
+/**
+ * The initial state vector; every named species must be in the network. With
+ * grain options given, the state is that of the model's network (the mantle
+ * twins appended when the mantle is on).
+ */
+export function initialState(input: Pick<ModelInput, 'network' | 'initial'> & { grain?: ModelInput['grain'] }): Float64Array {
+  const network = input.grain ? modelNetwork(input.network, input.grain) : input.network;
+  const { initial } = input;
   const y0 = new Float64Array(network.species.length);
   for (const [name, value] of Object.entries(initial)) {
     const i = network.speciesIndex.get(name);
@@ -65,12 +71,15 @@ function physisorbedH2Notes(input: ModelInput, system: CompiledSystem, abundance
 export function runModel(input: ModelInput): ModelResult {
   const started = performance.now();
   checkTimes(input.timesYr);
-  const system = compile(input.network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
-  const y0 = initialState(input);
-  const n = system.n;
+  const network = modelNetwork(input.network, input.grain);
+  const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
+  const y0 = initialState({ network, initial: input.initial });
+  // With the mantle on, the outputs add the whole ice X(s) = X(surface) + X(mantle) (src/chem/mantle.ts).
+  const columns = outputColumns(network.species, input.grain);
+  const nOut = columns.names.length;
   const count = input.timesYr.length;
-  const abundances = new Float64Array(count * n).fill(Number.NaN);
-  const conservation = new ConservationCheck(input.network, y0);
+  const abundances = new Float64Array(count * nOut).fill(Number.NaN);
+  const conservation = new ConservationCheck(network, y0);
   const stats = { steps: 0, failedSteps: 0, rhsEvals: 0, jacobianEvals: 0, factorizations: 0, newtonFailures: 0 };
   let status: 'ok' | 'failed' = 'ok';
   let failure: string | undefined;
@@ -81,7 +90,7 @@ export function runModel(input: ModelInput): ModelResult {
       maxSteps: input.solver.maxSteps,
     });
     result.y.forEach((y, k) => {
-      abundances.set(y, k * n);
+      fillOutputs(columns, y, abundances, k * nOut);
       conservation.observe(y);
     });
     const s = result.stats;
@@ -106,7 +115,7 @@ export function runModel(input: ModelInput): ModelResult {
   const notes = [...system.clampNotes];
   if (input.grain.h2Formation === 'surface') notes.push(...physisorbedH2Notes(input, system, abundances));
   return {
-    species: system.species,
+    species: columns.names,
     timesYr: input.timesYr,
     abundances,
     status,

@@ -42,6 +42,11 @@ export interface ConservationReport {
 export type ModelStats = Omit<SolverStats, 'orderHistogram'>;
 
 export interface ModelResult {
+  /**
+   * Output columns: the network's species, and with the mantle on each ice
+   * species three times, `X(s)` (surface + mantle, the whole ice),
+   * `X(surface)` and `X(mantle)` (src/chem/mantle.ts outputColumns).
+   */
   species: string[];
   timesYr: Float64Array;
   /** Row-major [time][species] fractional abundances; rows after a solver failure are NaN. */

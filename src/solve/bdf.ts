@@ -37,7 +37,7 @@
  * (ref. 5), so spans of 1e-6 s to 1e14 s and more need no hint; steps grow
  * by at most MAX_FACTOR per change. No allocation happens inside the step loop.
  */
-import { createNewtonMatrix, type NewtonMatrix } from './newton-matrix.ts';
+import { createNewtonMatrix, RankOneNewtonMatrix, type NewtonMatrix } from './newton-matrix.ts';
 import type { IntegrateOptions, IntegrateResult, OdeProblem, SolverStats } from './types.ts';
 
 /** Highest BDF order. */
@@ -166,6 +166,8 @@ class BdfIntegrator {
   private readonly scale: Float64Array;
   private readonly jac: Float64Array;
   private readonly matrix: NewtonMatrix;
+  /** The same matrix when the problem's Jacobian has a rank-one part (OdeProblem.rankOne). */
+  private readonly rankOneMatrix: RankOneNewtonMatrix | undefined;
 
   t = 0;
   hAbs = 0;
@@ -218,7 +220,9 @@ class BdfIntegrator {
     this.dy = new Float64Array(n);
     this.scale = new Float64Array(n);
     this.jac = new Float64Array(problem.pattern.rowPtr[n]);
-    this.matrix = createNewtonMatrix(n, problem.pattern);
+    const matrix = createNewtonMatrix(n, problem.pattern);
+    this.rankOneMatrix = problem.rankOne ? new RankOneNewtonMatrix(matrix, n) : undefined;
+    this.matrix = this.rankOneMatrix ?? matrix;
     this.D.set(y0, 0);
     this.current = this.D.subarray(0, n);
   }
@@ -262,6 +266,11 @@ class BdfIntegrator {
     this.stats.jacobianEvals++;
     this.jacobianAge = 0;
     this.factoredC = Number.NaN;
+    const rankOne = this.problem.rankOne;
+    if (rankOne && this.rankOneMatrix) {
+      this.rankOneMatrix.setRankOne(rankOne.u, rankOne.w);
+      if (!allFinite(rankOne.u) || !allFinite(rankOne.w)) return false;
+    }
     return allFinite(this.jac);
   }
 

@@ -8,5 +8,6 @@ export type {
   IntegrateOptions,
   SolverStats,
   IntegrateResult,
+  RankOneJacobian,
 } from './types.ts';
 export { integrate, DEFAULT_MAX_STEPS, MAX_ORDER } from './bdf.ts';

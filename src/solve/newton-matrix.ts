@@ -114,6 +114,58 @@ export class SparseNewtonMatrix implements NewtonMatrix {
   }
 }
 
+/** Below this |1 - c w^T A^-1 u| the rank-one update leaves the Newton matrix singular. */
+const RANK_ONE_SINGULAR = 1e-12;
+
+/**
+ * I - c (J + u w^T), with J on its pattern, by the Sherman-Morrison formula
+ * (Golub & Van Loan, Matrix Computations, 4th ed., sec. 2.1.4): with
+ * A = I - c J factored, z = A^-1 u and s = 1 - c w^T z,
+ * (A - c u w^T)^-1 b = A^-1 b + (c / s) z (w^T A^-1 b).
+ * One extra solve per factorisation and two n-vector products per solve, in
+ * place of the fill that a dense rank-one block brings to the LU.
+ */
+export class RankOneNewtonMatrix implements NewtonMatrix {
+  private readonly u: Float64Array;
+  private readonly w: Float64Array;
+  private readonly z: Float64Array;
+  private scale = 0;
+
+  constructor(private readonly inner: NewtonMatrix, n: number) {
+    this.u = new Float64Array(n);
+    this.w = new Float64Array(n);
+    this.z = new Float64Array(n);
+  }
+
+  /** Takes the rank-one part that goes with the Jacobian values of the next factorisations. */
+  setRankOne(u: Float64Array, w: Float64Array): void {
+    this.u.set(u);
+    this.w.set(w);
+  }
+
+  factor(jacobianValues: Float64Array, c: number): boolean {
+    if (!this.inner.factor(jacobianValues, c)) return false;
+    const { z, w } = this;
+    z.set(this.u);
+    this.inner.solve(z);
+    let wz = 0;
+    for (let i = 0; i < z.length; i++) wz += w[i] * z[i];
+    const s = 1 - c * wz;
+    if (!(Math.abs(s) > RANK_ONE_SINGULAR)) return false;
+    this.scale = c / s;
+    return true;
+  }
+
+  solve(b: Float64Array): void {
+    this.inner.solve(b);
+    const { z, w } = this;
+    let wb = 0;
+    for (let i = 0; i < b.length; i++) wb += w[i] * b[i];
+    const k = this.scale * wb;
+    for (let i = 0; i < b.length; i++) b[i] += k * z[i];
+  }
+}
+
 /** Picks the dense or the sparse Newton matrix for a pattern. */
 export function createNewtonMatrix(n: number, pattern: SparsityPattern): NewtonMatrix {
   return n <= DENSE_MAX_N ? new DenseNewtonMatrix(n, pattern) : new SparseNewtonMatrix(n, pattern);

@@ -18,9 +18,17 @@ export interface OdeProblem {
   n: number;
   /** Writes dy/dt at (t, y) into dydt. Must not keep references to y or dydt. */
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
-  /** Writes df_i/dy_j at (t, y) into values, in the order of `pattern`. */
+  /** Writes df_i/dy_j at (t, y) into values, in the order of `pattern` (and `rankOne`, when there is one). */
   jacobian(t: number, y: Float64Array, values: Float64Array): void;
   pattern: SparsityPattern;
+  /** A dense rank-one part of the Jacobian, J = J(pattern) + u w^T, that the pattern would carry only with much fill. */
+  rankOne?: RankOneJacobian;
+}
+
+/** Vectors of length n that every `jacobian` call rewrites beside the pattern's values. */
+export interface RankOneJacobian {
+  u: Float64Array;
+  w: Float64Array;
 }
 
 export interface IntegrateOptions {

@@ -189,6 +189,24 @@ describe('ices that no surface process destroys', () => {
   });
 });
 
+describe('mantle species in a network file (docs/ice-mantle.md)', () => {
+  it('may stand in the species list, where they give the data of their gas form and raise no unused-species warning', () => {
+    const r = check(CLOSED, SPECIES.replace('{name: CO,', '{name: CO(mantle),'));
+    expect(r.problems).toEqual([]);
+  });
+
+  it('may not take part in a reaction: the mantle is inert', () => {
+    let caught: unknown;
+    try {
+      check([...CLOSED, '{reactants: [CO(mantle)], products: [CO], law: thermal-desorption}'], SPECIES);
+    } catch (e) {
+      caught = e;
+    }
+    expect(caught).toBeInstanceOf(UserErrors);
+    expect((caught as UserErrors).message).toMatch(/CO\(mantle\) is a mantle species: the inert bulk ice takes part in no reaction.*CO\(s\)/);
+  });
+});
+
 describe('the default network config/networks/dark-cloud.yaml', () => {
   const net = loadNetwork('config/networks/dark-cloud.yaml');
   const report = checkNetwork(net);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { UserError } from '../../src/config/errors.ts';
-import { iceName, isIceName, parseSpecies, tryParseSpecies } from '../../src/chem/species.ts';
+import { iceName, isIceName, mantleName, parseSpecies, tryParseSpecies } from '../../src/chem/species.ts';
 
 /**
  * Standard atomic weights, typed here independently of src/chem/elements.ts:
@@ -29,7 +29,7 @@ const ELECTRON_U = 5.48579909e-4;
  * (CRC Handbook of Chemistry and Physics: H2O 18.015, CO2 44.009, CH4 16.043,
  * NH3 17.031, CH3OH 32.042, C2H5OH 46.069 g/mol), checked separately below.
  */
-const CASES: [string, Record<string, number>, number, 'gas' | 'ice'][] = [
+const CASES: [string, Record<string, number>, number, 'gas' | 'ice' | 'mantle'][] = [
   ['H2', { H: 2 }, 0, 'gas'],
   ['He+', { He: 1 }, 1, 'gas'],
   ['H3+', { H: 3 }, 1, 'gas'],
@@ -51,6 +51,8 @@ const CASES: [string, Record<string, number>, number, 'gas' | 'ice'][] = [
   ['CH3OH(s)', { C: 1, H: 4, O: 1 }, 0, 'ice'],
   ['NH3(s)', { N: 1, H: 3 }, 0, 'ice'],
   ['H2S(s)', { H: 2, S: 1 }, 0, 'ice'],
+  ['H2O(mantle)', { H: 2, O: 1 }, 0, 'mantle'],
+  ['CH3OH(mantle)', { C: 1, H: 4, O: 1 }, 0, 'mantle'],
   ['OCS', { O: 1, C: 1, S: 1 }, 0, 'gas'],
   ['S--', { S: 1 }, -2, 'gas'],
 ];
@@ -106,6 +108,14 @@ describe('parseSpecies against IUPAC 2021 standard atomic weights', () => {
     expect(isIceName('H2O')).toBe(false);
   });
 
+  it('mantle names keep the gas name and our state suffix (mantle) (docs/ice-mantle.md)', () => {
+    const s = parseSpecies('c-C3H2(mantle)');
+    expect(s.gasName).toBe('c-C3H2');
+    expect(s.phase).toBe('mantle');
+    expect(mantleName('H2O')).toBe('H2O(mantle)');
+    expect(isIceName('H2O(mantle)')).toBe(false);
+  });
+
   it('isomer prefixes do not change the formula', () => {
     expect(parseSpecies('c-C3H2').elements).toEqual({ C: 3, H: 2 });
     expect(parseSpecies('l-C3H').elements).toEqual({ C: 3, H: 1 });
@@ -122,6 +132,9 @@ describe('malformed species names are rejected with a reason', () => {
     ['CO+-', /mixed charge signs/],
     ['HCO+(s)', /ions are not kept in the ice/],
     ['e-(s)', /electrons have no ice form/],
+    ['HCO+(mantle)', /ions are not kept in the mantle/],
+    ['e-(mantle)', /electrons have no mantle form/],
+    ['H2O(Mantle)', /unexpected character '\('/],
     ['+', /no elements/],
     ['H2O(S)', /unexpected character '\('/],
   ];

@@ -1,11 +1,12 @@
 /** The compiled system: folding with n_H, rhs, analytic Jacobian against finite differences (common practice), pattern, emission. */
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
-import { compile, type CompiledSystem } from '../../src/chem/system.ts';
+import { compile } from '../../src/chem/system.ts';
 import { join } from 'node:path';
 import { loadNetwork } from '../../src/chem/network.ts';
 import { makeNetwork } from '../model/fixtures.ts';
 import { evaporatedHydrogenShare, h2FormationCoefficientHM79, hydrogenGrainTerms } from '../../src/chem/grain-h2.ts';
+import { fdCheck, randomState } from '../support/jacobian.ts';
 
 const c = defaultConditions();
 // Binding energies E_D/k_B, K: physics.md section 4 (memory).
@@ -29,43 +30,6 @@ const net = makeNetwork(
   ],
   data,
 );
-
-function randomState(sys: CompiledSystem, scale: number, seed: number): Float64Array {
-  let s = seed;
-  const rand = () => ((s = (s * 16807) % 2147483647) / 2147483647);
-  return Float64Array.from({ length: sys.n }, () => scale * (0.1 + rand()));
-}
-
-function fdCheck(sys: CompiledSystem, y: Float64Array): number {
-  const values = new Float64Array(sys.pattern.colIdx.length);
-  sys.jacobian(0, y, values);
-  const f0 = new Float64Array(sys.n);
-  const f1 = new Float64Array(sys.n);
-  const dense = new Float64Array(sys.n * sys.n);
-  for (let i = 0; i < sys.n; i++) for (let p = sys.pattern.rowPtr[i]; p < sys.pattern.rowPtr[i + 1]; p++) dense[i * sys.n + sys.pattern.colIdx[p]] = values[p];
-  let worst = 0;
-  const rowMax = new Float64Array(sys.n);
-  for (let i = 0; i < sys.n; i++) for (let j = 0; j < sys.n; j++) rowMax[i] = Math.max(rowMax[i], Math.abs(dense[i * sys.n + j]));
-  for (let j = 0; j < sys.n; j++) {
-    const h = 1e-7 * y[j];
-    const yp = Float64Array.from(y);
-    const ym = Float64Array.from(y);
-    yp[j] += h;
-    ym[j] -= h;
-    sys.rhs(0, yp, f1);
-    sys.rhs(0, ym, f0);
-    for (let i = 0; i < sys.n; i++) {
-      const fd = (f1[i] - f0[i]) / (2 * h);
-      const an = dense[i * sys.n + j];
-      const scale = Math.max(Math.abs(fd), Math.abs(an), 1e-30);
-      if (Math.abs(fd - an) > 1e-7 * rowMax[i] && Math.abs(fd - an) / scale > worst) {
-        worst = Math.abs(fd - an) / scale;
-        if (process.env.DEBUG_FD) console.log(i, j, fd, an);
-      }
-    }
-  }
-  return worst;
-}
 
 describe('compile', () => {
   const sys = compile(net, c, DEFAULT_GRAIN_OPTIONS);
@@ -212,6 +176,8 @@ describe('compile the default network', () => {
     { ...DEFAULT_GRAIN_OPTIONS, tunnelling: true, h2Formation: 'hollenbach-mckee' as const },
     // Ice photolysis and the non-diffusive reactions (docs/ice-nondiffusive.md): the coverage term's ice-total derivative included.
     nonDiffusive,
+    // The three-phase ice with every other switch: the transfer's rank-one block is checked in test/chem/mantle.test.ts.
+    { ...nonDiffusive, mantle: true },
   ]) {
     it(`has an exact Jacobian below and above a monolayer (${JSON.stringify(grain)})`, () => {
       const sys = compile(network, { ...c, dust_temperature: 15 }, grain);

@@ -19,7 +19,7 @@ function hoarfrost(args: string[], cwd: string) {
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
-function pipeline(dir: string, name: string, extra: { conditions?: string; initial?: string } = {}): string {
+function pipeline(dir: string, name: string, extra: { conditions?: string; initial?: string; grain?: string } = {}): string {
   const file = join(dir, name);
   writeFileSync(
     file,
@@ -31,6 +31,7 @@ function pipeline(dir: string, name: string, extra: { conditions?: string; initi
       'initial:',
       extra.initial ?? '  H2: 0.5\n  He: 0.09\n  C+: 7.3e-5\n  O: 1.76e-4',
       'times: { start_yr: 1.0e2, end_yr: 1.0e6, count: 9 }',
+      ...(extra.grain ? [`grain: ${extra.grain}`] : []),
       '',
     ].join('\n'),
   );
@@ -96,6 +97,23 @@ describe('hoarfrost model', () => {
       if (Math.max(a, v) > 1e-15) worst = Math.max(worst, Math.abs(v - a) / Math.max(a, v));
     }));
     expect(worst).toBeLessThan(1e-4);
+  });
+});
+
+describe('hoarfrost model: three-phase ice (docs/ice-mantle.md)', () => {
+  it('writes X(s) as surface plus mantle beside X(surface) and X(mantle), and plots any of them', () => {
+    const dir = scratch('hoarfrost-model-');
+    pipeline(dir, 'm.yaml', { grain: '{ mantle: true }' });
+    const r = hoarfrost(['model', 'm.yaml', '--out', 'res', '--species', 'H2O(s),H2O(surface),H2O(mantle)'], dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const json = JSON.parse(readFileSync(join(dir, 'res', 'abundances.json'), 'utf8')) as { species: string[]; grain: { mantle: boolean }; abundances: Record<string, number[]> };
+    expect(json.grain.mantle).toBe(true);
+    expect(json.species).toEqual(expect.arrayContaining(['H2O(s)', 'H2O(surface)', 'H2O(mantle)', 'O(mantle)']));
+    const a = json.abundances;
+    a['H2O(s)'].forEach((x, k) => expect(x).toBeCloseTo(a['H2O(surface)'][k] + a['H2O(mantle)'][k], 20));
+    const header = readFileSync(join(dir, 'res', 'abundances.csv'), 'utf8').split('\n')[0].split(',');
+    expect(header).toEqual(expect.arrayContaining(['H2O(s)', 'H2O(surface)', 'H2O(mantle)']));
   });
 });
 

@@ -19,6 +19,8 @@ describe('pipeline section defaults', () => {
       photodissociation_induced: false,
       ice_photolysis: false,
       ice_photolysis_factor: 1,
+      mantle: false,
+      surface_layers: 1,
     });
     expect(bare.photochemistry).toEqual({ h2_self_shielding: true });
   });

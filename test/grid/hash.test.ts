@@ -46,6 +46,7 @@ describe('model content hash', () => {
     ['photodissociation-induced reactions', (s) => ({ ...s, grain: { ...s.grain, photodissociationInduced: true } })],
     ['ice photolysis', (s) => ({ ...s, grain: { ...s.grain, icePhotolysis: true } })],
     ['ice photolysis factor', (s) => ({ ...s, grain: { ...s.grain, icePhotolysisFactor: 0.5 } })],
+    ['three-phase ice', (s) => ({ ...s, grain: { ...s.grain, mantle: true } })],
     ['initial abundance', (s) => ({ ...s, initial: { ...s.initial, 'C+': 7.4e-5 } })],
     ['output times', (s) => ({ ...s, timesYr: Float64Array.from([1e3, 1e4, 2e5]) })],
     ['rtol', (s) => ({ ...s, solver: { ...s.solver, rtol: 1e-7 } })],
@@ -59,6 +60,13 @@ describe('model content hash', () => {
       expect(hashOf(change(shared()))).not.toBe(base);
     });
   }
+
+  it('changes with the surface layers of a three-phase ice, and not while the mantle is off', () => {
+    const s = shared();
+    const mantle = (layers: number) => hashOf({ ...s, grain: { ...s.grain, mantle: true, surfaceLayers: layers } });
+    expect(mantle(2)).not.toBe(mantle(1));
+    expect(hashOf({ ...s, grain: { ...s.grain, surfaceLayers: 2 } })).toBe(base);
+  });
 
   it('changes with any condition', () => {
     const c = defaultConditions();

@@ -66,10 +66,12 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const conditions = resolveConditions(pipeline, opts.set ?? []);
   const network = loadNetwork(pipeline.resolvePath(cfg.network));
   const initialNotes: string[] = [];
-  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
-  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
   const grain = grainOptions(pipeline);
-  const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name));
+  const { modelNetwork, outputSpeciesNames } = await import('../../chem/mantle.ts');
+  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
+  const initial = loadInitialComposition(cfg.initial, pipeline.dir, modelNetwork(network, grain), initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
+  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
+  const figureSpecies = chooseSpecies(opts.species, outputSpeciesNames(network, grain));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
 
   const input = {
@@ -214,7 +216,10 @@ function chooseSpecies(list: string | undefined, names: string[]): string[] {
   const missing = wanted.filter((s) => !names.includes(s));
   if (wanted.length === 0) throw new UserError('--species needs at least one species name, e.g. --species CO,H2O(s).', { field: '--species' });
   if (missing.length > 0) {
-    throw new UserError(`the network has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s)).`, { field: '--species' });
+    throw new UserError(
+      `the model has no species ${missing.map((s) => `'${s}'`).join(', ')}. Check the spelling (ices are written like H2O(s); with grain.mantle on, also H2O(surface) and H2O(mantle)).`,
+      { field: '--species' },
+    );
   }
   return wanted;
 }
