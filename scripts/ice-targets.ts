@@ -19,13 +19,16 @@
  * Ice is every non-gas form of a species (the surface ice X(s), and a mantle
  * form when the engine has one) summed by gas name.
  *
- * Run: npx tsx scripts/ice-targets.ts [network.yaml] [--json]
+ * Run: npx tsx scripts/ice-targets.ts [network.yaml] [--json] [--grain '{"mantle": true, ...}']
  */
 import { resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions, type GrainOptions } from '../src/config/conditions.ts';
 import { loadNetwork } from '../src/chem/network.ts';
 import type { Network } from '../src/chem/network-types.ts';
+import { ICE_SUFFIX } from '../src/chem/species.ts';
+import { grainSection } from '../src/config/pipeline.ts';
+import { grainOptionsOf } from '../src/grid/plan.ts';
 import { loadInitialComposition, outputTimesYr, runModel } from '../src/model/run.ts';
 
 export const DEFAULT_NETWORK = fileURLToPath(new URL('../config/networks/dark-cloud.yaml', import.meta.url));
@@ -103,12 +106,15 @@ export interface EvaluateOptions {
   perDecade?: number;
 }
 
-/** Abundance of every ice form of a species, summed by gas name. */
-function iceTotals(network: Network, y: Float64Array, offset: number): Map<string, number> {
+/**
+ * Abundance of the whole ice of each species, by gas name: the output column
+ * X(s), which is surface plus mantle when the three-phase ice is on (its
+ * X(surface) and X(mantle) columns are the parts, not added again).
+ */
+function iceTotals(species: readonly string[], y: Float64Array, offset: number): Map<string, number> {
   const totals = new Map<string, number>();
-  network.species.forEach((s, i) => {
-    if (s.phase === 'gas') return;
-    totals.set(s.gasName, (totals.get(s.gasName) ?? 0) + y[offset + i]);
+  species.forEach((name, i) => {
+    if (name.endsWith(ICE_SUFFIX)) totals.set(name.slice(0, -ICE_SUFFIX.length), y[offset + i]);
   });
   return totals;
 }
@@ -136,7 +142,7 @@ export function evaluateIceTargets(network: Network, options: EvaluateOptions = 
     const series: Record<string, number[]> = {};
     for (let k = 0; k < timesYr.length; k++) {
       if (!Number.isFinite(result.abundances[k * n])) break;
-      const ice = iceTotals(network, result.abundances, k * n);
+      const ice = iceTotals(result.species, result.abundances, k * n);
       for (const [name, x] of ice) (series[name] ??= []).push(x);
       const water = ice.get('H2O') ?? 0;
       const ratios: Record<string, number> = {};
@@ -217,7 +223,10 @@ export function formatTable(results: DensityResult[]): string {
 
 if (process.argv[1] === fileURLToPath(import.meta.url)) {
   const args = process.argv.slice(2);
-  const file = args.find((a) => !a.startsWith('--')) ?? DEFAULT_NETWORK;
-  const results = evaluateIceTargets(loadNetwork(resolve(file)));
+  const file = args.find((a, i) => !a.startsWith('--') && args[i - 1] !== '--grain') ?? DEFAULT_NETWORK;
+  // --grain '{"mantle": true, "three_body": true}': the pipeline's grain section, as JSON.
+  const grainArg = args.indexOf('--grain');
+  const grain = grainArg >= 0 ? grainOptionsOf(grainSection.parse(JSON.parse(args[grainArg + 1]))) : undefined;
+  const results = evaluateIceTargets(loadNetwork(resolve(file)), { grain });
   process.stdout.write(args.includes('--json') ? JSON.stringify(results, null, 2) + '\n' : formatTable(results));
 }

@@ -27,7 +27,7 @@ export interface Species {
   isElectron: boolean;
 }
 
-const ICE_SUFFIX = '(s)';
+export const ICE_SUFFIX = '(s)';
 const MANTLE_SUFFIX = '(mantle)';
 const ISOMER_PREFIX = /^(l|c|t|cis|trans|o|p)-/;
 

@@ -34,7 +34,11 @@ export interface GridPlan {
 }
 
 export function grainOptions(pipeline: Pipeline): GrainOptions {
-  const g = pipeline.config.grain;
+  return grainOptionsOf(pipeline.config.grain);
+}
+
+/** The grain section of a pipeline (snake_case, defaults applied) as the model's options. */
+export function grainOptionsOf(g: Pipeline['config']['grain']): GrainOptions {
   return {
     tunnelling: g.tunnelling,
     diffusionCompetition: g.diffusion_competition,
