@@ -138,6 +138,14 @@ describe('observation files', () => {
     expect(r.stderr.match(/ratios to the reference 'CH3OH\(s\)' are asked for/g)).toHaveLength(1);
   });
 
+  it('a FITS file with a negative NAXIS1 is refused at once, naming the keyword (the header offset never moves backwards)', () => {
+    const card = (text: string) => text.padEnd(80);
+    const header = [card('SIMPLE  =                    T'), card('BITPIX  =                  -64'), card('NAXIS   =                    2'), card('NAXIS1  =              -100000'), card('NAXIS2  =                    1'), card('END')].join('');
+    writeFileSync(join(dir, 'negative.fits'), header.padEnd(2880));
+    const r = refused(['observations', 'negative.fits']);
+    expect(r.stderr).toContain("negative.fits, field 'NAXIS1': primary HDU: NAXIS1 = -100000 is out of range: expected a whole number >= 0 (FITS Standard 4.0 §4.4.1).");
+  });
+
   it('a VOTable cut short names the elements left open, in words', () => {
     writeFileSync(join(dir, 'cut.vot'), '<?xml version="1.0"?>\n<VOTABLE version="1.4">\n<RESOURCE><TABLE>\n<FIELD name="id" datatype="char" arraysize="*"/>\n<DATA><TABLEDATA><TR><TD>a</TD></TR>\n');
     const r = refused(['observations', 'cut.vot']);
