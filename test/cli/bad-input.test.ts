@@ -69,6 +69,29 @@ describe('files that are not what they should be', () => {
   });
 });
 
+/** Nine aliases per level, six levels: 9^6 copies if expanded. */
+const ALIAS_BOMB = ['a0: &a0 [x, x, x, x, x, x, x, x, x]', ...[1, 2, 3, 4, 5, 6].map((k) => `a${k}: &a${k} [${Array(9).fill(`*a${k - 1}`).join(', ')}]`), ''].join('\n');
+
+describe('files built to exhaust the reader', () => {
+  it('an alias bomb in a pipeline file is a located error, not an internal error', () => {
+    writeFileSync(join(dir, 'bomb.yaml'), GOOD + ALIAS_BOMB);
+    const r = refused(['grid', 'bomb.yaml', '--status']);
+    expect(r.stderr).toContain('bomb.yaml:10: the aliases (*name) of this file expand to more than 1000 copies of values');
+  });
+
+  it('an alias bomb in a network file is a located error', () => {
+    writeFileSync(join(dir, 'bomb-network.yaml'), `format: hoarfrost-network 1\nname: bomb\n${ALIAS_BOMB}`);
+    const r = refused(['network', 'check', 'bomb-network.yaml']);
+    expect(r.stderr).toContain('bomb-network.yaml:4: the aliases (*name) of this file expand to more than 1000 copies');
+  });
+
+  it('a VOTable with an external entity is refused at its DOCTYPE line; the entity is never read', () => {
+    writeFileSync(join(dir, 'xxe.vot'), '<?xml version="1.0"?>\n<!DOCTYPE VOTABLE [<!ENTITY x SYSTEM "file:///etc/hostname">]>\n<VOTABLE><RESOURCE><TABLE><FIELD name="id" datatype="char" arraysize="*"/><DATA><TABLEDATA><TR><TD>&x;</TD></TR></TABLEDATA></DATA></TABLE></RESOURCE></VOTABLE>\n');
+    const r = refused(['observations', 'xxe.vot']);
+    expect(r.stderr).toContain('xxe.vot:2: the file declares a DOCTYPE');
+  });
+});
+
 describe('pipeline values of the wrong kind', () => {
   it('malformed YAML gives the parser problem once, with its column, and no dangling colon', () => {
     writeFileSync(join(dir, 'tabs.yaml'), 'name: x\n\tnetwork: y\n');
