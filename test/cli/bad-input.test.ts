@@ -169,6 +169,12 @@ describe('observation files', () => {
     expect(r.stderr).toContain("negative.fits, field 'NAXIS1': primary HDU: NAXIS1 = -100000 is out of range: expected a whole number >= 0 (FITS Standard 4.0 §4.4.1).");
   });
 
+  it('a YAML sightline list with .inf is refused with its line, as the CSV reader refuses 1e400', () => {
+    writeFileSync(join(dir, 'inf.yaml'), 'sightlines:\n  - id: AX-1\n    av: 5\n    columns:\n      H2O(s): { value: .inf, error: 5e16 }\n');
+    const r = refused(['observations', 'inf.yaml']);
+    expect(r.stderr).toContain("inf.yaml:5, field 'H2O(s).value': expected a finite number, found infinity");
+  });
+
   it('a VOTable cut short names the elements left open, in words', () => {
     writeFileSync(join(dir, 'cut.vot'), '<?xml version="1.0"?>\n<VOTABLE version="1.4">\n<RESOURCE><TABLE>\n<FIELD name="id" datatype="char" arraysize="*"/>\n<DATA><TABLEDATA><TR><TD>a</TD></TR>\n');
     const r = refused(['observations', 'cut.vot']);
