@@ -9,6 +9,7 @@
  */
 import { UserError, UserErrors } from '../config/errors.ts';
 import { RATE_LAW_NAMES, type RateLawName } from './laws.ts';
+import { rateBoundProblem } from './rate-bounds.ts';
 import type { Network, Reaction, SourceLocation } from './network-types.ts';
 import { iceName, parseSpecies, type Species } from './species.ts';
 
@@ -25,7 +26,9 @@ export type ProblemKind =
   | 'only-destroyed'
   | 'no-accretion'
   | 'no-desorption'
-  | 'unused-species';
+  | 'unused-species'
+  | 'rate-not-finite'
+  | 'rate-above-bound';
 
 export interface NetworkProblem {
   severity: Severity;
@@ -75,6 +78,8 @@ export function checkNetwork(network: Network): NetworkReport {
   for (const r of network.reactions) {
     checkConservation(r, speciesOf, add);
     if (r.tmin > r.tmax) add('error', 'inverted-range', `temperature range [${r.tmin}, ${r.tmax}] K is inverted (tmin > tmax) in ${reactionLabel(r)}; swap the two values.`, [r]);
+    const bound = rateBoundProblem(r);
+    if (bound) add('error', bound.kind, bound.message, [r]);
   }
   checkDuplicates(network.reactions, add);
   checkSurfacePairs(network.reactions, add);

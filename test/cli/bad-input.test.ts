@@ -182,6 +182,16 @@ describe('observation files', () => {
   });
 });
 
+describe('networks with impossible rate coefficients', () => {
+  it('network check refuses alpha = 1e300 (beyond the capture limit) and beta = -1000, gamma = -50000 (not finite), naming each reaction', () => {
+    writeFileSync(join(dir, 'wild.yaml'), 'format: hoarfrost-network 1\nname: wild\nspecies:\n  - {name: CO, binding_energy: 1150}\nreactions:\n  - {reactants: [H3+, CO], products: [HCO+, H2], law: arrhenius, alpha: 1.0e300, temperature: [10, 300]}\n  - {reactants: [HCO+, e-], products: [CO, H], law: arrhenius, alpha: 1.0e-7, beta: -1000, gamma: -50000, temperature: [10, 300]}\n');
+    const r = runCli(['network', 'check', 'wild.yaml'], dir);
+    expect(r.code, r.stderr).toBe(1);
+    expect(r.stdout).toContain('H3+ + CO -> HCO+ + H2 (arrhenius): k = 1e+300 cm^3 s^-1 at 10 K exceeds 1e-6 cm^3 s^-1');
+    expect(r.stdout).toContain('HCO+ + e- -> CO + H (arrhenius): k is not finite (Infinity) at 10 K');
+  });
+});
+
 describe('model stores', () => {
   it('merge of a store that is a folder says so, not "disk I/O error"', () => {
     mkdirSync(join(dir, 'shard-folder.sqlite'), { recursive: true });
