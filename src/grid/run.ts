@@ -47,7 +47,7 @@ export interface RunGridOptions {
   /** Called after every finished model. */
   onProgress?: (p: GridProgress) => void;
   /** Called once the work is known, before the first model. */
-  onStart?: (info: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number }) => void;
+  onStart?: (info: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number; note?: string }) => void;
   /** Aborting it lets the models in flight finish, then stops. */
   drainSignal?: AbortSignal;
   /** Aborting it stops at once; models in flight are lost. */
@@ -120,8 +120,12 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     }
     const stale = staleIds.size;
     const upToDate = share.length - todo.length;
-    const workers = Math.min(options.workers ?? defaultWorkerCount(), Math.max(1, todo.length));
-    options.onStart?.({ storeFile, share: share.length, upToDate, todo: todo.length, stale, workers });
+    // More model threads than cores only share the cores and multiply the memory (each holds a network and a solver).
+    const cores = defaultWorkerCount();
+    const asked = options.workers ?? cores;
+    const workers = Math.min(asked, cores, Math.max(1, todo.length));
+    const note = asked > cores ? `--workers ${asked} is more than the ${cores} cores this process may use; running ${cores} at most` : undefined;
+    options.onStart?.({ storeFile, share: share.length, upToDate, todo: todo.length, stale, workers, note });
 
     const run = randomUUID();
     const byId = new Map(todo.map((p) => [p.id, p]));

@@ -211,7 +211,7 @@ const grid: StageImpl<PipelineData, 'grid'> = {
         workers: ctx.workers,
         sightlineAv,
         drainSignal: drain.signal,
-        onStart: (info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}`),
+        onStart: (info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}${info.note ? ` (${info.note})` : ''}`),
         onProgress: (p) => {
           const now = performance.now();
           if (p.done < p.total && now - lastLine < GRID_PROGRESS_INTERVAL_MS) return;

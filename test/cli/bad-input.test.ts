@@ -192,6 +192,14 @@ describe('networks with impossible rate coefficients', () => {
   });
 });
 
+describe('resources asked for beyond the machine', () => {
+  it('--workers 1000 runs on the cores, with a note saying so', () => {
+    const r = runCli(['grid', pipeline('workers', 'output: out', 'output: out-workers'), '--workers', '1000'], dir);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout + r.stderr).toMatch(/on 1 worker \(--workers 1000 is more than the \d+ cores this process may use; running \d+ at most\)/);
+  });
+});
+
 describe('model stores', () => {
   it('merge of a store that is a folder says so, not "disk I/O error"', () => {
     mkdirSync(join(dir, 'shard-folder.sqlite'), { recursive: true });

@@ -1,7 +1,7 @@
 /** The pool and runGrid with a fake model in real worker threads: failures, crashes, stopping, resuming. */
 import { spawnSync } from 'node:child_process';
 import { existsSync, writeFileSync } from 'node:fs';
-import { hostname } from 'node:os';
+import { availableParallelism, hostname } from 'node:os';
 import { afterEach, describe, expect, it } from 'vitest';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { mainStoreFile, planGrid } from '../../src/grid/plan.ts';
@@ -92,6 +92,16 @@ describe('grid runs on a worker pool (fake model)', () => {
     expect(retried).toMatchObject({ computed: 2, ok: 2 });
     const plan = planGrid(pipeline);
     expect(gridStatus(mainStoreFile(plan), plan.points)).toMatchObject({ done: 18, failed: 0, missing: 0, stale: 0 });
+  });
+
+  it('--workers beyond the cores is capped at the cores, with a note saying so', async () => {
+    const pipeline = loadPipeline(writePipeline(scratch(), GRID));
+    const starts: { workers: number; note?: string }[] = [];
+    const r = await runGrid(pipeline, { workers: 1000, workerUrl: FAKE_WORKER, onStart: (i) => starts.push(i) });
+    expect(r.computed).toBe(18);
+    const cores = availableParallelism();
+    expect(starts[0].workers).toBe(Math.min(cores, 18));
+    expect(starts[0].note).toBe(`--workers 1000 is more than the ${cores} cores this process may use; running ${cores} at most`);
   });
 
   it('refuses a second run on the same store, and takes over a lock left by a dead process', async () => {
