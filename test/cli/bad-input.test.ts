@@ -6,9 +6,10 @@
  */
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
+import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ROOT, expectNoStack, runCli, type CliResult } from '../support/cli.ts';
+import { BIN, ROOT, expectNoStack, runCli, type CliResult } from '../support/cli.ts';
 
 const NETWORK = join(ROOT, 'config/networks/dark-cloud.yaml');
 
@@ -193,6 +194,44 @@ describe('networks with impossible rate coefficients', () => {
 });
 
 describe('resources asked for beyond the machine', () => {
+  it('a range of a billion values is refused at its count before any value is built', () => {
+    const r = refused(['grid', pipeline('billion', 'density: 1.0e4', 'density: { from: 1.0e3, to: 1.0e5, count: 1000000000 }'), '--status']);
+    expect(r.stderr).toContain("billion.yaml:5, field 'conditions.density.count': a range of 1000000000 values is more than the 1000000 grid points allowed (HOARFROST_MAX_GRID_POINTS raises the limit).");
+  });
+
+  it('a grid over the point limit is refused before it is planned, and the limit can be changed through the environment', () => {
+    const big = pipeline('big', 'density: 1.0e4', 'density: { from: 1.0e3, to: 1.0e5, count: 2000 }\n  dust_temperature: { from: 8, to: 20, count: 1000 }');
+    const r = refused(['grid', big, '--status']);
+    expect(r.stderr).toContain('the grid would have 2000000 points, more than the 1000000 allowed');
+    // A computing centre may lower the limit (or a user raise it) through the environment.
+    const modest = pipeline('modest', 'density: 1.0e4', 'density: { from: 1.0e3, to: 1.0e5, count: 20 }\n  dust_temperature: { from: 8, to: 20, count: 10 }');
+    const lowered = spawnSync(process.execPath, [BIN, 'grid', modest, '--status'], { cwd: dir, encoding: 'utf8', env: { ...process.env, HOARFROST_MAX_GRID_POINTS: '100' } });
+    expect(lowered.status).toBe(2);
+    expect(lowered.stderr).toContain('the grid would have 200 points, more than the 100 allowed (HOARFROST_MAX_GRID_POINTS raises the limit)');
+  });
+
+  it('a hundred million output times are refused when the pipeline is read', () => {
+    const r = refused(['grid', pipeline('times-count', 'count: 9', 'count: 100000000'), '--status']);
+    expect(r.stderr).toContain("times-count.yaml:8, field 'times.count'");
+    expect(r.stderr).toContain('10000');
+  });
+
+  it('a sightline name of 2,000 characters is refused with its line and column', () => {
+    writeFileSync(join(dir, 'long-name.csv'), `star,av,N(H2O(s)),N(H2O(s))_err\n${'A'.repeat(2000)},5.0,2e17,5e16\n`);
+    const r = refused(['observations', 'long-name.csv']);
+    expect(r.stderr).toContain("long-name.csv:2, field 'star': a cell of 2000 characters; cells hold at most 1000");
+  });
+
+  it('an observation table with more rows than the limit is refused, and a text file past the size limit before it is read', () => {
+    writeFileSync(join(dir, 'rows.csv'), `star,av,N(H2O(s)),N(H2O(s))_err\n${Array.from({ length: 20 }, (_, i) => `AX-${i},5.0,2e17,5e16`).join('\n')}\n`);
+    const rows = spawnSync(process.execPath, [BIN, 'observations', 'rows.csv'], { cwd: dir, encoding: 'utf8', env: { ...process.env, HOARFROST_MAX_OBSERVATION_ROWS: '10' } });
+    expect(rows.status).toBe(2);
+    expect(rows.stderr).toContain('rows.csv: the table has 20 rows, more than the 10 allowed (HOARFROST_MAX_OBSERVATION_ROWS raises the limit).');
+    const bytes = spawnSync(process.execPath, [BIN, 'observations', 'rows.csv'], { cwd: dir, encoding: 'utf8', env: { ...process.env, HOARFROST_MAX_OBSERVATION_BYTES: '100' } });
+    expect(bytes.status).toBe(2);
+    expect(bytes.stderr).toMatch(/rows\.csv: the file has \d+ bytes, more than the 100 allowed for an observation text file \(HOARFROST_MAX_OBSERVATION_BYTES raises the limit\)/);
+  });
+
   it('--workers 1000 runs on the cores, with a note saying so', () => {
     const r = runCli(['grid', pipeline('workers', 'output: out', 'output: out-workers'), '--workers', '1000'], dir);
     expect(r.code, r.stderr).toBe(0);
