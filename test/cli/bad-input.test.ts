@@ -176,6 +176,22 @@ describe('observation files', () => {
     expect(r.stderr).toContain("inf.yaml:5, field 'H2O(s).value': expected a finite number, found infinity");
   });
 
+  it('terminal control sequences in sightline names never reach the terminal (clear screen, OSC title and link, C1 CSI, bidi override)', () => {
+    const names = ['AX-\u001b[2J\u001b[H1', 'AX-\u001b]0;owned\u0007-2', 'AX-\u001b]8;;https://example.invalid\u001b\\3\u001b]8;;\u001b\\', 'AX-\u009b31m4', 'AX-\u202e5'];
+    writeFileSync(join(dir, 'control.csv'), `star,av,N(H2O(s)),N(H2O(s))_err\n${names.map((n, i) => `"${n}",${5 + i},2e17,5e16`).join('\n')}\n`);
+    const CONTROL = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
+    for (const args of [['observations', 'control.csv'], ['observations', 'control.csv', '--json']]) {
+      const r = runCli(args, dir);
+      expect(r.stdout + r.stderr).toContain('AX-');
+      expect(r.stdout).not.toMatch(CONTROL);
+      expect(r.stderr).not.toMatch(CONTROL);
+    }
+    writeFileSync(join(dir, 'control-bad.csv'), 'star,av,N(H2O(s)),N(H2O(s))_err\nAX-1,5,\u001b[2Jlots,5e16\n');
+    const r = refused(['observations', 'control-bad.csv']);
+    expect(r.stderr).toContain("cannot read '?[2Jlots'");
+    expect(r.stderr).not.toMatch(CONTROL);
+  });
+
   it('a VOTable cut short names the elements left open, in words', () => {
     writeFileSync(join(dir, 'cut.vot'), '<?xml version="1.0"?>\n<VOTABLE version="1.4">\n<RESOURCE><TABLE>\n<FIELD name="id" datatype="char" arraysize="*"/>\n<DATA><TABLEDATA><TR><TD>a</TD></TR>\n');
     const r = refused(['observations', 'cut.vot']);
