@@ -4,7 +4,7 @@
  * line, field, what was expected), exit 2, no stack trace, nothing written.
  * Most cases fail while the pipeline file is read, so each process is short.
  */
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, lstatSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
@@ -281,6 +281,25 @@ describe('lock files', () => {
     mkdirSync(join(dir, 'locks'), { recursive: true });
     const r = refused(['run', pipeline('lock', 'times:', 'times:'), '--check', 'locks']);
     expect(r.stderr).toContain('locks: expected a lock file, found a folder.');
+  });
+});
+
+describe('planted symlinks and special folders', () => {
+  it('a symlink planted at an output file is replaced, and the file it pointed to is left alone', () => {
+    const precious = join(dir, 'precious.txt');
+    writeFileSync(precious, 'not yours to overwrite\n');
+    mkdirSync(join(dir, 'out-link/slurm'), { recursive: true });
+    const file = pipeline('link', 'output: out', 'output: out-link');
+    symlinkSync(precious, join(dir, 'out-link/slurm/grid-array.sh'));
+    const r = runCli(['slurm', file, '--shards', '1'], dir);
+    expect(r.code, r.stderr).toBe(0);
+    expect(readFileSync(precious, 'utf8')).toBe('not yours to overwrite\n');
+    expect(lstatSync(join(dir, 'out-link/slurm/grid-array.sh')).isSymbolicLink()).toBe(false);
+  });
+
+  it('init in /proc is refused at once instead of hanging', () => {
+    const r = refused(['init', '/proc/hoarfrost-project']);
+    expect(r.stderr).toContain('/proc/hoarfrost-project: is on the proc file system, a window onto the kernel, not a disk');
   });
 });
 
