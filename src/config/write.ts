@@ -23,12 +23,12 @@ const REFUSALS: Record<string, string> = {
   ENOENT: 'its folder does not exist (or was removed while writing)',
 };
 
-/** A write error as a UserError naming the file, when the machine refused it; undefined for anything else. */
-export function writeRefusal(file: string, e: unknown): UserError | undefined {
+/** A write error as a UserError naming the file (with `more` said after), when the machine refused it; undefined for anything else. */
+export function writeRefusal(file: string, e: unknown, more = ''): UserError | undefined {
   const code = (e as NodeJS.ErrnoException | undefined)?.code;
   const sqliteFull = (e as { code?: string } | undefined)?.code === 'SQLITE_FULL';
   const advice = sqliteFull ? REFUSALS.ENOSPC : code !== undefined ? REFUSALS[code] : undefined;
-  return advice === undefined ? undefined : new UserError(`cannot write: ${advice}.`, { file });
+  return advice === undefined ? undefined : new UserError(`cannot write: ${advice}.${more ? ` ${more}` : ''}`, { file });
 }
 
 /** Write a whole output file through a temporary file and a rename (see the top of this file). */

@@ -10,6 +10,7 @@ import { mkdirSync } from 'node:fs';
 import { dirname } from 'node:path';
 import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
+import { writeRefusal } from '../config/write.ts';
 import type { ModelResult } from '../model/types.ts';
 import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type GridPlan, type PlannedPoint } from './plan.ts';
 import { defaultWorkerCount, ModelPool, type PoolOutcome } from './pool.ts';
@@ -136,10 +137,18 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     let staleRecomputed = 0;
     let batch: StoredModel[] = [];
     let batchStarted = 0;
+    // A failed write (a full disk) stops the pool; the error is thrown once the workers are down, so the
+    // lock is released by the finally below and the store keeps every batch committed before it.
+    let writeFailure: unknown;
     const flush = () => {
-      if (batch.length === 0) return;
-      store.write(batch, run);
-      batch = [];
+      if (batch.length === 0 || writeFailure !== undefined) return;
+      try {
+        store.write(batch, run);
+        batch = [];
+      } catch (e) {
+        writeFailure = e;
+        pool.abort();
+      }
     };
     const timer = setInterval(() => {
       if (batch.length > 0 && performance.now() - batchStarted >= BATCH_MAX_WAIT_MS) flush();
@@ -190,6 +199,9 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       options.drainSignal?.removeEventListener('abort', onDrain);
       options.abortSignal?.removeEventListener('abort', onAbort);
       flush();
+    }
+    if (writeFailure !== undefined) {
+      throw writeRefusal(storeFile, writeFailure, 'The models written before this are kept; run the grid again to compute the rest.') ?? writeFailure;
     }
     const computed = ok + failed;
     return {
