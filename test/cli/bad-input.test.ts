@@ -3,6 +3,15 @@
  * user could really give, answered with a located, readable error (file,
  * line, field, what was expected), exit 2, no stack trace, nothing written.
  * Most cases fail while the pipeline file is read, so each process is short.
+ *
+ * Hostile input and faults whose reproduction needs more than one command
+ * line are tested beside their code: mutated FITS headers
+ * (test/obs/fits-fuzz.test.ts), two processes taking over the run lock
+ * (test/grid/run-lock.test.ts), a full, read-only or forbidden disk under
+ * the output writer (test/config/write.test.ts) and under the grid's batch
+ * flush (test/grid/pool.test.ts), a run with nothing to do
+ * (test/pipeline/runner.test.ts), rate coefficients over their temperature
+ * range (test/chem/rate-bounds.test.ts).
  */
 import { existsSync, lstatSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
