@@ -10,6 +10,7 @@
  */
 import { UserError, UserErrors } from '../config/errors.ts';
 import { RATE_LAW_NAMES, RATE_LAWS, type RateLawName } from './laws.ts';
+import { rateBoundProblem } from './rate-bounds.ts';
 import type { Network, Reaction, SourceLocation } from './network-types.ts';
 import { iceName, parseSpecies, type Species } from './species.ts';
 
@@ -27,7 +28,9 @@ export type ProblemKind =
   | 'no-accretion'
   | 'no-desorption'
   | 'no-surface-sink'
-  | 'unused-species';
+  | 'unused-species'
+  | 'rate-not-finite'
+  | 'rate-above-bound';
 
 export interface NetworkProblem {
   severity: Severity;
@@ -87,6 +90,8 @@ export function checkNetwork(network: Network, derive?: { options: string[]; rea
   for (const r of network.reactions) {
     checkConservation(r, speciesOf, add);
     if (r.tmin > r.tmax) add('error', 'inverted-range', `temperature range [${r.tmin}, ${r.tmax}] K is inverted (tmin > tmax) in ${reactionLabel(r)}; swap the two values.`, [r]);
+    const bound = rateBoundProblem(r);
+    if (bound) add('error', bound.kind, bound.message, [r]);
   }
   for (const r of derive?.reactions ?? []) checkConservation(r, speciesOf, add);
   checkDuplicates(network.reactions, add);

@@ -346,5 +346,14 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
     if (rates.length > before) coefficient.set(r, rates[before].k);
   }
   clampNotes.push(...h2RangeNotes(grain, c.dust_temperature));
+  // A coefficient that overflows at these conditions would stop the solver at t = 0 without a name.
+  for (const { reaction: r, k } of rates) {
+    if (!Number.isFinite(k)) {
+      throw new UserError(
+        `${r.derived ? `derived ${r.derived.label}` : `reaction ${r.index + 1} (${describe(r)}, ${r.law})`}: the rate coefficient is ${k} at these conditions (gas temperature ${c.gas_temperature} K, dust temperature ${c.dust_temperature} K, zeta ${c.cr_ionisation_rate} s^-1, G0 ${c.uv_field}, A_V ${c.visual_extinction} mag). Check its parameters; 'hoarfrost network check' evaluates every coefficient over its temperature range.`,
+        where(r),
+      );
+    }
+  }
   return { rates, skipped, clampNotes, derived, notes, grain: props, columnToEdge: NH_PER_AV * c.visual_extinction };
 }

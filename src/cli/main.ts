@@ -8,6 +8,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Command, CommanderError } from 'commander';
 import { isUserError } from '../config/errors.ts';
+import { forTerminal, terminalSafe } from '../config/terminal.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 
 export interface CommandContext {
@@ -55,8 +56,9 @@ export async function main(argv: string[]): Promise<number> {
     setExitCode: (code) => {
       exitCode = code;
     },
-    stdout: process.stdout,
-    stderr: process.stderr,
+    // Names and cells from user files reach the terminal through these (and the messages below).
+    stdout: terminalSafe(process.stdout),
+    stderr: terminalSafe(process.stderr),
   };
   const program = new Command('hoarfrost')
     .description('Compare observed ice and gas column densities with grids of gas-grain chemistry models.')
@@ -78,16 +80,16 @@ export async function main(argv: string[]): Promise<number> {
       return e.exitCode === 0 ? 0 : 2;
     }
     if (isUserError(e)) {
-      process.stderr.write(`hoarfrost: ${e.message}\n`);
+      process.stderr.write(`hoarfrost: ${forTerminal(e.message)}\n`);
       return e.exitCode;
     }
     const fsMessage = fileSystemMessage(e);
     if (fsMessage) {
-      process.stderr.write(`hoarfrost: ${fsMessage}\n`);
+      process.stderr.write(`hoarfrost: ${forTerminal(fsMessage)}\n`);
       return 2;
     }
     const err = e as Error;
-    process.stderr.write(`hoarfrost: internal error: ${err?.message ?? String(e)}\nThis is a fault of the tool, not of your input; please report it with the command you ran${process.env.HOARFROST_DEBUG ? '' : ' (set HOARFROST_DEBUG=1 to see the stack)'}.\n`);
+    process.stderr.write(`hoarfrost: internal error: ${forTerminal(err?.message ?? String(e))}\nThis is a fault of the tool, not of your input; please report it with the command you ran${process.env.HOARFROST_DEBUG ? '' : ' (set HOARFROST_DEBUG=1 to see the stack)'}.\n`);
     if (process.env.HOARFROST_DEBUG) process.stderr.write(`${err?.stack}\n`);
     return 70;
   }

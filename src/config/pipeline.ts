@@ -11,6 +11,7 @@ import { z } from 'zod';
 import { DEFAULT_SURFACE_LAYERS, ICE_PHOTOLYSIS_FACTOR } from './conditions.ts';
 import { UserError } from './errors.ts';
 import { loadYamlFile, validate, type LoadedYaml } from './yaml.ts';
+import { MAX_OUTPUT_TIMES } from './limits.ts';
 import { observationsSection } from './sections/observations.ts';
 import { conditionsSection, excludeSection } from './sections/conditions.ts';
 import { fitSection } from './sections/fit.ts';
@@ -21,7 +22,7 @@ export const timesSection = z
     start_yr: z.number().positive().default(1e3),
     end_yr: z.number().positive().default(1e7),
     /** Output times, spaced logarithmically from start to end. */
-    count: z.number().int().min(2).default(41),
+    count: z.number().int().min(2).max(MAX_OUTPUT_TIMES, { message: `at most ${MAX_OUTPUT_TIMES} output times per model (see src/config/limits.ts)` }).default(41),
   })
   .strict()
   .refine((t) => t.start_yr < t.end_yr, { path: ['end_yr'], message: 'output times need start_yr < end_yr; swap them, or make end_yr the later time' });

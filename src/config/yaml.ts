@@ -3,7 +3,7 @@
  * whose failures become UserErrors naming file, line and field.
  */
 import { readFileSync } from 'node:fs';
-import { isMap, isSeq, isScalar, LineCounter, parseDocument, type Node } from 'yaml';
+import { isMap, isPair, isSeq, isScalar, LineCounter, parseDocument, visit, type Node } from 'yaml';
 import type { z } from 'zod';
 import { collectedError, UserError } from './errors.ts';
 
@@ -49,10 +49,42 @@ export function decodeText(bytes: Uint8Array, file: string, what = 'file'): stri
   }
 }
 
+/**
+ * Limits on what a YAML file may ask of the reader. No file of ours nests
+ * deeper than about 6 levels or repeats a value through aliases more than a
+ * few dozen times; the limits are far above that and far below what fills
+ * the memory (an "alias bomb" of 9 aliases per level, 6 levels, asks for
+ * 9^6 = 531,441 copies).
+ */
+const MAX_YAML_DEPTH = 100;
+const MAX_ALIAS_COPIES = 1000;
+
+function tooDeep(file: string, line: number | undefined): UserError {
+  return new UserError(`values are nested more than ${MAX_YAML_DEPTH} deep; no hoarfrost file needs that. Check the file (a bracket left open, or a file that is not meant for hoarfrost).`, { file, line });
+}
+
+/** The line of the first node nested deeper than MAX_YAML_DEPTH, found without recursion. */
+function firstTooDeep(root: unknown, lc: LineCounter): { line: number | undefined } | undefined {
+  const stack: [unknown, number][] = [[root, 0]];
+  while (stack.length > 0) {
+    const [node, depth] = stack.pop()!;
+    if (depth > MAX_YAML_DEPTH) return { line: rangeLine(isPair(node) ? node.key : node, lc) };
+    if (isMap(node) || isSeq(node)) for (const item of node.items) stack.push([item, depth + 1]);
+    else if (isPair(node)) {
+      if (node.key !== null) stack.push([node.key, depth]);
+      if (node.value !== null) stack.push([node.value, depth]);
+    }
+  }
+  return undefined;
+}
+
 export function parseYamlText(text: string, file: string): LoadedYaml {
   const lineCounter = new LineCounter();
   const doc = parseDocument(text, { lineCounter, prettyErrors: true, uniqueKeys: true });
   if (doc.errors.length > 0) {
+    // The parser recurses per level of nesting; a file nested past its stack is a file nested too deep.
+    const overflow = doc.errors.find((err) => err.message.includes('Maximum call stack size exceeded'));
+    if (overflow) throw tooDeep(file, overflow.linePos?.[0]?.line);
     const problems = doc.errors.map((err) => {
       const line = err.linePos?.[0]?.line;
       const column = err.linePos?.[0]?.col;
@@ -65,7 +97,22 @@ export function parseYamlText(text: string, file: string): LoadedYaml {
   if (text.trim() === '' || doc.contents === null) {
     throw new UserError('the file is empty; expected a YAML document.', { file });
   }
-  const data = doc.toJS({ maxAliasCount: 1000 });
+  const deep = firstTooDeep(doc.contents, lineCounter);
+  if (deep) throw tooDeep(file, deep.line);
+  let data: unknown;
+  try {
+    data = doc.toJS({ maxAliasCount: MAX_ALIAS_COPIES });
+  } catch (e) {
+    if (!(e instanceof ReferenceError && /alias/i.test(e.message))) throw e;
+    let line: number | undefined;
+    visit(doc, {
+      Alias(_, node) {
+        line = rangeLine(node, lineCounter);
+        return visit.BREAK;
+      },
+    });
+    throw new UserError(`the aliases (*name) of this file expand to more than ${MAX_ALIAS_COPIES} copies of values (a guard against files built to fill the memory); write the repeated values out, or use fewer aliases.`, { file, line });
+  }
   const lineOf = (path: readonly PathKey[]): number | undefined => {
     let node: unknown = doc.contents;
     let best: number | undefined = rangeLine(node, lineCounter);

@@ -10,6 +10,7 @@ import { mkdirSync } from 'node:fs';
 import { dirname } from 'node:path';
 import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
+import { writeRefusal } from '../config/write.ts';
 import type { ModelResult } from '../model/types.ts';
 import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type GridPlan, type PlannedPoint } from './plan.ts';
 import { defaultWorkerCount, ModelPool, type PoolOutcome } from './pool.ts';
@@ -47,7 +48,7 @@ export interface RunGridOptions {
   /** Called after every finished model. */
   onProgress?: (p: GridProgress) => void;
   /** Called once the work is known, before the first model. */
-  onStart?: (info: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number }) => void;
+  onStart?: (info: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number; note?: string }) => void;
   /** Aborting it lets the models in flight finish, then stops. */
   drainSignal?: AbortSignal;
   /** Aborting it stops at once; models in flight are lost. */
@@ -120,8 +121,12 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     }
     const stale = staleIds.size;
     const upToDate = share.length - todo.length;
-    const workers = Math.min(options.workers ?? defaultWorkerCount(), Math.max(1, todo.length));
-    options.onStart?.({ storeFile, share: share.length, upToDate, todo: todo.length, stale, workers });
+    // More model threads than cores only share the cores and multiply the memory (each holds a network and a solver).
+    const cores = defaultWorkerCount();
+    const asked = options.workers ?? cores;
+    const workers = Math.min(asked, cores, Math.max(1, todo.length));
+    const note = asked > cores ? `--workers ${asked} is more than the ${cores} cores this process may use; running ${cores} at most` : undefined;
+    options.onStart?.({ storeFile, share: share.length, upToDate, todo: todo.length, stale, workers, note });
 
     const run = randomUUID();
     const byId = new Map(todo.map((p) => [p.id, p]));
@@ -132,10 +137,18 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     let staleRecomputed = 0;
     let batch: StoredModel[] = [];
     let batchStarted = 0;
+    // A failed write (a full disk) stops the pool; the error is thrown once the workers are down, so the
+    // lock is released by the finally below and the store keeps every batch committed before it.
+    let writeFailure: unknown;
     const flush = () => {
-      if (batch.length === 0) return;
-      store.write(batch, run);
-      batch = [];
+      if (batch.length === 0 || writeFailure !== undefined) return;
+      try {
+        store.write(batch, run);
+        batch = [];
+      } catch (e) {
+        writeFailure = e;
+        pool.abort();
+      }
     };
     const timer = setInterval(() => {
       if (batch.length > 0 && performance.now() - batchStarted >= BATCH_MAX_WAIT_MS) flush();
@@ -186,6 +199,9 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       options.drainSignal?.removeEventListener('abort', onDrain);
       options.abortSignal?.removeEventListener('abort', onAbort);
       flush();
+    }
+    if (writeFailure !== undefined) {
+      throw writeRefusal(storeFile, writeFailure, 'The models written before this are kept; run the grid again to compute the rest.') ?? writeFailure;
     }
     const computed = ok + failed;
     return {

@@ -21,7 +21,8 @@ export function parseNumberText(text: string): number | undefined {
 
 export function parseCell(cell: Cell): ParsedCell {
   if (cell === null || cell === undefined) return { kind: 'blank' };
-  if (typeof cell === 'number') return Number.isNaN(cell) ? { kind: 'blank' } : { kind: 'detection', value: cell };
+  // NaN is a blank cell in binary formats; an infinite number is no measurement, as '1e400' is not in text.
+  if (typeof cell === 'number') return Number.isNaN(cell) ? { kind: 'blank' } : Number.isFinite(cell) ? { kind: 'detection', value: cell } : { kind: 'bad', text: String(cell) };
   if (typeof cell === 'boolean') return { kind: 'bad', text: String(cell) };
   const t = cell.trim();
   if (BLANK_MARKERS.has(t.toLowerCase())) return { kind: 'blank' };

@@ -171,6 +171,15 @@ function truncated(file: string, what: string): never {
   throw new UserError(`the FITS file is truncated: ${what}. FITS files are whole 2880-byte blocks (FITS Standard 4.0 §3.1); the file was probably cut short while copying or downloading. Copy it again.`, { file });
 }
 
+/** A header count (NAXIS, NAXISn, PCOUNT, GCOUNT) checked against the range FITS Standard 4.0 §4.4.1 allows. */
+function wholeNumber(file: string, where: string, header: FitsHeader, key: string, min: number, max: number, absent: number): number {
+  const v = header.get(key);
+  if (v === undefined) return absent;
+  if (typeof v === 'number' && Number.isInteger(v) && v >= min && v <= max) return v;
+  const range = max === Number.MAX_SAFE_INTEGER ? `>= ${min}` : `from ${min} to ${max}`;
+  throw new UserError(`${where}: ${key} = ${typeof v === 'string' ? `'${v}'` : String(v)} is out of range: expected a whole number ${range} (FITS Standard 4.0 §4.4.1). The file is damaged or was written wrongly; write it again.`, { file, field: key });
+}
+
 /** Read a FITS file's structure: every HDU's header, kind and where its data lie. */
 export function readFits(file: string, bytes?: Uint8Array): FitsFile {
   let data: Uint8Array;
@@ -226,17 +235,22 @@ export function readFits(file: string, bytes?: Uint8Array): FitsFile {
     if (!SUPPORTED_BITPIX.includes(bitpix)) {
       throw new UserError(`${where}: BITPIX = ${bitpix} is not supported. This reader supports BITPIX 8, 16, 32, -32 and -64 (FITS Standard 4.0 Table 8); convert the file, for example to 32-bit floats (BITPIX = -32).`, { file, field: 'BITPIX' });
     }
-    callFitsjs(file, where, warnings, () => new (lib().astro.FITS.Header)(headerText));
-    const naxisN = header.num('NAXIS') ?? 0;
+    // Every value that moves the offset is range-checked before it is used: a negative NAXISn
+    // would move the offset backwards and the walk would never end.
+    const naxisN = wholeNumber(file, where, header, 'NAXIS', 0, 999, 0);
     const naxis: number[] = [];
-    for (let k = 1; k <= naxisN; k++) naxis.push(header.num(`NAXIS${k}`) ?? 0);
-    const xt = header.get('XTENSION');
-    const kind: FitsHduInfo['kind'] = index === 0 ? 'primary' : xt === 'IMAGE' ? 'image' : xt === 'BINTABLE' ? 'bintable' : xt === 'TABLE' ? 'table' : 'other';
-    const pcount = header.num('PCOUNT') ?? 0;
-    const gcount = header.num('GCOUNT') ?? 1;
+    for (let k = 1; k <= naxisN; k++) naxis.push(wholeNumber(file, where, header, `NAXIS${k}`, 0, Number.MAX_SAFE_INTEGER, 0));
+    const pcount = wholeNumber(file, where, header, 'PCOUNT', 0, Number.MAX_SAFE_INTEGER, 0);
+    const gcount = wholeNumber(file, where, header, 'GCOUNT', 1, Number.MAX_SAFE_INTEGER, 1);
     const dataLength = naxisN === 0 ? 0 : (Math.abs(bitpix) / 8) * gcount * (pcount + naxis.reduce((a, b) => a * b, 1));
+    if (!Number.isSafeInteger(dataLength)) {
+      throw new UserError(`${where}: the header declares a data unit of ${naxis.join(' x ')} values, more bytes than any file holds (FITS Standard 4.0 §4.4.1); the file is damaged.`, { file, field: 'NAXIS' });
+    }
     const padded = Math.ceil(dataLength / FITS_BLOCK) * FITS_BLOCK;
     if (pos + padded > data.length) truncated(file, `the data of ${where} need ${padded} bytes but only ${data.length - pos} remain`);
+    callFitsjs(file, where, warnings, () => new (lib().astro.FITS.Header)(headerText));
+    const xt = header.get('XTENSION');
+    const kind: FitsHduInfo['kind'] = index === 0 ? 'primary' : xt === 'IMAGE' ? 'image' : xt === 'BINTABLE' ? 'bintable' : xt === 'TABLE' ? 'table' : 'other';
     const extname = header.get('EXTNAME');
     hdus.push({ index, kind, name: typeof extname === 'string' ? extname : undefined, bitpix, naxis, header, headerOffset: offset, dataOffset: pos, dataLength });
     offset = pos + padded;

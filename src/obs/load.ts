@@ -3,9 +3,10 @@
  * the section's `format`), find the column mapping (the section's `columns`,
  * a `columns_file`, or a `<name>.columns.yaml` beside the data), read, check.
  */
-import { existsSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { basename, dirname, extname, isAbsolute, join, relative, resolve } from 'node:path';
 import { UserError } from '../config/errors.ts';
+import { MAX_CELL_CHARACTERS, maxObservationBytes, maxObservationRows } from '../config/limits.ts';
 import { loadYamlFile, readTextFile, validate } from '../config/yaml.ts';
 import { columnMapping, type ColumnMapping, type ObservationFormat, type ObservationsSection } from '../config/sections/observations.ts';
 import { loadBandTable, type BandTable } from './bands.ts';
@@ -59,6 +60,32 @@ function displayPath(abs: string): string {
   return rel !== '' && !rel.startsWith('..') && !isAbsolute(rel) ? rel : abs;
 }
 
+/** A text file past the size limit is refused before it is read (src/config/limits.ts). */
+function checkTextSize(file: string): void {
+  let size: number;
+  try {
+    size = statSync(file).size;
+  } catch {
+    return; // the reader says why it cannot read the file
+  }
+  const max = maxObservationBytes();
+  if (size > max) throw new UserError(`the file has ${size} bytes, more than the ${max} allowed for an observation text file (HOARFROST_MAX_OBSERVATION_BYTES raises the limit). Split the file, or save it as FITS.`, { file });
+}
+
+/** Rows and cell lengths checked before the table becomes sightlines (src/config/limits.ts). */
+function checkTableSize(table: RawTable): void {
+  const max = maxObservationRows();
+  if (table.nrows > max) throw new UserError(`the table has ${table.nrows} rows, more than the ${max} allowed (HOARFROST_MAX_OBSERVATION_ROWS raises the limit).`, { file: table.file });
+  for (const col of table.columns) {
+    for (let i = 0; i < table.nrows; i++) {
+      const v = col.values[i];
+      if (typeof v === 'string' && v.length > MAX_CELL_CHARACTERS) {
+        throw new UserError(`a cell of ${v.length} characters; cells hold at most ${MAX_CELL_CHARACTERS} (a sightline name is a short label). Check the quoting of this row.`, { ...table.place(i).loc, field: col.name });
+      }
+    }
+  }
+}
+
 export function loadObservations(section: ObservationsSection, baseDir: string, knownSpecies?: ReadonlySet<string>): ObservationSet {
   const file = displayPath(resolve(baseDir, section.file));
   const format = section.format ?? formatOf(file);
@@ -75,6 +102,7 @@ export function loadObservations(section: ObservationsSection, baseDir: string, 
   let table: RawTable;
   let mapping: ColumnMapping | undefined;
   let mappingSource: string | undefined;
+  if (format !== 'fits') checkTextSize(file);
   if (format === 'yaml') {
     const r = readYamlList(file, readTextFile(file, 'observation file'));
     table = r.table;
@@ -91,5 +119,6 @@ export function loadObservations(section: ObservationsSection, baseDir: string, 
     else table = readFitsObservations(file, section.hdu);
   }
   if (section.hdu !== undefined && format !== 'fits') throw new UserError("'hdu' applies to FITS files only.", { file, field: 'hdu' });
+  checkTableSize(table);
   return tableToObservations(table, { ...opts, mapping, mappingSource });
 }

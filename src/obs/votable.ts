@@ -59,7 +59,51 @@ function xmlProblem(msg: string): string {
   return msg.endsWith('.') ? msg : `${msg}.`;
 }
 
+/** VOTables nest about 8 deep (VOTABLE, RESOURCE, TABLE, DATA, TABLEDATA, TR, TD, plus GROUPs); the limit is far above that. */
+const MAX_XML_DEPTH = 100;
+
+/**
+ * Refuse a DOCTYPE (so no entity, internal or external, is ever declared:
+ * VOTable is defined by an XML Schema, not a DTD) and nesting deeper than
+ * MAX_XML_DEPTH, both with their line, before any parser builds a tree.
+ * Comments, CDATA and processing instructions are skipped; quoted attribute
+ * values may hold '>'.
+ */
+function checkStructure(file: string, text: string, lineAt: (i: number | undefined) => number | undefined): void {
+  let depth = 0;
+  let i = text.indexOf('<');
+  while (i >= 0 && i < text.length) {
+    if (text.startsWith('<!--', i)) i = text.indexOf('-->', i + 4);
+    else if (text.startsWith('<![CDATA[', i)) i = text.indexOf(']]>', i + 9);
+    else if (text.startsWith('<?', i)) i = text.indexOf('?>', i + 2);
+    else if (/^<!DOCTYPE/i.test(text.slice(i, i + 9))) {
+      throw new UserError('the file declares a DOCTYPE, which could define entities that read other files or expand without end; VOTables need none. Remove the <!DOCTYPE ...> declaration.', { file, line: lineAt(i) });
+    } else {
+      const closing = text[i + 1] === '/';
+      let j = i + 1;
+      let quote = '';
+      for (; j < text.length; j++) {
+        const c = text[j];
+        if (quote) {
+          if (c === quote) quote = '';
+        } else if (c === '"' || c === "'") quote = c;
+        else if (c === '>') break;
+      }
+      if (closing) depth--;
+      else if (text[j - 1] !== '/') {
+        depth++;
+        if (depth > MAX_XML_DEPTH) throw new UserError(`elements are nested more than ${MAX_XML_DEPTH} deep; a VOTable needs about 8. Check that this is a VOTable.`, { file, line: lineAt(i) });
+      }
+      i = j;
+    }
+    if (i < 0) return;
+    i = text.indexOf('<', i + 1);
+  }
+}
+
 export function readVotable(file: string, text: string): RawTable {
+  const lineAt = lineFinder(text);
+  checkStructure(file, text, lineAt);
   const valid = XMLValidator.validate(text);
   if (valid !== true) throw new UserError(`not well-formed XML: ${xmlProblem(valid.err.msg)}`, { file, line: valid.err.line });
   const parser = new XMLParser({
@@ -69,11 +113,11 @@ export function readVotable(file: string, text: string): RawTable {
     parseTagValue: false,
     parseAttributeValue: false,
     trimValues: true,
+    maxNestedTags: MAX_XML_DEPTH,
     captureMetaData: true,
     isArray: (name) => ARRAYS.has(name),
   });
   const doc = parser.parse(text) as Node;
-  const lineAt = lineFinder(text);
   const meta = XMLParser.getMetaDataSymbol() as unknown as string;
   const vot = doc.VOTABLE as Node | undefined;
   if (!vot) throw new UserError('not a VOTable: the root element is not VOTABLE.', { file });

@@ -40,6 +40,12 @@ export function readYamlList(file: string, text: string): { table: RawTable; map
     if (!cols.has(name)) cols.set(name, []);
     cols.get(name)![row] = v;
   };
+  // YAML reads .inf and 1e400 as infinity; the text readers refuse them as numbers, so this reader does too.
+  const finite = (path: PathKey[], field: string, v: unknown): void => {
+    if (typeof v === 'number' && (v === Infinity || v === -Infinity)) {
+      throw at(path, `expected a finite number, found ${v > 0 ? '' : '-'}infinity (.inf, or a number beyond 1.8e308, the largest double). Give the measured value.`, field);
+    }
+  };
   list.forEach((entry, r) => {
     const p = [...base, r];
     lines.push(y.lineOf(p) ?? 0);
@@ -49,6 +55,7 @@ export function readYamlList(file: string, text: string): { table: RawTable; map
       if (!(SIGHTLINE_KEYS as readonly string[]).includes(k)) throw at([...p, k], `unknown key '${k}'; a sightline has ${SIGHTLINE_KEYS.join(', ')}.`, k);
     }
     const scalar = (k: string, v: unknown): Cell => {
+      finite([...p, k], k, v);
       if (v === undefined || v === null || typeof v === 'number' || typeof v === 'string') return v as Cell;
       throw at([...p, k], `expected a number or text, found ${Array.isArray(v) ? 'a list' : typeof v}.`, k);
     };
@@ -67,6 +74,7 @@ export function readYamlList(file: string, text: string): { table: RawTable; map
       const cp = [...p, 'columns', sp];
       const n = `N(${sp})`;
       if (typeof v === 'number' || typeof v === 'string' || v === null) {
+        finite(cp, sp, v);
         put(n, r, v);
         sp0.value = n;
         continue;
@@ -78,6 +86,7 @@ export function readYamlList(file: string, text: string): { table: RawTable; map
       if (kinds.length !== 1) throw at(cp, `give exactly one of value, upper, lower or tau_int for '${sp}'.`, sp);
       const num = (k: string): Cell => {
         const x = o[k];
+        finite([...cp, k], `${sp}.${k}`, x);
         if (x === undefined || x === null || typeof x === 'number' || typeof x === 'string') return x as Cell;
         throw at([...cp, k], `expected a number.`, `${sp}.${k}`);
       };

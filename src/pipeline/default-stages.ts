@@ -6,7 +6,8 @@
  * skipped, and writes its results under the output folder so a later run can
  * reload them instead of recomputing.
  */
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { writeOutput as writeOutputFile } from '../config/write.ts';
 import { basename, dirname, extname, join, relative, sep } from 'node:path';
 import { isTableFile } from '../chem/network-table.ts';
 import { toCsv } from '../config/csv.ts';
@@ -54,7 +55,7 @@ const GRID_PROGRESS_INTERVAL_MS = 5000;
 function writeOutput(outDir: string, rel: string, text: string | Uint8Array): void {
   const file = join(outDir, rel);
   mkdirSync(dirname(file), { recursive: true });
-  writeFileSync(file, text);
+  writeOutputFile(file, text);
 }
 
 function readJson<T>(outDir: string, rel: string, stage: string): T {
@@ -205,7 +206,7 @@ const grid: StageImpl<PipelineData, 'grid'> = {
         workers: ctx.workers,
         sightlineAv,
         drainSignal: drain.signal,
-        onStart: (info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}`),
+        onStart: (info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}${info.note ? ` (${info.note})` : ''}`),
         onProgress: (p) => {
           const now = performance.now();
           if (p.done < p.total && now - lastLine < GRID_PROGRESS_INTERVAL_MS) return;

@@ -4,12 +4,12 @@
  * check found fits that moved. The stage implementations are a parameter
  * (the real ones by default) so the whole command can be tested with fakes.
  */
-import { isAbsolute, relative } from 'node:path';
+import { isAbsolute, join, relative } from 'node:path';
 import { UserError } from '../config/errors.ts';
 import { loadPipeline } from '../config/pipeline.ts';
 import { readFitResult, lockedFits, tableHashes } from './fit-lock.ts';
 import { buildLock, checkLockTarget, compareWithLock, formatComparison, readLock, writeLock, DEFAULT_AGE_TOLERANCE_DEX, DEFAULT_DENSITY_TOLERANCE_DEX } from './lock.ts';
-import { buildProvenance, writeProvenance } from './provenance.ts';
+import { buildProvenance, PROVENANCE_FILE, writeProvenance } from './provenance.ts';
 import { formatStageLine, outputFolder, runStages } from './runner.ts';
 import type { StageDataMap, StageName, StageSet } from './stages.ts';
 
@@ -61,7 +61,9 @@ export async function executeRun(o: ExecuteOptions): Promise<number> {
       for (const w of r.warnings) o.stdout.write(`         warning: ${w}\n`);
     },
   });
-  const provenanceFile = writeProvenance(outDir, buildProvenance(pipeline, run, o.commandLine));
+  // A run that found every stage up to date writes nothing: the provenance of the run that made the outputs stands.
+  const ranAny = run.stages.some((s) => s.status === 'ran');
+  const provenanceFile = ranAny ? writeProvenance(outDir, buildProvenance(pipeline, run, o.commandLine)) : join(outDir, PROVENANCE_FILE);
 
   let exitCode = 0;
   if (o.lock || lock) {

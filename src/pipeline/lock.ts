@@ -5,7 +5,8 @@
  * tolerance stated in the lock file (dex, for density and for age), so a
  * change of rates or observations that changes the paper's numbers is caught.
  */
-import { existsSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, statSync } from 'node:fs';
+import { writeOutput } from '../config/write.ts';
 import { dirname, resolve } from 'node:path';
 import { UserError } from '../config/errors.ts';
 import { decodeText } from '../config/yaml.ts';
@@ -63,7 +64,7 @@ export function buildLock(pipelineName: string, fits: readonly LockedFit[], tabl
 
 /** Written with a fixed key order and no timestamp, so the same run writes the same lock file. */
 export function writeLock(file: string, lock: LockFile): void {
-  writeFileSync(file, `${JSON.stringify(JSON.parse(canonicalJson(lock)), null, 2)}\n`);
+  writeOutput(file, `${JSON.stringify(JSON.parse(canonicalJson(lock)), null, 2)}\n`);
 }
 
 /** Refuse a --lock path that cannot be written (a folder, or in a folder that does not exist) before the run, not after it. */

@@ -3,7 +3,8 @@
  * exactly. Timestamps and absolute paths live here (and in the stage record),
  * never inside a table, so tables stay byte-identical between clones.
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
+import { writeOutput } from '../config/write.ts';
 import { join, relative } from 'node:path';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
@@ -47,6 +48,6 @@ export function buildProvenance(pipeline: Pipeline, run: RunResult, commandLine:
 export function writeProvenance(outDir: string, provenance: Provenance): string {
   mkdirSync(outDir, { recursive: true });
   const file = join(outDir, PROVENANCE_FILE);
-  writeFileSync(file, `${JSON.stringify(provenance, null, 2)}\n`);
+  writeOutput(file, `${JSON.stringify(provenance, null, 2)}\n`);
   return file;
 }

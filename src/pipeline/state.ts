@@ -5,7 +5,8 @@
  * a temporary file, then rename) so an interrupted run never leaves half a
  * record; a stage that fails loses its record and runs again next time.
  */
-import { mkdirSync, readFileSync, renameSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
+import { writeOutput } from '../config/write.ts';
 import { dirname, join } from 'node:path';
 import { UserError } from '../config/errors.ts';
 import { STAGE_NAMES, isStageName, type StageName } from './stages.ts';
@@ -64,7 +65,5 @@ export function writeState(outDir: string, state: StageState): void {
     const rec = state[name];
     if (rec) stages[name] = rec;
   }
-  const tmp = `${file}.${process.pid}.tmp`;
-  writeFileSync(tmp, `${JSON.stringify({ format: STATE_FORMAT, version: STATE_VERSION, stages }, null, 2)}\n`);
-  renameSync(tmp, file);
+  writeOutput(file, `${JSON.stringify({ format: STATE_FORMAT, version: STATE_VERSION, stages }, null, 2)}\n`);
 }

@@ -7,7 +7,8 @@
  * integers and IEEE-754 floats (§5). What it writes is what the maps of a
  * report need; it reads nothing.
  */
-import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
+import { writeOutput } from '../config/write.ts';
 import { dirname } from 'node:path';
 
 /** Bytes in a FITS logical record (FITS Standard 4.0 §3.1). */
@@ -302,9 +303,7 @@ export function encodeFits(hdus: readonly FitsHdu[], primaryHeader?: FitsHeaderI
 
 function writeAtomic(file: string, bytes: Uint8Array): void {
   mkdirSync(dirname(file), { recursive: true });
-  const tmp = `${file}.tmp-${process.pid}`;
-  writeFileSync(tmp, bytes);
-  renameSync(tmp, file);
+  writeOutput(file, bytes);
 }
 
 /** Write images: the first as the primary HDU, the others as IMAGE extensions. */

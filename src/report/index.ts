@@ -9,7 +9,8 @@
  *   tables/best_fits.csv, best_fits.json, best_fits.tex
  *   maps/<image>.fits (maps only)
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
+import { writeOutput } from '../config/write.ts';
 import { relative, resolve } from 'node:path';
 import { cautionsFor } from './cautions.ts';
 import { buildFigures } from './figures/index.ts';
@@ -37,7 +38,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
   mkdirSync(tablesDir, { recursive: true });
   const written: string[] = [];
   const write = (file: string, data: string | Buffer): string => {
-    writeFileSync(file, data);
+    writeOutput(file, data);
     written.push(file);
     return file;
   };

@@ -40,6 +40,19 @@ describe('YAML loading with located errors', () => {
     expect(caught(() => loadYamlFile('/nonexistent/p.yaml', 'pipeline file')).message).toContain('/nonexistent/p.yaml: pipeline file not found');
   });
 
+  it('an alias bomb is refused as a located error naming the first alias, before it expands', () => {
+    const bomb = ['a: &a [x, x, x, x, x, x, x, x, x]', ...'bcdef'.split('').map((k, i) => `${k}: &${k} [${Array(9).fill(`*${'abcde'[i]}`).join(', ')}]`), ''].join('\n');
+    const e = caught(() => parseYamlText(bomb, 'bomb.yaml'));
+    expect(e.message).toMatch(/^bomb\.yaml:2: the aliases \(\*name\) of this file expand to more than 1000 copies/);
+  });
+
+  it('nesting deeper than the limit is refused with the line where it passes the limit', () => {
+    const deep = Array.from({ length: 150 }, (_, i) => `${' '.repeat(i)}a:`).join('\n') + ' 1\n';
+    expect(caught(() => parseYamlText(deep, 'deep.yaml')).message).toMatch(/^deep\.yaml:101: values are nested more than 100 deep/);
+    const flow = `a: ${'['.repeat(10_000)}${']'.repeat(10_000)}\n`;
+    expect(caught(() => parseYamlText(flow, 'flow.yaml')).message).toMatch(/^flow\.yaml:1: values are nested more than 100 deep/);
+  });
+
   it('lists every problem of a document, not only the first', () => {
     const loaded = parseYamlText('name: 3\nitems:\n  - value: x\n', 'f.yaml');
     const e = caught(() => validate(schema, loaded));

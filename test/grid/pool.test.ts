@@ -1,8 +1,10 @@
 /** The pool and runGrid with a fake model in real worker threads: failures, crashes, stopping, resuming. */
 import { spawnSync } from 'node:child_process';
 import { existsSync, writeFileSync } from 'node:fs';
-import { hostname } from 'node:os';
-import { afterEach, describe, expect, it } from 'vitest';
+import { availableParallelism, hostname } from 'node:os';
+import Database from 'better-sqlite3';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { UserError } from '../../src/config/errors.ts';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { mainStoreFile, planGrid } from '../../src/grid/plan.ts';
 import { runGrid } from '../../src/grid/run.ts';
@@ -92,6 +94,46 @@ describe('grid runs on a worker pool (fake model)', () => {
     expect(retried).toMatchObject({ computed: 2, ok: 2 });
     const plan = planGrid(pipeline);
     expect(gridStatus(mainStoreFile(plan), plan.points)).toMatchObject({ done: 18, failed: 0, missing: 0, stale: 0 });
+  });
+
+  it('a full disk at a batch flush is a clear error naming the store; the lock is released and a rerun finishes the grid', async () => {
+    // 40 ms a model: 18 models span several 250 ms batches.
+    process.env.FAKE_MODEL_DELAY_MS = '40';
+    const pipeline = loadPipeline(writePipeline(scratch(), GRID));
+    const storeFile = mainStoreFile(planGrid(pipeline));
+    const realWrite = ModelStore.prototype.write;
+    let writes = 0;
+    // The first batch is committed; the disk is full from the second on (better-sqlite3 raises SQLITE_FULL).
+    const spy = vi.spyOn(ModelStore.prototype, 'write').mockImplementation(function (this: ModelStore, ...args: Parameters<ModelStore['write']>) {
+      if (writes++ === 0) return realWrite.apply(this, args);
+      throw new Database.SqliteError('database or disk is full', 'SQLITE_FULL');
+    });
+    let caught: unknown;
+    try {
+      await runGrid(pipeline, { workers: 1, workerUrl: FAKE_WORKER });
+    } catch (e) {
+      caught = e;
+    } finally {
+      spy.mockRestore();
+    }
+    expect(caught).toBeInstanceOf(UserError);
+    expect((caught as UserError).message).toBe(`${storeFile}: cannot write: the disk is full. Free some space, or choose an output folder on another disk. The models written before this are kept; run the grid again to compute the rest.`);
+    expect(existsSync(`${storeFile}.running`)).toBe(false);
+    const kept = gridStatus(storeFile, planGrid(pipeline).points).done;
+    expect(kept).toBeGreaterThan(0);
+    expect(kept).toBeLessThan(18);
+    const rerun = await runGrid(pipeline, { workers: 1, workerUrl: FAKE_WORKER });
+    expect(rerun).toMatchObject({ upToDate: kept, computed: 18 - kept, remaining: 0 });
+  });
+
+  it('--workers beyond the cores is capped at the cores, with a note saying so', async () => {
+    const pipeline = loadPipeline(writePipeline(scratch(), GRID));
+    const starts: { workers: number; note?: string }[] = [];
+    const r = await runGrid(pipeline, { workers: 1000, workerUrl: FAKE_WORKER, onStart: (i) => starts.push(i) });
+    expect(r.computed).toBe(18);
+    const cores = availableParallelism();
+    expect(starts[0].workers).toBe(Math.min(cores, 18));
+    expect(starts[0].note).toBe(`--workers 1000 is more than the ${cores} cores this process may use; running ${cores} at most`);
   });
 
   it('refuses a second run on the same store, and takes over a lock left by a dead process', async () => {

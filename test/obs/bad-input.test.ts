@@ -139,6 +139,28 @@ describe('bad observation input', () => {
     expect(e.message).toMatch(/unit\.xml, field 'N\(CO\(s\)\)': column 'N\(CO\(s\)\)' has unit 'mag', but a column density needs cm-2/);
   });
 
+  it('a VOTable declaring entities (an external one, or any) is refused with the line of its DOCTYPE; nothing is read', () => {
+    const body = '<VOTABLE version="1.4"><RESOURCE><TABLE><FIELD name="id" datatype="char" arraysize="*"/><DATA><TABLEDATA><TR><TD>&xxe;</TD></TR></TABLEDATA></DATA></TABLE></RESOURCE></VOTABLE>\n';
+    const external = `<?xml version="1.0"?>\n<!DOCTYPE VOTABLE [\n<!ENTITY xxe SYSTEM "file:///etc/hostname">\n]>\n${body}`;
+    expect(error(() => load('external.vot', external)).message).toMatch(/\/external\.vot:2: the file declares a DOCTYPE, .*VOTables need none/);
+    const internal = `<?xml version="1.0"?>\n<!DOCTYPE VOTABLE [<!ENTITY xxe "lots">]>\n${body}`;
+    expect(error(() => load('internal.vot', internal)).message).toMatch(/\/internal\.vot:2: the file declares a DOCTYPE/);
+  });
+
+  it('a VOTable nested 100,000 deep is refused with the line where it passes the limit', () => {
+    const deep = `<?xml version="1.0"?>\n<VOTABLE>\n${'<GROUP>'.repeat(100_000)}${'</GROUP>'.repeat(100_000)}\n</VOTABLE>\n`;
+    expect(error(() => load('deep.vot', deep)).message).toMatch(/\/deep\.vot:3: elements are nested more than 100 deep/);
+  });
+
+  it('a YAML sightline list with 1e400 or .inf is refused like the CSV reader refuses them, naming the line', () => {
+    const list = (v: string) => `sightlines:\n  - id: a\n    av: 5\n    columns:\n      CO(s): { value: ${v}, error: 1e16 }\n`;
+    expect(error(() => load('huge.yaml', list('1e400'))).message).toMatch(/huge\.yaml:5, field 'CO\(s\)\.value': expected a finite number, found infinity/);
+    expect(error(() => load('inf.yaml', list('.inf'))).message).toMatch(/inf\.yaml:5, field 'CO\(s\)\.value': expected a finite number, found infinity/);
+    expect(error(() => load('av-inf.yaml', 'sightlines:\n  - id: a\n    av: -.inf\n')).message).toMatch(/av-inf\.yaml:3, field 'av': expected a finite number, found -infinity/);
+    expect(error(() => load('bare-inf.yaml', 'sightlines:\n  - id: a\n    av: 5\n    columns:\n      CO(s): .inf\n')).message).toMatch(/bare-inf\.yaml:5, field 'CO\(s\)': expected a finite number, found infinity/);
+    expect(error(() => load('inf.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,1e400,1e16\n')).message).toMatch(/inf\.csv:2, field 'N\(CO\(s\)\)': cannot read '1e400'/);
+  });
+
   it('a CSV cell that is not a number, a ragged row, a mapping naming a missing column', () => {
     expect(error(() => load('text.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,lots,1e16\n')).message).toMatch(/text\.csv:2, field 'N\(CO\(s\)\)': cannot read 'lots' as a column density/);
     expect(error(() => load('ragged.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,1e17\n')).message).toMatch(/ragged\.csv:2: this row has 3 cells but the header names 4 columns/);

@@ -25,6 +25,10 @@ describe('cells', () => {
     [null, { kind: 'blank' }],
     [NaN, { kind: 'blank' }],
     [2.5, { kind: 'detection', value: 2.5 }],
+    // An infinite number from a binary format (FITS, or YAML's .inf) is refused as the text '1e400' is.
+    [Infinity, { kind: 'bad', text: 'Infinity' }],
+    [-Infinity, { kind: 'bad', text: '-Infinity' }],
+    ['1e400', { kind: 'bad', text: '1e400' }],
     ['1e17 cm-2', { kind: 'bad', text: '1e17 cm-2' }],
     ['0x10', { kind: 'bad', text: '0x10' }],
     ['<', { kind: 'bad', text: '<' }],

@@ -1,9 +1,11 @@
-import { mkdtempSync, readFileSync, rmSync, writeFileSync, mkdirSync, existsSync } from 'node:fs';
+import { mkdtempSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync, mkdirSync, existsSync } from 'node:fs';
+import { PassThrough } from 'node:stream';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { join, relative } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { UserError } from '../../src/config/errors.ts';
 import { loadPipeline } from '../../src/config/pipeline.ts';
+import { executeRun } from '../../src/pipeline/execute.ts';
 import { runStages } from '../../src/pipeline/runner.ts';
 import { parseStageName, type StageName, type StageSet } from '../../src/pipeline/stages.ts';
 import { statePath } from '../../src/pipeline/state.ts';
@@ -88,6 +90,22 @@ beforeEach(() => {
 });
 afterEach(() => rmSync(dir, { recursive: true, force: true }));
 
+type ExecuteStages = NonNullable<Parameters<typeof executeRun>[0]['stages']>;
+
+/** Every file under a folder with its modification time and bytes. */
+function snapshot(root: string): Map<string, string> {
+  const out = new Map<string, string>();
+  const walk = (d: string) => {
+    for (const e of readdirSync(d, { withFileTypes: true })) {
+      const p = join(d, e.name);
+      if (e.isDirectory()) walk(p);
+      else out.set(relative(root, p), `${statSync(p).mtimeMs} ${readFileSync(p, 'base64')}`);
+    }
+  };
+  walk(root);
+  return out;
+}
+
 const statuses = (r: Awaited<ReturnType<typeof runStages>>) => r.stages.map((s) => `${s.name}:${s.status}`);
 
 describe('the stage runner', () => {
@@ -109,6 +127,17 @@ describe('the stage runner', () => {
     expect(calls).toEqual([]);
     expect(statuses(r)).toEqual(['observe:skipped', 'grid:skipped', 'fit:skipped', 'report:skipped']);
     expect(r.stages[2].summary).toBe('2 rows x 4 models, sigma 0.3');
+  });
+
+  it('a run with nothing to do writes nothing: the output folder is left exactly as it was (a read-only output that is up to date can be run)', async () => {
+    const sink = new PassThrough();
+    const run = () => executeRun({ pipelineFile: join(dir, 'p.yaml'), commandLine: ['run', 'p.yaml'], stdout: sink, stderr: sink, stages: fakeStages([]) as unknown as ExecuteStages });
+    expect(await run()).toBe(0);
+    const out = join(dir, 'out');
+    const before = snapshot(out);
+    expect(before.has('provenance.json')).toBe(true);
+    expect(await run()).toBe(0);
+    expect(snapshot(out)).toEqual(before);
   });
 
   it('reruns only fit and report after a change of a fit setting, reloading the skipped stages it reads', async () => {

@@ -4,7 +4,8 @@
  * and JSON under OUT/fit/ (and FITS images for a map), and print the best
  * fits with their 68.3% intervals, every warning, and the model cautions.
  */
-import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync } from 'node:fs';
+import { writeOutput } from '../../config/write.ts';
 import { dirname, join, relative } from 'node:path';
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
@@ -95,7 +96,7 @@ function requireSections(pipeline: Pipeline) {
 function writeText(outDir: string, rel: string, data: string | Uint8Array): void {
   const file = join(outDir, rel);
   mkdirSync(dirname(file), { recursive: true });
-  writeFileSync(file, data);
+  writeOutput(file, data);
 }
 
 export interface FitCommandResult {

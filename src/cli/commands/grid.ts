@@ -102,7 +102,7 @@ export function register(program: Command, ctx: CommandContext): void {
           abortSignal: abort.signal,
           onStart: (i) =>
             progress.message(
-              `grid${shard ? ` shard ${shardLabel(shard)}` : ''}: ${i.share} models, ${i.upToDate} already in ${i.storeFile}, ${i.todo} to compute${i.stale > 0 ? ` (${i.stale} stale)` : ''}${i.todo > 0 ? ` on ${i.workers} worker${i.workers > 1 ? 's' : ''}` : ''}`,
+              `grid${shard ? ` shard ${shardLabel(shard)}` : ''}: ${i.share} models, ${i.upToDate} already in ${i.storeFile}, ${i.todo} to compute${i.stale > 0 ? ` (${i.stale} stale)` : ''}${i.todo > 0 ? ` on ${i.workers} worker${i.workers > 1 ? 's' : ''}` : ''}${i.note ? ` (${i.note})` : ''}`,
             ),
           onProgress: (p) => progress.update(p),
         });

@@ -5,7 +5,8 @@
  * (CSV, JSON), a figure of chosen species (SVG and its Vega-Lite spec), and a
  * summary on the terminal.
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
+import { writeOutput as writeOutputFile } from '../../config/write.ts';
 import { join, resolve } from 'node:path';
 import type { Command } from 'commander';
 import type { TopLevelSpec } from 'vega-lite';
@@ -226,8 +227,9 @@ function chooseSpecies(list: string | undefined, names: string[]): string[] {
 
 function writeOutput(path: string, text: string): void {
   try {
-    writeFileSync(path, text);
+    writeOutputFile(path, text);
   } catch (e) {
+    if (e instanceof UserError) throw e;
     throw new UserError(`cannot write output: ${(e as Error).message}. Check that the folder exists and is writable.`, { file: path });
   }
 }

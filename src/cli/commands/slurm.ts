@@ -3,7 +3,8 @@
  * write an sbatch job-array script that runs one grid shard per array task
  * (OUT/slurm/grid-array.sh), and say how to submit and merge it.
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
+import { writeOutput } from '../../config/write.ts';
 import { join, resolve } from 'node:path';
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
@@ -44,7 +45,7 @@ export function register(program: Command, ctx: CommandContext): void {
       const slurmDir = join(outDir, 'slurm');
       mkdirSync(slurmDir, { recursive: true });
       const scriptFile = join(slurmDir, 'grid-array.sh');
-      writeFileSync(scriptFile, slurmScript({ pipelineFile: pipeline.file, outDir, name: pipeline.config.name, shards: opts.shards, partition: opts.partition, time: opts.time, cpus }), { mode: 0o755 });
+      writeOutput(scriptFile, slurmScript({ pipelineFile: pipeline.file, outDir, name: pipeline.config.name, shards: opts.shards, partition: opts.partition, time: opts.time, cpus }), { mode: 0o755 });
       const perShard = Math.ceil(plan.points.length / opts.shards);
       ctx.stdout.write(
         [
