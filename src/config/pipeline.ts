@@ -64,11 +64,12 @@ export const pipelineSchema = z
     conditions: conditionsSection.default({}),
     /** Grid points to leave out (see sections/conditions.ts). */
     exclude: excludeSection.default([]),
-    grain: grainSection.default({ tunnelling: false, diffusion_competition: false, h2_formation: 'surface' }),
-    photochemistry: photochemistrySection.default({ h2_self_shielding: true }),
+    // prefault: an absent section is parsed as {}, so each default is written once, in its section.
+    grain: grainSection.prefault({}),
+    photochemistry: photochemistrySection.prefault({}),
     initial: initialSection.default('low-metal'),
-    times: timesSection.default({ start_yr: 1e3, end_yr: 1e7, count: 41 }),
-    solver: solverSection.default({ rtol: 1e-6, atol: 1e-25, max_steps: 50000 }),
+    times: timesSection.prefault({}),
+    solver: solverSection.prefault({}),
     fit: fitSection.optional(),
     report: reportSection.optional(),
   })

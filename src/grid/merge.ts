@@ -108,7 +108,7 @@ export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStor
     store.setGrid({
       gridHash: plan.gridHash,
       species: plan.species,
-      timesYr: plan.shared.timesYr,
+      timesYr: plan.shared.options.timesYr,
       points: plan.points,
       shard: '',
       toolVersion: plan.shared.toolVersion,

@@ -1,7 +1,7 @@
 /** A model worker thread: loads the network once, then runs the grid's models with runModel. */
 import { UserError } from '../config/errors.ts';
 import { loadNetwork } from '../chem/network.ts';
-import { runModel } from '../model/run.ts';
+import { modelInput, runModel } from '../model/run.ts';
 import { serveModelTasks } from './worker-protocol.ts';
 
 serveModelTasks((init) => {
@@ -11,16 +11,6 @@ serveModelTasks((init) => {
   }
   return {
     species: network.species.map((s) => s.name),
-    run: (conditions) =>
-      runModel({
-        network,
-        conditions,
-        grain: init.grain,
-        initial: init.initial,
-        timesYr: init.timesYr,
-        solver: init.solver,
-        massActionOnly: init.massActionOnly,
-        selfShielding: init.selfShielding,
-      }),
+    run: (conditions) => runModel(modelInput({ network, options: init.options }, conditions)),
   };
 });

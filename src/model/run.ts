@@ -14,6 +14,7 @@ import { YEAR_SECONDS } from '../chem/constants.ts';
 
 export { outputTimesYr } from './times.ts';
 export { loadInitialComposition } from './initial.ts';
+export { buildModelSetup, modelInput, type ModelSetup } from './setup.ts';
 
 /** The initial state vector; every named species must be in the network. */
 export function initialState(input: Pick<ModelInput, 'network' | 'initial'>): Float64Array {
@@ -40,7 +41,7 @@ function checkTimes(timesYr: Float64Array): void {
 export function runModel(input: ModelInput): ModelResult {
   const started = performance.now();
   checkTimes(input.timesYr);
-  const system = compile(input.network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
+  const system = compile(input.network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding });
   const y0 = initialState(input);
   const n = system.n;
   const count = input.timesYr.length;

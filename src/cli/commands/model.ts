@@ -54,35 +54,23 @@ export function register(program: Command, ctx: CommandContext): void {
 
 async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandContext): Promise<void> {
   const { loadPipeline } = await import('../../config/pipeline.ts');
-  const { loadNetwork } = await import('../../chem/network.ts');
   const { compile } = await import('../../chem/system.ts');
   const { YEAR_SECONDS } = await import('../../chem/constants.ts');
-  const { loadInitialComposition, outputTimesYr, runModel, initialState } = await import('../../model/run.ts');
+  const { buildModelSetup, modelInput, runModel, initialState } = await import('../../model/run.ts');
 
   const pipeline = loadPipeline(file);
   const cfg = pipeline.config;
   const conditions = resolveConditions(pipeline, opts.set ?? []);
-  const network = loadNetwork(pipeline.resolvePath(cfg.network));
-  const initialNotes: string[] = [];
-  const initial = loadInitialComposition(cfg.initial, pipeline.dir, network, initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
-  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
-  const grain = { tunnelling: cfg.grain.tunnelling, diffusionCompetition: cfg.grain.diffusion_competition, h2Formation: cfg.grain.h2_formation };
+  const setup = buildModelSetup(pipeline, { massActionOnly: opts.massActionOnly, noSelfShielding: opts.selfShielding === false });
+  const { network } = setup;
+  const initialNotes = setup.notes;
+  const input = modelInput(setup, conditions);
   const figureSpecies = chooseSpecies(opts.species, network.species.map((s) => s.name));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
 
-  const input = {
-    network,
-    conditions,
-    grain,
-    initial,
-    timesYr,
-    solver: { rtol: cfg.solver.rtol, atol: cfg.solver.atol, maxSteps: cfg.solver.max_steps },
-    massActionOnly: opts.massActionOnly ?? false,
-    selfShielding: (opts.selfShielding ?? true) && cfg.photochemistry.h2_self_shielding,
-  };
   if (opts.emitSystem) {
-    const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
-    const emitted = system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
+    const system = compile(network, conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding });
+    const emitted = system.emitSystem(initialState(input), input.timesYr.map((t) => t * YEAR_SECONDS));
     writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n');
   }
   const result = runModel(input);
@@ -99,7 +87,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     conditions,
     grain: cfg.grain,
     mass_action_only: input.massActionOnly,
-    self_shielding: input.selfShielding,
+    self_shielding: input.photochemistry?.h2SelfShielding,
     status: result.status,
     failure: result.failure ?? null,
     species: result.species,
@@ -107,7 +95,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     abundances: Object.fromEntries(result.species.map((s, i) => [s, Array.from({ length: reached }, (_, k) => result.abundances[k * result.species.length + i])])),
     conservation: result.conservation,
     solver: result.stats,
-    initial: Object.fromEntries(Object.entries(initial)),
+    initial: Object.fromEntries(Object.entries(input.initial)),
     notes: [...initialNotes, ...result.clampNotes, ...(result.skippedNotes ?? [])],
     wall_ms: result.wallMs,
   };
