@@ -3,7 +3,6 @@
  * how many models are done, failed (by reason), missing, and stale (stored
  * with a different content hash: an input changed since).
  */
-import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
 import type { PlannedPoint } from './plan.ts';
 import { ModelStore } from './store.ts';
@@ -56,26 +55,3 @@ export function gridStatus(storeFile: string, points: readonly PlannedPoint[]): 
   }
   return status;
 }
-
-/**
- * A hash of what a store holds for its current grid: every point's id, model
- * hash and status, and every stored abundance value, in grid order. Two
- * stores with the same results hash alike whatever order they were written in.
- */
-export function storeContentHash(storeFile: string): string {
-  const store = ModelStore.open(storeFile, { readonly: true });
-  try {
-    const h = createHash('sha256').update(store.meta()?.gridHash ?? '');
-    const rows = store.db
-      .prepare(`SELECT g.id, m.hash, m.status, m.failure, m.abundances FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx`)
-      .raw(true);
-    for (const r of rows.iterate() as Iterable<[string, string | null, string | null, string | null, Buffer | null]>) {
-      h.update(`\n${r[0]} ${r[1] ?? '-'} ${r[2] ?? 'missing'} ${r[3] ?? ''}\n`);
-      if (r[4]) h.update(r[4]);
-    }
-    return h.digest('hex');
-  } finally {
-    store.close();
-  }
-}
-

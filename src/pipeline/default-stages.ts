@@ -17,7 +17,7 @@ import { mainStoreFile } from '../grid/plan.ts';
 import { PRESET_DIR } from '../model/initial.ts';
 import { DEFAULT_BAND_TABLE, deriveQuantities, loadObservations, sidecarPath, type ObservationSet, type ObservedQuantity } from '../obs/index.ts';
 import type { ReportProvenance } from '../report/types.ts';
-import { hashFile, hashValue } from './hash.ts';
+import { hashFile } from './hash.ts';
 import { heldParameters } from './held.ts';
 import type { StageContext, StageImpl, StageSet } from './stages.ts';
 import { loadTracks } from './tracks.ts';
@@ -31,6 +31,8 @@ export interface GridData {
 }
 export interface FitData {
   result: FitStageResult;
+  profiles?: ProfilesJson;
+  map?: MapFitJson;
 }
 export interface ReportData {
   html: string;
@@ -236,18 +238,10 @@ const grid: StageImpl<PipelineData, 'grid'> = {
     }
   },
   load: async ({ outDir }) => ({ storeFile: mainStoreFile({ storeDir: join(outDir, STORE_DIR) }) }),
-  // The bytes of an SQLite file depend on write order; the store's content is
-  // its grid and, per point, the model's content hash and status (models are
-  // deterministic in their inputs, which the content hash covers).
+  // The bytes of an SQLite file depend on write order: the store hashes its own content.
   outputHash: async ({ outDir }) => {
-    const { ModelStore } = await import('../grid/store.ts');
-    const store = ModelStore.open(mainStoreFile({ storeDir: join(outDir, STORE_DIR) }), { readonly: true });
-    try {
-      const rows = store.db.prepare('SELECT g.id, g.hash, m.status FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx').raw(true).all();
-      return hashValue({ grid: store.meta()?.gridHash, models: rows });
-    } finally {
-      store.close();
-    }
+    const { storeContentHash } = await import('../grid/store.ts');
+    return storeContentHash(mainStoreFile({ storeDir: join(outDir, STORE_DIR) }));
   },
 };
 
@@ -264,6 +258,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
   run: async (ctx) => {
     const { pipeline, outDir } = ctx;
     const { runFitStage } = await import('../fit/stage.ts');
+    const { mapJson } = await import('../fit/stage-files.ts');
     const { loadCandidates } = await import('../grid/candidates.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
@@ -286,30 +281,28 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       writeOutput(outDir, rel, text);
       outputs.push(rel);
     }
-    if (out.map && observations.map) {
-      const { writeFitsImages } = await import('../report/fits.ts');
-      for (const name of MAP_IMAGE_NAMES) {
-        const rel = `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`;
-        writeFitsImages(join(outDir, rel), [{ name: name.toUpperCase(), data: out.map.images[name], nx: out.map.nx, ny: out.map.ny, header: mapHeader(observations) }]);
-        outputs.push(rel);
-      }
+    const map = out.map ? mapJson(out.map) : undefined;
+    const warnings = [...out.result.warnings];
+    if (map) {
+      const { writeMapImages } = await import('../report/maps.ts');
+      const files = writeMapImages(map, observations.map, warnings, MAP_IMAGE_NAMES, (name) => join(outDir, `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`));
+      outputs.push(...files.map((f) => relOut(outDir, f)));
     }
     const poor = out.result.fits.filter((f) => f.warnings.length > 0).length;
     const n = out.map ? `${out.map.fittedPixels} pixels` : `${out.result.fits.length} sightlines`;
     return {
       summary: `${n} fitted against ${out.result.nCandidates} candidates${poor ? `, ${poor} with warnings` : ''}`,
       outputs: outputs.sort(),
-      data: { result: out.result },
-      warnings: out.result.warnings,
+      data: { result: out.result, profiles: out.profiles, map },
+      warnings,
     };
   },
-  load: async ({ outDir }) => ({ result: readJson<FitStageResult>(outDir, FIT_OUTPUT_FILES.fitJson, 'fit') }),
+  load: async ({ outDir }) => ({
+    result: readJson<FitStageResult>(outDir, FIT_OUTPUT_FILES.fitJson, 'fit'),
+    profiles: existsSync(join(outDir, FIT_OUTPUT_FILES.profilesJson)) ? readJson<ProfilesJson>(outDir, FIT_OUTPUT_FILES.profilesJson, 'fit') : undefined,
+    map: existsSync(join(outDir, FIT_OUTPUT_FILES.mapJson)) ? readJson<MapFitJson>(outDir, FIT_OUTPUT_FILES.mapJson, 'fit') : undefined,
+  }),
 };
-
-/** Header cards of a map result image: the observations' WCS, carried over. */
-function mapHeader(observations: ObservationSet): Record<string, string | number | boolean> {
-  return { ...(observations.map?.wcs ?? {}) };
-}
 
 const report: StageImpl<PipelineData, 'report'> = {
   inputs: ({ pipeline }) => ({ config: { name: pipeline.config.name, report: pipeline.config.report }, files: {}, after: ['observe', 'grid', 'fit'] }),
@@ -319,18 +312,16 @@ const report: StageImpl<PipelineData, 'report'> = {
     const { reportSection } = await import('../config/sections/report.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
-    const { result } = await ctx.upstream('fit');
+    const { result, profiles, map } = await ctx.upstream('fit');
     const config = pipeline.config.report ?? reportSection.parse({});
-    const profilesFile = join(outDir, FIT_OUTPUT_FILES.profilesJson);
-    const mapFile = join(outDir, FIT_OUTPUT_FILES.mapJson);
     const files = await writeReport(
       {
         title: config.title ?? pipeline.config.name,
         config,
         configFile: pipeline.file,
         fit: result,
-        profiles: existsSync(profilesFile) ? readJson<ProfilesJson>(outDir, FIT_OUTPUT_FILES.profilesJson, 'fit') : undefined,
-        map: existsSync(mapFile) ? readJson<MapFitJson>(outDir, FIT_OUTPUT_FILES.mapJson, 'fit') : undefined,
+        profiles,
+        map,
         observations,
         quantities,
         tracks: loadTracks(storeFile, result, config.runner_up_tracks),

@@ -13,7 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { loadCandidates } from '../../src/grid/candidates.ts';
 import { runGrid } from '../../src/grid/run.ts';
-import { storeContentHash } from '../../src/grid/status.ts';
+import { storeContentHash } from '../../src/grid/store.ts';
 import { BIN, scratch, writePipeline } from '../grid/helpers.ts';
 
 const SCRIPT = fileURLToPath(new URL('../../scripts/slurm-local.sh', import.meta.url));
