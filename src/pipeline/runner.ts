@@ -57,6 +57,8 @@ export interface RunResult<M extends StageDataMap = StageDataMap> {
   stages: StageReport[];
   /** Data of the stages that ran in this call. */
   data: { [K in StageName]?: M[K] };
+  /** Data of any stage: from this call, or reloaded from the outputs it left. */
+  dataOf<K extends StageName>(name: K): Promise<M[K]>;
   state: StageState;
   startedAt: string;
   finishedAt: string;
@@ -178,7 +180,7 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
     reports.push(report);
     options.onStage?.(report);
   }
-  return { outDir, stages: reports, data: ran, state, startedAt, finishedAt: new Date().toISOString() };
+  return { outDir, stages: reports, data: ran, dataOf: ctx.upstream, state, startedAt, finishedAt: new Date().toISOString() };
 }
 
 /** What to run to give a stage results. */

@@ -8,6 +8,7 @@ import { cpSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } 
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
+import { readState } from '../../src/pipeline/state.ts';
 import { expectNoStack, runCli } from '../support/cli.ts';
 
 const FIXTURES = join(import.meta.dirname, '../pipeline/fixtures');
@@ -24,7 +25,7 @@ afterEach(() => {
   for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
 });
 
-const stageState = (dir: string) => JSON.parse(readFileSync(join(dir, 'out', 'stages.json'), 'utf8')) as Record<string, { inputHash: string }>;
+const stageState = (dir: string) => readState(join(dir, 'out'));
 
 /** The project with sightline T-2's A_V left blank; with `ratiosOnly`, the fit asks for ratios alone, which need no A_V. */
 function withoutAv(ratiosOnly: boolean): string {
