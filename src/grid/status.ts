@@ -4,7 +4,9 @@
  * with a different content hash: an input changed since).
  */
 import { existsSync } from 'node:fs';
-import type { PlannedPoint } from './plan.ts';
+import { UserError } from '../config/errors.ts';
+import type { GridPlan, PlannedPoint } from './plan.ts';
+import { runLockHolder } from './run-lock.ts';
 import { ModelStore } from './store.ts';
 
 export interface GridStatus {
@@ -54,4 +56,34 @@ export function gridStatus(storeFile: string, points: readonly PlannedPoint[]): 
     store.close();
   }
   return status;
+}
+
+/**
+ * Refuse a store that does not hold exactly the finished grid of the plan:
+ * a grid still computing into it, a store of another grid (an input changed
+ * since), or models missing or stale. Failed models count as finished (the
+ * fit leaves them out and says so). The message says what to run.
+ */
+export function checkFinishedGrid(storeFile: string, plan: GridPlan): void {
+  const run = `Run \`hoarfrost grid ${plan.pipeline.file}\` (or \`hoarfrost run ${plan.pipeline.file}\`) first: it computes only what is missing or stale.`;
+  const holder = runLockHolder(storeFile);
+  if (holder) {
+    throw new UserError(`a grid (process ${holder.pid}, started ${holder.started}${holder.host ? ` on ${holder.host}` : ''}) is computing into the model store, so its grid is not finished. Wait for it to finish, then run again.`, { file: storeFile });
+  }
+  if (!existsSync(storeFile)) throw new UserError(`no model store here. ${run}`, { file: storeFile });
+  const store = ModelStore.open(storeFile, { readonly: true });
+  let gridHash: string | undefined;
+  try {
+    gridHash = store.meta()?.gridHash;
+  } finally {
+    store.close();
+  }
+  if (gridHash !== plan.gridHash) {
+    throw new UserError(`the model store holds another grid than the pipeline plans (its conditions, network, initial composition, times, solver settings or tool version changed since). ${run}`, { file: storeFile });
+  }
+  const s = gridStatus(storeFile, plan.points);
+  if (s.missing + s.stale > 0) {
+    const stale = s.stale > 0 ? ` (${s.stale} of them computed with other inputs)` : '';
+    throw new UserError(`the model store lacks ${s.missing + s.stale} of the ${s.points} models the pipeline plans${stale}. ${run}`, { file: storeFile });
+  }
 }

@@ -311,6 +311,12 @@ function gridStage(options: GridStageOptions): StageImpl<PipelineData, 'grid'> {
   };
 }
 
+/** The fit and the report use exactly the finished grid the pipeline plans, or refuse saying what to run. */
+async function checkStore(ctx: StageContext<PipelineData>, storeFile: string): Promise<void> {
+  const { checkFinishedGrid } = await import('../grid/status.ts');
+  checkFinishedGrid(storeFile, await pipelineGridPlan(ctx.pipeline, async () => (await ctx.upstream('observe')).observations));
+}
+
 function needsSightlineTie(pipeline: Pipeline): boolean {
   return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && 'tie' in a && a.tie === 'sightlines');
 }
@@ -328,6 +334,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     const { loadCandidates } = await import('../grid/candidates.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
+    await checkStore(ctx, storeFile);
     const species = new Set<string>();
     for (const q of quantities) {
       species.add(q.numerator);
@@ -378,6 +385,7 @@ const report: StageImpl<PipelineData, 'report'> = {
     const { reportSection } = await import('../config/sections/report.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
+    await checkStore(ctx, storeFile);
     const { result, profiles, map } = await ctx.upstream('fit');
     const config = pipeline.config.report ?? reportSection.parse({});
     const files = await writeReport(

@@ -5,8 +5,9 @@
  * the grid stage, which finds it complete, so no model has to run.
  */
 import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { hostname, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
+import Database from 'better-sqlite3';
 import { describe, expect, it } from 'vitest';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { planGrid } from '../../src/grid/plan.ts';
@@ -15,7 +16,7 @@ import { defaultStages } from '../../src/pipeline/default-stages.ts';
 import { runStages } from '../../src/pipeline/runner.ts';
 import { readState } from '../../src/pipeline/state.ts';
 import { analyticAbundances, logSpaced } from '../fit/synthetic.ts';
-import { runCli } from '../support/cli.ts';
+import { expectNoStack, runCli } from '../support/cli.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const NETWORK = join(ROOT, 'config', 'networks', 'dark-cloud.yaml');
@@ -128,4 +129,42 @@ describe('hoarfrost fit', () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(/the fit stage needs the results of the grid stage, and there are none in .*hoarfrost grid PIPELINE/);
   });
+
+  // Issue 16: the fit and the report use exactly the finished grid the pipeline plans, or say what to run.
+  const storeOf = (dir: string) => join(dir, 'out', 'store', 'models.sqlite');
+
+  it('refuses a store that lacks models of the grid, and so does the report', async () => {
+    const dir = await project();
+    expect(hoarfrost(dir).code).toBe(0);
+    const db = new Database(storeOf(dir));
+    db.prepare('DELETE FROM models WHERE id IN (SELECT id FROM models LIMIT 2)').run();
+    db.close();
+    // The report first: a refused fit leaves no fit results for the report to be refused on.
+    for (const verb of ['report', 'fit']) {
+      const r = runCli([verb, join(dir, 'pipeline.yaml')], dir);
+      expect(r.code, r.stdout).toBe(2);
+      expectNoStack(r.stderr);
+      expect(r.stderr).toMatch(/the model store lacks 2 of the 7 models the pipeline plans.*hoarfrost grid/);
+    }
+  });
+
+  it('refuses a store of another grid (an axis narrowed since)', async () => {
+    const dir = await project();
+    const file = join(dir, 'pipeline.yaml');
+    writeFileSync(file, readFileSync(file, 'utf8').replace(/density: \[[^\]]*\]/, `density: [${DENSITIES.slice(0, 4).join(', ')}]`));
+    const r = hoarfrost(dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/the model store holds another grid than the pipeline plans.*hoarfrost grid/);
+  });
+
+  it('refuses while a grid is computing into the store', async () => {
+    const dir = await project();
+    // This test's own process stands for the running grid: alive, on this host.
+    writeFileSync(`${storeOf(dir)}.running`, JSON.stringify({ pid: process.pid, host: hostname(), started: new Date().toISOString() }));
+    const r = hoarfrost(dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(new RegExp(`a grid \\(process ${process.pid}, started .*\\) is computing into the model store`));
+    expect(existsSync(join(dir, 'out', 'fit', 'best_fits.csv'))).toBe(false);
+  });
 });
+
