@@ -109,15 +109,14 @@ export async function runFitCommand(pipelineFile: string): Promise<FitCommandRes
   });
   const fit = run.data.fit!;
   const { observations } = await run.dataOf('observe');
-  const reports = run.stages.filter((r) => r.status !== 'not run' || r.warnings.length > 0);
   return {
     result: fit.result,
     map: fit.map,
     held: heldParameters(pipeline, observations) ?? {},
     outDir: run.outDir,
     written: run.stages.find((r) => r.name === 'fit')!.outputs,
-    // The fit's own warnings are in its summary; these are the other stages' (an out-of-date grid, the observations).
-    warnings: reports.filter((r) => r.name !== 'fit').flatMap((r) => r.warnings),
+    // The fit result's warnings are in its summary; these are the rest (an out-of-date grid, the observations, the map images).
+    warnings: run.stages.flatMap((r) => r.warnings).filter((w) => !fit.result.warnings.includes(w)),
   };
 }
 
