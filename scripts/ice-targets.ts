@@ -28,7 +28,7 @@ import { loadNetwork } from '../src/chem/network.ts';
 import type { Network } from '../src/chem/network-types.ts';
 import { ICE_SUFFIX } from '../src/chem/species.ts';
 import { grainSection } from '../src/config/pipeline.ts';
-import { grainOptionsOf } from '../src/grid/plan.ts';
+import { grainOptionsOf } from '../src/model/setup.ts';
 import { loadInitialComposition, outputTimesYr, runModel } from '../src/model/run.ts';
 
 export const DEFAULT_NETWORK = fileURLToPath(new URL('../config/networks/dark-cloud.yaml', import.meta.url));

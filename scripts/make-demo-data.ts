@@ -24,11 +24,9 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { loadNetwork } from '../src/chem/network.ts';
-import { grainOptions } from '../src/grid/plan.ts';
-import { defaultConditions, isConditionName, type GrainOptions, type PhysicalConditions } from '../src/config/conditions.ts';
+import { defaultConditions, isConditionName, type PhysicalConditions } from '../src/config/conditions.ts';
 import { loadPipeline, type Pipeline } from '../src/config/pipeline.ts';
-import { loadInitialComposition, outputTimesYr, runModel } from '../src/model/run.ts';
+import { buildModelSetup, modelInput, runModel } from '../src/model/run.ts';
 import type { ModelResult } from '../src/model/types.ts';
 import { commentCards, writeFits, type FitsCard, type FitsHdu } from '../src/report/fits.ts';
 import { seededRandom } from './seeded-random.ts';
@@ -109,10 +107,7 @@ interface ModelContext {
 
 function modelContext(pipeline: Pipeline): ModelContext {
   const c = pipeline.config;
-  const network = loadNetwork(pipeline.resolvePath(c.network));
-  const initial = loadInitialComposition(c.initial, pipeline.dir, network);
-  const timesYr = outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count);
-  const grain: GrainOptions = grainOptions(pipeline);
+  const setup = buildModelSetup(pipeline);
   const fixed: Partial<PhysicalConditions> = {};
   for (const [name, axis] of Object.entries(c.conditions)) if (isConditionName(name) && typeof axis === 'number') fixed[name] = axis;
   return {
@@ -122,7 +117,7 @@ function modelContext(pipeline: Pipeline): ModelContext {
     iceThresholdAv: c.observations?.ice_threshold_av ?? 0,
     run: (density, modelAv) => {
       const conditions: PhysicalConditions = { ...defaultConditions(), ...fixed, density, visual_extinction: modelAv };
-      const result = runModel({ network, conditions, grain, initial, timesYr, solver: { rtol: c.solver.rtol, atol: c.solver.atol, maxSteps: c.solver.max_steps } });
+      const result = runModel(modelInput(setup, conditions));
       if (result.status !== 'ok') throw new Error(`demo model n_H = ${density}, A_V = ${modelAv} failed: ${result.failure}`);
       return result;
     },

@@ -94,6 +94,12 @@ export const DEFAULT_GRAIN_OPTIONS: GrainOptions = {
   surfaceLayers: DEFAULT_SURFACE_LAYERS,
 };
 
+/** Switches of the gas-phase photochemistry (the pipeline's `photochemistry:` section). */
+export interface PhotochemistryOptions {
+  /** H2 photodissociation shielded by the H2 column (Draine & Bertoldi 1996). */
+  h2SelfShielding: boolean;
+}
+
 export function defaultConditions(): PhysicalConditions {
   const c = {} as PhysicalConditions;
   for (const name of CONDITION_NAMES) c[name] = CONDITIONS[name].default;

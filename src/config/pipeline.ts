@@ -78,7 +78,7 @@ export const pipelineSchema = z
     conditions: conditionsSection.default({}),
     /** Grid points to leave out (see sections/conditions.ts). */
     exclude: excludeSection.default([]),
-    // An absent section is read as an empty one, so its fields' defaults above are the only ones.
+    // prefault: an absent section is parsed as {}, so each default is written once, in its section.
     grain: grainSection.prefault({}),
     photochemistry: photochemistrySection.prefault({}),
     initial: initialSection.default('low-metal'),

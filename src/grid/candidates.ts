@@ -28,18 +28,12 @@ export function loadCandidates(storeFile: string, species: string[]): CandidateT
     const columns = Int32Array.from(species, (s) => where.get(s)!);
     const nSpecies = species.length;
     const nParams = CONDITION_NAMES.length;
-    const { n } = store.db
-      .prepare(`SELECT COUNT(*) AS n FROM grid_points g JOIN models m ON m.id = g.id AND m.hash = g.hash WHERE m.status = 'ok'`)
-      .get() as { n: number };
+    const n = store.finishedCount();
     const parameters = new Float64Array(n * nParams);
     const abundances = new Float64Array(n * nTimes * nSpecies);
     const modelIds = new Array<string>(n);
-    const rows = store.db
-      .prepare(`SELECT m.id, m.n_times, m.n_species, m.abundances, ${CONDITION_NAMES.map((c) => `m.${c}`).join(', ')}
-        FROM grid_points g JOIN models m ON m.id = g.id AND m.hash = g.hash WHERE m.status = 'ok' ORDER BY g.idx`)
-      .raw(true);
     let k = 0;
-    for (const row of rows.iterate() as Iterable<unknown[]>) {
+    for (const row of store.finishedRows()) {
       const blob = row[3] as Buffer;
       if (row[1] !== nTimes || row[2] !== nAll || blob.byteLength !== nTimes * nAll * BYTES_PER_VALUE) {
         throw new UserError(`model ${String(row[0])} has ${String(row[1])} times x ${String(row[2])} species, the grid ${nTimes} x ${nAll}: the store is inconsistent. Rerun \`hoarfrost grid\` to recompute it.`, { file: storeFile });

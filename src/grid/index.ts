@@ -4,7 +4,8 @@ export { sightlineModelAv, binSightlineAv, DEFAULT_SIGHTLINE_AV_STEP } from './s
 export { planGrid, mainStoreFile, shardStoreFile, shardPoints, type GridPlan, type PlannedPoint } from './plan.ts';
 export { runGrid, type RunGridOptions, type GridRunResult, type GridProgress } from './run.ts';
 export { loadCandidates } from './candidates.ts';
-export { gridStatus, storeContentHash, failureReason, type GridStatus } from './status.ts';
+export { gridStatus, failureReason, type GridStatus } from './status.ts';
+export { storeContentHash } from './store.ts';
 export { mergeShards, findShardStores, type MergeReport } from './merge.ts';
 export { parseShard, shardLabel, type Shard } from './shard.ts';
 export { slurmScript, type SlurmScriptOptions } from './slurm.ts';

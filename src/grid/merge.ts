@@ -76,17 +76,17 @@ export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStor
         );
         continue;
       }
-      for (const r of shard.db.prepare('SELECT id, hash, status FROM models').iterate() as Iterable<{ id: string; hash: string; status: string }>) {
-        if (current.get(r.id) !== r.hash) {
+      for (const [id, r] of shard.existing()) {
+        if (current.get(id) !== r.hash) {
           staleInShards++;
           continue;
         }
-        const files = seenIn.get(r.id) ?? [];
+        const files = seenIn.get(id) ?? [];
         files.push(file);
-        seenIn.set(r.id, files);
-        const prior = chosen.get(r.id);
+        seenIn.set(id, files);
+        const prior = chosen.get(id);
         // Of two copies keep a finished one over a failed one; otherwise the first.
-        if (!prior || (prior.status !== 'ok' && r.status === 'ok')) chosen.set(r.id, { file, status: r.status });
+        if (!prior || (prior.status !== 'ok' && r.status === 'ok')) chosen.set(id, { file, status: r.status });
       }
     } finally {
       shard.close();
@@ -107,7 +107,7 @@ export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStor
     store.setGrid({
       gridHash: plan.gridHash,
       species: plan.species,
-      timesYr: plan.shared.timesYr,
+      timesYr: plan.shared.options.timesYr,
       points: plan.points,
       shard: '',
       toolVersion: plan.shared.toolVersion,

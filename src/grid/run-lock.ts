@@ -19,7 +19,7 @@ import { linkSync, readFileSync, unlinkSync, writeFileSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { UserError } from '../config/errors.ts';
 
-interface LockInfo {
+export interface LockInfo {
   pid: number;
   host: string;
   started: string;
@@ -140,4 +140,19 @@ export function acquireRunLock(storeFile: string): () => void {
     removeStale(lockFile, other, { ...mine, token: `${mine.token}-takeover` }, storeFile);
   }
   throw new UserError(`cannot take the run lock ${lockFile}; another run keeps taking it.`, { file: storeFile });
+}
+
+/**
+ * The run holding a store's lock, if it may still be computing: a live
+ * process on this host, or any process on another host (whose life cannot
+ * be checked from here). A lock left by a killed process here is no holder.
+ */
+export function runLockHolder(storeFile: string): LockInfo | undefined {
+  let other: LockInfo;
+  try {
+    other = JSON.parse(readFileSync(`${storeFile}.running`, 'utf8')) as LockInfo;
+  } catch {
+    return undefined;
+  }
+  return other.host !== hostname() || alive(other.pid) ? other : undefined;
 }

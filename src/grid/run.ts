@@ -102,7 +102,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
     store.setGrid({
       gridHash: plan.gridHash,
       species: plan.species,
-      timesYr: plan.shared.timesYr,
+      timesYr: plan.shared.options.timesYr,
       points: share,
       shard: options.shard ? shardLabel(options.shard) : '',
       toolVersion: plan.shared.toolVersion,
@@ -130,7 +130,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
 
     const run = randomUUID();
     const byId = new Map(todo.map((p) => [p.id, p]));
-    const expectedLength = plan.shared.timesYr.length * plan.species.length;
+    const expectedLength = plan.shared.options.timesYr.length * plan.species.length;
     const failureReasons: Record<string, number> = {};
     let ok = 0;
     let failed = 0;

@@ -3,9 +3,10 @@
  * how many models are done, failed (by reason), missing, and stale (stored
  * with a different content hash: an input changed since).
  */
-import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
-import type { PlannedPoint } from './plan.ts';
+import { UserError } from '../config/errors.ts';
+import type { GridPlan, PlannedPoint } from './plan.ts';
+import { runLockHolder } from './run-lock.ts';
 import { ModelStore } from './store.ts';
 
 export interface GridStatus {
@@ -58,24 +59,31 @@ export function gridStatus(storeFile: string, points: readonly PlannedPoint[]): 
 }
 
 /**
- * A hash of what a store holds for its current grid: every point's id, model
- * hash and status, and every stored abundance value, in grid order. Two
- * stores with the same results hash alike whatever order they were written in.
+ * Refuse a store that does not hold exactly the finished grid of the plan:
+ * a grid still computing into it, a store of another grid (an input changed
+ * since), or models missing or stale. Failed models count as finished (the
+ * fit leaves them out and says so). The message says what to run.
  */
-export function storeContentHash(storeFile: string): string {
+export function checkFinishedGrid(storeFile: string, plan: GridPlan): void {
+  const run = `Run \`hoarfrost grid ${plan.pipeline.file}\` (or \`hoarfrost run ${plan.pipeline.file}\`) first: it computes only what is missing or stale.`;
+  const holder = runLockHolder(storeFile);
+  if (holder) {
+    throw new UserError(`a grid (process ${holder.pid}, started ${holder.started}${holder.host ? ` on ${holder.host}` : ''}) is computing into the model store, so its grid is not finished. Wait for it to finish, then run again.`, { file: storeFile });
+  }
+  if (!existsSync(storeFile)) throw new UserError(`no model store here. ${run}`, { file: storeFile });
   const store = ModelStore.open(storeFile, { readonly: true });
+  let gridHash: string | undefined;
   try {
-    const h = createHash('sha256').update(store.meta()?.gridHash ?? '');
-    const rows = store.db
-      .prepare(`SELECT g.id, m.hash, m.status, m.failure, m.abundances FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx`)
-      .raw(true);
-    for (const r of rows.iterate() as Iterable<[string, string | null, string | null, string | null, Buffer | null]>) {
-      h.update(`\n${r[0]} ${r[1] ?? '-'} ${r[2] ?? 'missing'} ${r[3] ?? ''}\n`);
-      if (r[4]) h.update(r[4]);
-    }
-    return h.digest('hex');
+    gridHash = store.meta()?.gridHash;
   } finally {
     store.close();
   }
+  if (gridHash !== plan.gridHash) {
+    throw new UserError(`the model store holds another grid than the pipeline plans (its conditions, network, initial composition, times, solver settings or tool version changed since). ${run}`, { file: storeFile });
+  }
+  const s = gridStatus(storeFile, plan.points);
+  if (s.missing + s.stale > 0) {
+    const stale = s.stale > 0 ? ` (${s.stale} of them computed with other inputs)` : '';
+    throw new UserError(`the model store lacks ${s.missing + s.stale} of the ${s.points} models the pipeline plans${stale}. ${run}`, { file: storeFile });
+  }
 }
-

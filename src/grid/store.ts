@@ -18,6 +18,7 @@
  * kill at any moment loses only results not yet committed and never leaves
  * a half-written row; SQLite recovers the WAL on the next open.
  */
+import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, statSync } from 'node:fs';
 import { endianness } from 'node:os';
 import { dirname } from 'node:path';
@@ -270,11 +271,55 @@ export class ModelStore {
     }
   }
 
+  /** Finished models (status ok, current hash) of the store's grid. */
+  finishedCount(): number {
+    return (this.db.prepare(`SELECT COUNT(*) AS n FROM grid_points g JOIN models m ON m.id = g.id AND m.hash = g.hash WHERE m.status = 'ok'`).get() as { n: number }).n;
+  }
+
+  /**
+   * The finished models of the store's grid in grid order, as raw rows:
+   * id, n_times, n_species, abundances BLOB, then every condition in
+   * CONDITION_NAMES order (no object per row: the fit's query reads many).
+   */
+  finishedRows(): Iterable<unknown[]> {
+    return this.db
+      .prepare(`SELECT m.id, m.n_times, m.n_species, m.abundances, ${CONDITION_NAMES.map((c) => `m.${c}`).join(', ')}
+        FROM grid_points g JOIN models m ON m.id = g.id AND m.hash = g.hash WHERE m.status = 'ok' ORDER BY g.idx`)
+      .raw(true)
+      .iterate() as Iterable<unknown[]>;
+  }
+
+  /**
+   * A hash of what the store holds for its current grid: the grid hash, every
+   * point's id, model hash and status, and every stored abundance value, in
+   * grid order. Two stores with the same results hash alike whatever order
+   * they were written in (the bytes of an SQLite file depend on write order).
+   */
+  contentHash(): string {
+    const h = createHash('sha256').update(this.meta()?.gridHash ?? '');
+    const rows = this.db.prepare(`SELECT g.id, m.hash, m.status, m.failure, m.abundances FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx`).raw(true);
+    for (const r of rows.iterate() as Iterable<[string, string | null, string | null, string | null, Buffer | null]>) {
+      h.update(`\n${r[0]} ${r[1] ?? '-'} ${r[2] ?? 'missing'} ${r[3] ?? ''}\n`);
+      if (r[4]) h.update(r[4]);
+    }
+    return h.digest('hex');
+  }
+
   integrityCheck(): string {
     return (this.db.pragma('integrity_check', { simple: true }) as string) ?? '';
   }
 
   close(): void {
     this.db.close();
+  }
+}
+
+/** The content hash (ModelStore.contentHash) of a store file. */
+export function storeContentHash(storeFile: string): string {
+  const store = ModelStore.open(storeFile, { readonly: true });
+  try {
+    return store.contentHash();
+  } finally {
+    store.close();
   }
 }

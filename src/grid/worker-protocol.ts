@@ -5,19 +5,15 @@
  * back as transferred buffers (no copy).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
-import type { ModelResult, SolverSettings } from '../model/types.ts';
+import type { PhysicalConditions } from '../config/conditions.ts';
+import type { ModelOptions, ModelResult } from '../model/types.ts';
 
+/** The model setup as it crosses to a worker: the network by file (loaded again there) and the options as they are. */
 export interface WorkerInit {
   networkFile: string;
   /** Content hash the main thread saw; a worker refuses a network file changed since. */
   networkHash: string;
-  initial: Record<string, number>;
-  timesYr: Float64Array;
-  solver: SolverSettings;
-  grain: GrainOptions;
-  massActionOnly: boolean;
-  selfShielding: boolean;
+  options: ModelOptions;
 }
 
 export type ToWorker = { type: 'run'; id: string; conditions: PhysicalConditions };

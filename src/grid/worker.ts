@@ -2,7 +2,7 @@
 import { UserError } from '../config/errors.ts';
 import { outputSpeciesNames } from '../chem/mantle.ts';
 import { loadNetwork } from '../chem/network.ts';
-import { runModel } from '../model/run.ts';
+import { modelInput, runModel } from '../model/run.ts';
 import { serveModelTasks } from './worker-protocol.ts';
 
 serveModelTasks((init) => {
@@ -11,17 +11,7 @@ serveModelTasks((init) => {
     throw new UserError('the network file changed while the grid was starting; rerun the grid.', { file: init.networkFile });
   }
   return {
-    species: outputSpeciesNames(network, init.grain),
-    run: (conditions) =>
-      runModel({
-        network,
-        conditions,
-        grain: init.grain,
-        initial: init.initial,
-        timesYr: init.timesYr,
-        solver: init.solver,
-        massActionOnly: init.massActionOnly,
-        selfShielding: init.selfShielding,
-      }),
+    species: outputSpeciesNames(network, init.options.grain),
+    run: (conditions) => runModel(modelInput({ network, options: init.options }, conditions)),
   };
 });

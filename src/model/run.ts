@@ -16,6 +16,7 @@ import { YEAR_SECONDS } from '../chem/constants.ts';
 
 export { outputTimesYr } from './times.ts';
 export { loadInitialComposition } from './initial.ts';
+export { buildModelSetup, modelInput, type ModelSetup } from './setup.ts';
 
 /**
  * The initial state vector; every named species must be in the network. With
@@ -49,14 +50,13 @@ function checkTimes(timesYr: Float64Array): void {
  * a note when, at some output, more than half of the H atoms striking grains
  * evaporate again instead of reacting.
  */
-function physisorbedH2Notes(input: ModelInput, system: CompiledSystem, abundances: Float64Array): string[] {
+function physisorbedH2Notes(input: ModelInput, system: CompiledSystem, states: readonly Float64Array[]): string[] {
   const found = hydrogenGrainTerms(input.network, system.terms);
   if (found.evaporation.length === 0) return [];
-  const n = system.n;
   let worst = 0;
   let at = -1;
-  for (let k = 0; k < input.timesYr.length; k++) {
-    const share = evaporatedHydrogenShare(found, system.terms, abundances.subarray(k * n, (k + 1) * n));
+  for (let k = 0; k < states.length; k++) {
+    const share = evaporatedHydrogenShare(found, system.terms, states[k]);
     if (share !== undefined && share > worst) {
       worst = share;
       at = k;
@@ -72,7 +72,7 @@ export function runModel(input: ModelInput): ModelResult {
   const started = performance.now();
   checkTimes(input.timesYr);
   const network = modelNetwork(input.network, input.grain);
-  const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
+  const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding });
   const y0 = initialState({ network, initial: input.initial });
   // With the mantle on, the outputs add the whole ice X(s) = X(surface) + X(mantle) (src/chem/mantle.ts).
   const columns = outputColumns(network.species, input.grain);
@@ -83,12 +83,15 @@ export function runModel(input: ModelInput): ModelResult {
   const stats = { steps: 0, failedSteps: 0, rhsEvals: 0, jacobianEvals: 0, factorizations: 0, newtonFailures: 0 };
   let status: 'ok' | 'failed' = 'ok';
   let failure: string | undefined;
+  // The solver's states at the output times (the output columns may add the whole ice of the three-phase model).
+  let states: Float64Array[] = [];
   try {
     const result = integrate(system, y0, yearsToSeconds(input.timesYr), {
       rtol: input.solver.rtol,
       atol: input.solver.atol,
       maxSteps: input.solver.maxSteps,
     });
+    states = result.y;
     result.y.forEach((y, k) => {
       fillOutputs(columns, y, abundances, k * nOut);
       conservation.observe(y);
@@ -113,7 +116,7 @@ export function runModel(input: ModelInput): ModelResult {
     failure = `the solver failed: ${(e as Error).message}`;
   }
   const notes = [...system.clampNotes];
-  if (input.grain.h2Formation === 'surface') notes.push(...physisorbedH2Notes(input, system, abundances));
+  if (input.grain.h2Formation === 'surface') notes.push(...physisorbedH2Notes(input, system, states));
   return {
     species: columns.names,
     timesYr: input.timesYr,

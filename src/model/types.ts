@@ -1,5 +1,5 @@
 /** One model run: conditions in, abundance time series out. */
-import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
+import type { GrainOptions, PhotochemistryOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network } from '../chem/network-types.ts';
 import type { SolverStats } from '../solve/index.ts';
 
@@ -10,10 +10,15 @@ export interface SolverSettings {
   maxSteps?: number;
 }
 
-export interface ModelInput {
-  network: Network;
-  conditions: PhysicalConditions;
+/**
+ * Everything besides the network and the point's physical conditions that
+ * changes a model's result. The model setup (setup.ts) holds one, built once
+ * from a pipeline; the model content hash covers every field of it
+ * generically (src/grid/hash.ts), so a field added here is hashed unasked.
+ */
+export interface ModelOptions {
   grain: GrainOptions;
+  photochemistry: PhotochemistryOptions;
   /** Initial fractional abundances x_i = n_i/n_H, by species name; others start at 0. */
   initial: Readonly<Record<string, number>>;
   /** Output times, years (Julian, 3.15576e7 s), increasing, > 0. */
@@ -24,9 +29,13 @@ export interface ModelInput {
    * reaction (its monolayer treatment is one term, below a monolayer too), the
    * self-shielded H2 photodissociation and the parametric H2 formation rate.
    */
-  massActionOnly?: boolean;
-  /** Shield H2 photodissociation by the H2 column (Draine & Bertoldi 1996); default true. */
-  selfShielding?: boolean;
+  massActionOnly: boolean;
+}
+
+/** One model's input: a setup's network and options with one point's conditions (the switches default to off / shielded). */
+export interface ModelInput extends Omit<ModelOptions, 'massActionOnly' | 'photochemistry'>, Partial<Pick<ModelOptions, 'massActionOnly' | 'photochemistry'>> {
+  network: Network;
+  conditions: PhysicalConditions;
 }
 
 export interface ConservationReport {

@@ -15,11 +15,12 @@ import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { FIT_OUTPUT_FILES, MAP_IMAGE_NAMES, type FitStageResult, type MapFitJson, type ProfilesJson } from '../fit/types.ts';
-import { mainStoreFile } from '../grid/plan.ts';
-import { PRESET_DIR } from '../model/initial.ts';
+import { mainStoreFile, type GridPlan } from '../grid/plan.ts';
+import type { GridRunResult, RunGridOptions } from '../grid/run.ts';
+import type { Shard } from '../grid/shard.ts';
 import { DEFAULT_BAND_TABLE, deriveQuantities, loadObservations, sidecarPath, type ObservationSet, type ObservedQuantity } from '../obs/index.ts';
 import type { ReportProvenance } from '../report/types.ts';
-import { hashFile, hashValue } from './hash.ts';
+import { hashFile } from './hash.ts';
 import { heldParameters } from './held.ts';
 import type { StageContext, StageImpl, StageSet } from './stages.ts';
 import { loadTracks } from './tracks.ts';
@@ -30,9 +31,13 @@ export interface ObserveData {
 }
 export interface GridData {
   storeFile: string;
+  /** What the grid did, when it ran in this process. */
+  run?: GridRunResult;
 }
 export interface FitData {
   result: FitStageResult;
+  profiles?: ProfilesJson;
+  map?: MapFitJson;
 }
 export interface ReportData {
   html: string;
@@ -137,22 +142,31 @@ function quantitiesCsv(quantities: readonly ObservedQuantity[]): string {
   return toCsv(header, quantities.map((q) => [q.sightline, q.label, q.kind, q.log10, q.sigmaLoDex, q.sigmaHiDex]));
 }
 
+/** The observations as the pipeline reads them: its section, species checked against its network. */
+export async function readObservationSet(pipeline: Pipeline): Promise<ObservationSet> {
+  const { loadNetwork } = await import('../chem/network.ts');
+  const network = loadNetwork(pipeline.resolvePath(pipeline.config.network));
+  return loadObservations(observationsSection(pipeline), pipeline.dir, new Set(network.species.map((s) => s.name)));
+}
+
+/** The observe stage's work without writing anything: the observation set and the quantities the fit asks for. */
+export async function readObservations(pipeline: Pipeline): Promise<ObserveData & { warnings: string[] }> {
+  const observations = await readObservationSet(pipeline);
+  const derived = deriveQuantities(observations, observationsSection(pipeline), wantedQuantities(pipeline));
+  return { observations, quantities: derived.quantities, warnings: [...observations.warnings, ...derived.warnings] };
+}
+
 const observe: StageImpl<PipelineData, 'observe'> = {
   inputs: ({ pipeline }) => ({ config: { observations: observationsSection(pipeline), quantities: wantedQuantities(pipeline) }, files: observationFiles(pipeline), after: [] }),
   run: async ({ pipeline, outDir }) => {
-    const section = observationsSection(pipeline);
-    const { loadNetwork } = await import('../chem/network.ts');
-    const network = loadNetwork(pipeline.resolvePath(pipeline.config.network));
-    const observations = loadObservations(section, pipeline.dir, new Set(network.species.map((s) => s.name)));
-    const derived = deriveQuantities(observations, section, wantedQuantities(pipeline));
-    const saved: ObserveData = { observations: portable(observations, pipeline.dir), quantities: derived.quantities };
+    const { observations, quantities, warnings } = await readObservations(pipeline);
+    const saved: ObserveData = { observations: portable(observations, pipeline.dir), quantities };
     writeOutput(outDir, OBSERVATIONS_JSON, `${JSON.stringify(saved, null, 1)}\n`);
-    writeOutput(outDir, QUANTITIES_CSV, quantitiesCsv(derived.quantities));
+    writeOutput(outDir, QUANTITIES_CSV, quantitiesCsv(quantities));
     const nSightlines = observations.sightlines.length;
-    const limits = derived.quantities.filter((q) => q.kind !== 'detection').length;
-    const warnings = [...observations.warnings, ...derived.warnings];
+    const limits = quantities.filter((q) => q.kind !== 'detection').length;
     return {
-      summary: `${nSightlines} ${observations.kind === 'map' ? 'pixels' : 'sightlines'}, ${derived.quantities.length} quantities (${limits} limits)${warnings.length ? `, ${warnings.length} warnings` : ''}`,
+      summary: `${nSightlines} ${observations.kind === 'map' ? 'pixels' : 'sightlines'}, ${quantities.length} quantities (${limits} limits)${warnings.length ? `, ${warnings.length} warnings` : ''}`,
       outputs: [OBSERVATIONS_JSON, QUANTITIES_CSV],
       data: saved,
       warnings,
@@ -172,79 +186,131 @@ function sightlineAvs(observations: ObservationSet, pipeline: Pipeline): number[
   return observations.sightlines.map((s) => s.av!);
 }
 
-const grid: StageImpl<PipelineData, 'grid'> = {
-  inputs: async (ctx) => {
-    const { pipeline } = ctx;
-    const c = pipeline.config;
-    const files: Record<string, string> = networkFiles(pipeline);
-    if (typeof c.initial === 'string' && /[\\/]|\.ya?ml$/i.test(c.initial)) files.initial = pipeline.resolvePath(c.initial);
-    else if (typeof c.initial === 'string') files.initial = join(PRESET_DIR, `${c.initial}.yaml`);
-    // With model A_V tied to the sightlines, the grid depends on their A_V bins
-    // alone: a change of the observed columns leaves the grid as it is.
-    const held = needsSightlineTie(pipeline) ? heldParameters(pipeline, (await ctx.upstream('observe')).observations) : undefined;
-    const avBins = held ? [...new Set(Object.values(held).map((h) => h.visual_extinction))].sort((a, b) => a - b) : undefined;
-    return {
-      config: { conditions: c.conditions, exclude: c.exclude, grain: c.grain, photochemistry: c.photochemistry, initial: c.initial, times: c.times, solver: c.solver, sightlineAvBins: avBins },
-      files,
-      after: [],
-    };
-  },
-  run: async (ctx) => {
-    const { pipeline, outDir, progress } = ctx;
-    const { runGrid } = await import('../grid/run.ts');
-    const sightlineAv = needsSightlineTie(pipeline) ? sightlineAvs((await ctx.upstream('observe')).observations, pipeline) : undefined;
+/**
+ * The grid plan of a pipeline: the one policy every verb meets. With the
+ * model A_V tied to the sightlines, every sightline needs an A_V (none is
+ * dropped); `observations` is asked for only then.
+ */
+export async function pipelineGridPlan(pipeline: Pipeline, observations: () => Promise<ObservationSet>): Promise<GridPlan> {
+  const { planGrid } = await import('../grid/plan.ts');
+  return planGrid(pipeline, needsSightlineTie(pipeline) ? sightlineAvs(await observations(), pipeline) : undefined);
+}
+
+/** The exclusion rules of a plan that match no point: a likely typo in the pipeline. */
+export function unusedRuleWarnings(plan: GridPlan): string[] {
+  return plan.grid.unusedRules.map((i) => `exclusion rule ${i + 1} matches no grid point.`);
+}
+
+/** The grid plan of a pipeline outside a run of the stages (slurm, merge, a shard, --status): the observations read as the observe stage reads them. */
+export function standaloneGridPlan(pipeline: Pipeline): Promise<GridPlan> {
+  return pipelineGridPlan(pipeline, async () => (await readObservations(pipeline)).observations);
+}
+
+/** A grid stopped by a signal before it was complete; the finished models are kept. */
+export class GridStopped extends UserError {
+  constructor(readonly result: GridRunResult) {
+    super(`the grid was stopped with ${result.remaining} of ${result.share} models still to compute; the finished ones are kept in the store. Run again to go on.`, { file: result.storeFile });
+  }
+}
+
+export interface GridStageOptions {
+  /** Recompute models that failed before. */
+  retryFailed?: boolean;
+  onStart?: RunGridOptions['onStart'];
+  /** Progress after each model; by default a line through the stage's progress at most every few seconds. */
+  onProgress?: RunGridOptions['onProgress'];
+  /** Stop signals of a caller that handles Ctrl-C and SIGTERM itself; without them the stage handles Ctrl-C. */
+  signals?: { drain: AbortSignal; abort: AbortSignal };
+}
+
+/**
+ * The grid stage's work: compute the plan's missing and stale models, of
+ * the whole grid or, for a batch system's array task, of one shard into its
+ * own store (a shard is not the stage: the stage state is left alone). A grid
+ * stopped before it is complete throws GridStopped.
+ */
+export async function computeGrid(pipeline: Pipeline, plan: GridPlan, options: GridStageOptions & { workers?: number; shard?: Shard; progress(line: string): void }): Promise<GridRunResult> {
+  const { runGrid } = await import('../grid/run.ts');
+  const { progress } = options;
+  let signals = options.signals;
+  let onSigint: (() => void) | undefined;
+  if (!signals) {
     const drain = new AbortController();
-    const onSigint = () => {
+    signals = { drain: drain.signal, abort: new AbortController().signal };
+    onSigint = () => {
       progress('stopping: letting the models in flight finish (Ctrl-C again to stop at once)');
       drain.abort();
       process.once('SIGINT', () => process.exit(130));
     };
     process.once('SIGINT', onSigint);
-    let lastLine = 0;
-    try {
-      const r = await runGrid(pipeline, {
-        workers: ctx.workers,
-        sightlineAv,
-        drainSignal: drain.signal,
-        onStart: (info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}${info.note ? ` (${info.note})` : ''}`),
-        onProgress: (p) => {
+  }
+  let lastLine = 0;
+  try {
+    const r = await runGrid(pipeline, {
+      plan,
+      workers: options.workers,
+      shard: options.shard,
+      retryFailed: options.retryFailed,
+      drainSignal: signals.drain,
+      abortSignal: signals.abort,
+      onStart: options.onStart ?? ((info) => progress(`grid: ${info.share} models, ${info.upToDate} already in the store, ${info.todo} to compute on ${info.workers} worker${info.workers === 1 ? '' : 's'}${info.note ? ` (${info.note})` : ''}`)),
+      onProgress:
+        options.onProgress ??
+        ((p) => {
           const now = performance.now();
           if (p.done < p.total && now - lastLine < GRID_PROGRESS_INTERVAL_MS) return;
           lastLine = now;
           const left = p.remainingMs === undefined ? '' : `, about ${Math.ceil(p.remainingMs / 1000)} s left`;
           progress(`grid: ${p.done}/${p.total} models${p.failed ? `, ${p.failed} failed` : ''}, ${p.ratePerMinute.toFixed(0)} per minute${left}`);
-        },
-      });
-      if (r.interrupted || r.remaining > 0) {
-        throw new UserError(`the grid was stopped with ${r.remaining} of ${r.share} models still to compute; the finished ones are kept in the store. Run again to go on.`, { file: r.storeFile });
-      }
+        }),
+    });
+    if (r.interrupted || r.remaining > 0) throw new GridStopped(r);
+    return r;
+  } finally {
+    if (onSigint) process.removeListener('SIGINT', onSigint);
+  }
+}
+
+function gridStage(options: GridStageOptions): StageImpl<PipelineData, 'grid'> {
+  let planned: Promise<GridPlan> | undefined;
+  const plan = (ctx: StageContext<PipelineData>) => (planned ??= pipelineGridPlan(ctx.pipeline, async () => (await ctx.upstream('observe')).observations));
+  return {
+    // The grid hash covers every point's conditions and model hash, and so the
+    // whole model setup (network contents, options, tool version): nothing
+    // else of the pipeline changes a model. With the model A_V tied to the
+    // sightlines it holds their A_V bins alone, so a change of the observed
+    // columns leaves the grid as it is.
+    inputs: async (ctx) => ({ config: { grid: (await plan(ctx)).gridHash }, files: {}, after: [] }),
+    run: async (ctx) => {
+      const { pipeline, outDir, progress } = ctx;
+      const planned = await plan(ctx);
+      const r = await computeGrid(pipeline, planned, { ...options, workers: ctx.workers, progress });
       const ok = r.share - Object.values(r.failureReasons).reduce((a, b) => a + b, 0);
       const reasons = Object.entries(r.failureReasons).map(([reason, n]) => `${n} x ${reason}`);
+      const warnings = unusedRuleWarnings(planned);
+      if (reasons.length) warnings.push(`failed models (left out of the fit): ${reasons.join('; ')}`);
+      else if (ok === 0) warnings.push('no model finished');
       return {
         summary: `${r.gridPoints} models (${r.computed} computed, ${r.upToDate} from the store${r.failed ? `, ${r.failed} failed` : ''})`,
         outputs: [relOut(outDir, r.storeFile)],
-        data: { storeFile: r.storeFile },
-        warnings: reasons.length ? [`failed models (left out of the fit): ${reasons.join('; ')}`] : ok === 0 ? ['no model finished'] : [],
+        data: { storeFile: r.storeFile, run: r },
+        warnings,
       };
-    } finally {
-      process.removeListener('SIGINT', onSigint);
-    }
-  },
-  load: async ({ outDir }) => ({ storeFile: mainStoreFile({ storeDir: join(outDir, STORE_DIR) }) }),
-  // The bytes of an SQLite file depend on write order; the store's content is
-  // its grid and, per point, the model's content hash and status (models are
-  // deterministic in their inputs, which the content hash covers).
-  outputHash: async ({ outDir }) => {
-    const { ModelStore } = await import('../grid/store.ts');
-    const store = ModelStore.open(mainStoreFile({ storeDir: join(outDir, STORE_DIR) }), { readonly: true });
-    try {
-      const rows = store.db.prepare('SELECT g.id, g.hash, m.status FROM grid_points g LEFT JOIN models m ON m.id = g.id AND m.hash = g.hash ORDER BY g.idx').raw(true).all();
-      return hashValue({ grid: store.meta()?.gridHash, models: rows });
-    } finally {
-      store.close();
-    }
-  },
-};
+    },
+    load: async ({ outDir }) => ({ storeFile: mainStoreFile({ storeDir: join(outDir, STORE_DIR) }) }),
+    // The bytes of an SQLite file depend on write order: the store hashes its own content.
+    outputHash: async ({ outDir }) => {
+      const { storeContentHash } = await import('../grid/store.ts');
+      return storeContentHash(mainStoreFile({ storeDir: join(outDir, STORE_DIR) }));
+    },
+  };
+}
+
+/** The fit and the report use exactly the finished grid the pipeline plans, or refuse saying what to run. */
+async function checkStore(ctx: StageContext<PipelineData>, storeFile: string): Promise<void> {
+  const { checkFinishedGrid } = await import('../grid/status.ts');
+  checkFinishedGrid(storeFile, await pipelineGridPlan(ctx.pipeline, async () => (await ctx.upstream('observe')).observations));
+}
 
 function needsSightlineTie(pipeline: Pipeline): boolean {
   return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && 'tie' in a && a.tie === 'sightlines');
@@ -259,9 +325,11 @@ const fit: StageImpl<PipelineData, 'fit'> = {
   run: async (ctx) => {
     const { pipeline, outDir } = ctx;
     const { runFitStage } = await import('../fit/stage.ts');
+    const { mapJson } = await import('../fit/stage-files.ts');
     const { loadCandidates } = await import('../grid/candidates.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
+    await checkStore(ctx, storeFile);
     const species = new Set<string>();
     for (const q of quantities) {
       species.add(q.numerator);
@@ -281,30 +349,28 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       writeOutput(outDir, rel, text);
       outputs.push(rel);
     }
-    if (out.map && observations.map) {
-      const { writeFitsImages } = await import('../report/fits.ts');
-      for (const name of MAP_IMAGE_NAMES) {
-        const rel = `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`;
-        writeFitsImages(join(outDir, rel), [{ name: name.toUpperCase(), data: out.map.images[name], nx: out.map.nx, ny: out.map.ny, header: mapHeader(observations) }]);
-        outputs.push(rel);
-      }
+    const map = out.map ? mapJson(out.map) : undefined;
+    const warnings = [...out.result.warnings];
+    if (map) {
+      const { writeMapImages } = await import('../report/maps.ts');
+      const files = writeMapImages(map, observations.map, warnings, MAP_IMAGE_NAMES, (name) => join(outDir, `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`));
+      outputs.push(...files.map((f) => relOut(outDir, f)));
     }
     const poor = out.result.fits.filter((f) => f.warnings.length > 0).length;
     const n = out.map ? `${out.map.fittedPixels} pixels` : `${out.result.fits.length} sightlines`;
     return {
       summary: `${n} fitted against ${out.result.nCandidates} candidates${poor ? `, ${poor} with warnings` : ''}`,
       outputs: outputs.sort(),
-      data: { result: out.result },
-      warnings: out.result.warnings,
+      data: { result: out.result, profiles: out.profiles, map },
+      warnings,
     };
   },
-  load: async ({ outDir }) => ({ result: readJson<FitStageResult>(outDir, FIT_OUTPUT_FILES.fitJson, 'fit') }),
+  load: async ({ outDir }) => ({
+    result: readJson<FitStageResult>(outDir, FIT_OUTPUT_FILES.fitJson, 'fit'),
+    profiles: existsSync(join(outDir, FIT_OUTPUT_FILES.profilesJson)) ? readJson<ProfilesJson>(outDir, FIT_OUTPUT_FILES.profilesJson, 'fit') : undefined,
+    map: existsSync(join(outDir, FIT_OUTPUT_FILES.mapJson)) ? readJson<MapFitJson>(outDir, FIT_OUTPUT_FILES.mapJson, 'fit') : undefined,
+  }),
 };
-
-/** Header cards of a map result image: the observations' WCS, carried over. */
-function mapHeader(observations: ObservationSet): Record<string, string | number | boolean> {
-  return { ...(observations.map?.wcs ?? {}) };
-}
 
 const report: StageImpl<PipelineData, 'report'> = {
   inputs: ({ pipeline }) => ({ config: { name: pipeline.config.name, report: pipeline.config.report }, files: {}, after: ['observe', 'grid', 'fit'] }),
@@ -314,18 +380,17 @@ const report: StageImpl<PipelineData, 'report'> = {
     const { reportSection } = await import('../config/sections/report.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
-    const { result } = await ctx.upstream('fit');
+    await checkStore(ctx, storeFile);
+    const { result, profiles, map } = await ctx.upstream('fit');
     const config = pipeline.config.report ?? reportSection.parse({});
-    const profilesFile = join(outDir, FIT_OUTPUT_FILES.profilesJson);
-    const mapFile = join(outDir, FIT_OUTPUT_FILES.mapJson);
     const files = await writeReport(
       {
         title: config.title ?? pipeline.config.name,
         config,
         configFile: pipeline.file,
         fit: result,
-        profiles: existsSync(profilesFile) ? readJson<ProfilesJson>(outDir, FIT_OUTPUT_FILES.profilesJson, 'fit') : undefined,
-        map: existsSync(mapFile) ? readJson<MapFitJson>(outDir, FIT_OUTPUT_FILES.mapJson, 'fit') : undefined,
+        profiles,
+        map,
         observations,
         quantities,
         tracks: loadTracks(storeFile, result, config.runner_up_tracks),
@@ -367,6 +432,10 @@ function reportProvenance(ctx: StageContext<PipelineData>): ReportProvenance {
   };
 }
 
-export function defaultStages(): StageSet<PipelineData> {
-  return { observe, grid, fit, report };
+export interface StageOptions {
+  grid?: GridStageOptions;
+}
+
+export function defaultStages(options: StageOptions = {}): StageSet<PipelineData> {
+  return { observe, grid: gridStage(options.grid ?? {}), fit, report };
 }

@@ -9,6 +9,9 @@
  * stage never reads stale inputs.
  * `only`: that stage alone runs, on whatever the earlier stages left; the
  * runner warns when those are out of date with the pipeline file.
+ * `stages` (the verbs grid, fit, observations): these stages run, each
+ * skipped when unchanged unless listed in `force`; the others are left as
+ * they are, as with `only`.
  */
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
@@ -35,6 +38,12 @@ export interface StageReport {
 export interface RunOptions {
   from?: StageName;
   only?: StageName;
+  /** Run these stages alone (in stage order); the others are left as they are. */
+  stages?: readonly StageName[];
+  /** Run these stages even when unchanged. */
+  force?: readonly StageName[];
+  /** How the user asked for the selection, for messages (`--only fit`, `hoarfrost fit`). */
+  asked?: string;
   workers?: number;
   commandLine?: readonly string[];
   /** Receives one line per stage, as it finishes. */
@@ -43,9 +52,13 @@ export interface RunOptions {
   progress?(line: string): void;
 }
 
-export interface RunResult {
+export interface RunResult<M extends StageDataMap = StageDataMap> {
   outDir: string;
   stages: StageReport[];
+  /** Data of the stages that ran in this call. */
+  data: { [K in StageName]?: M[K] };
+  /** Data of any stage: from this call, or reloaded from the outputs it left. */
+  dataOf<K extends StageName>(name: K): Promise<M[K]>;
   state: StageState;
   startedAt: string;
   finishedAt: string;
@@ -56,7 +69,7 @@ export function outputFolder(pipeline: Pipeline): string {
   return pipeline.resolvePath(pipeline.config.output);
 }
 
-export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impls: StageSet<M>, options: RunOptions = {}): Promise<RunResult> {
+export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impls: StageSet<M>, options: RunOptions = {}): Promise<RunResult<M>> {
   const startedAt = new Date().toISOString();
   const outDir = outputFolder(pipeline);
   const progress = options.progress ?? (() => undefined);
@@ -75,7 +88,7 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
       let d = data.get(name);
       if (!d) {
         if (!state[name]) {
-          return Promise.reject(new UserError(`the ${name} stage has no results in ${outDir} yet. Run the whole pipeline first (without --only).`));
+          return Promise.reject(new UserError(`the ${name} stage has no results in ${outDir} yet. ${whatToRun(name)}`));
         }
         d = impls[name].load(ctx);
         data.set(name, d);
@@ -94,11 +107,16 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
   };
 
   const reports: StageReport[] = [];
+  const ran: { [K in StageName]?: M[K] } = {};
   const fromIndex = options.from ? STAGE_NAMES.indexOf(options.from) : Infinity;
+  const chosen: readonly StageName[] = options.only ? [options.only] : (options.stages ?? STAGE_NAMES);
+  const partial = chosen.length < STAGE_NAMES.length;
+  const lastChosen = Math.max(...chosen.map((n) => STAGE_NAMES.indexOf(n)));
+  const asked = options.asked ?? (options.only ? `--only ${options.only}` : 'this command');
   for (const [index, name] of STAGE_NAMES.entries()) {
     const impl = impls[name];
     const record = state[name];
-    const selected = options.only === undefined || options.only === name;
+    const selected = chosen.includes(name);
     let inputs: StageInputs;
     try {
       inputs = await impl.inputs(ctx);
@@ -107,13 +125,13 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
       // A stage left as it was whose inputs cannot be read now (an earlier stage never ran) is out of date.
       inputs = { config: null, files: {}, after: [...STAGE_NAMES.slice(0, index)] };
     }
-    const forced = options.only === name || index >= fromIndex;
+    const forced = options.only === name || index >= fromIndex || (options.force ?? []).includes(name);
     const upstreamHashes: Record<string, string> = {};
     for (const u of inputs.after) {
       const h = outputHashes.get(u) ?? state[u]?.outputHash;
       if (h !== undefined) upstreamHashes[u] = h;
       else if (selected) {
-        if (options.only) throw new UserError(`the ${name} stage needs the results of the ${u} stage, and there are none in ${outDir}. Run the whole pipeline first: hoarfrost run PIPELINE.`);
+        if (partial) throw new UserError(`the ${name} stage needs the results of the ${u} stage, and there are none in ${outDir}. ${whatToRun(u)}`);
         throw new Error(`stage ${name} reads ${u}, which has not run before it`);
       }
     }
@@ -124,8 +142,8 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
       if (record) outputHashes.set(name, record.outputHash);
       const stale = !record || record.inputHash !== inputHash;
       const report: StageReport = { name, status: 'not run', seconds: 0, inputHash: record?.inputHash, outputHash: record?.outputHash, summary: record ? `left as it was${stale ? ' (out of date with the pipeline file)' : ''}` : 'never run', warnings: [], outputs: record?.outputs ?? [] };
-      if (stale && index < STAGE_NAMES.indexOf(options.only as StageName)) {
-        report.warnings.push(`the ${name} stage is out of date with the pipeline file; --only ${options.only} uses its old results.`);
+      if (stale && index < lastChosen) {
+        report.warnings.push(`the ${name} stage is out of date with the pipeline file; ${asked} uses its old results.`);
       }
       reports.push(report);
       options.onStage?.(report);
@@ -148,6 +166,7 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
     writeState(outDir, state);
     const outcome = await impl.run(ctx);
     data.set(name, Promise.resolve(outcome.data));
+    ran[name] = outcome.data;
     const outputHash = await outputHashOf(name, outcome.outputs);
     if (outputHash === undefined) {
       const missing = outcome.outputs.filter((o) => !existsSync(join(outDir, o)));
@@ -161,7 +180,13 @@ export async function runStages<M extends StageDataMap>(pipeline: Pipeline, impl
     reports.push(report);
     options.onStage?.(report);
   }
-  return { outDir, stages: reports, state, startedAt, finishedAt: new Date().toISOString() };
+  return { outDir, stages: reports, data: ran, dataOf: ctx.upstream, state, startedAt, finishedAt: new Date().toISOString() };
+}
+
+/** What to run to give a stage results. */
+function whatToRun(stage: StageName): string {
+  if (stage === 'grid') return 'Compute the grid first: hoarfrost grid PIPELINE (or the whole pipeline: hoarfrost run PIPELINE).';
+  return 'Run the whole pipeline first: hoarfrost run PIPELINE.';
 }
 
 /** The terminal line of one stage: name, what happened, the time it took, the summary. */

@@ -15,7 +15,7 @@ import { relative, resolve } from 'node:path';
 import { cautionsFor } from './cautions.ts';
 import { buildFigures } from './figures/index.ts';
 import { reportHtml, type HtmlFigure } from './html.ts';
-import { writeMapImages } from './maps.ts';
+import { MAP_OUTPUTS, writeMapImages } from './maps.ts';
 import { outputPath } from './paths.ts';
 import { renderSvg, svgToPdf, svgToPng } from './render.ts';
 import { summaryCsv, summaryJson, summaryLatex, summaryTable } from './tables.ts';
@@ -78,7 +78,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
   if (input.map) {
     const mapsDir = outputPath(dir, REPORT_FOLDERS.maps);
     mkdirSync(mapsDir, { recursive: true });
-    maps = writeMapImages(mapsDir, input.map, input.observations.map, warnings);
+    maps = writeMapImages(input.map, input.observations.map, warnings, MAP_OUTPUTS, (name) => outputPath(mapsDir, `${name}.fits`));
     written.push(...maps);
   }
 

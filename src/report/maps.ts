@@ -1,27 +1,40 @@
 /**
  * FITS images of a map's fit results, one file per quantity, on the pixel
  * grid of the observed maps with their WCS keywords carried over, so the
- * images overlay the observations in any FITS viewer.
+ * images overlay the observations in any FITS viewer. The one writer of map
+ * images: the fit stage writes every image (fit/map_<image>.fits) and the
+ * report the five it shows (report/maps/<image>.fits), both through
+ * `writeMapImage`.
  */
 import type { MapFitJson, MapImageName } from '../fit/types.ts';
 import type { MapGeometry } from '../obs/types.ts';
 import { commentCards, writeFitsImages, type FitsCard, type FitsValue } from './fits.ts';
-import { outputPath } from './paths.ts';
 
-interface MapOutput {
-  image: MapImageName;
+interface MapImageInfo {
   bunit: string;
   description: string;
 }
 
-/** Units as FITS Standard 4.0 section 4.3 writes them (IAU style: `cm-3`). */
-export const MAP_OUTPUTS: MapOutput[] = [
-  { image: 'best_age_yr', bunit: 'yr', description: 'Best-fit chemical age' },
-  { image: 'best_density', bunit: 'cm-3', description: 'Best-fit density n_H' },
-  { image: 'best_chi2', bunit: '', description: 'Chi-square of the best fit' },
-  { image: 'density_width_dex', bunit: 'dex', description: 'Width log10(hi/lo) of the density interval' },
-  { image: 'age_width_dex', bunit: 'dex', description: 'Width log10(hi/lo) of the age interval' },
-];
+/** Unit and meaning of every map image; units as FITS Standard 4.0 section 4.3 writes them (IAU style: `cm-3`). */
+export const MAP_IMAGE_INFO: Record<MapImageName, MapImageInfo> = {
+  best_density: { bunit: 'cm-3', description: 'Best-fit density n_H' },
+  best_age_yr: { bunit: 'yr', description: 'Best-fit chemical age' },
+  best_chi2: { bunit: '', description: 'Chi-square of the best fit' },
+  reduced_chi2: { bunit: '', description: 'Chi-square of the best fit per degree of freedom' },
+  p_value: { bunit: '', description: 'p-value of the best fit' },
+  dof: { bunit: '', description: 'Degrees of freedom of the fit' },
+  density_lo: { bunit: 'cm-3', description: 'Lower bound of the density interval' },
+  density_hi: { bunit: 'cm-3', description: 'Upper bound of the density interval' },
+  age_lo_yr: { bunit: 'yr', description: 'Lower bound of the age interval' },
+  age_hi_yr: { bunit: 'yr', description: 'Upper bound of the age interval' },
+  density_width_dex: { bunit: 'dex', description: 'Width log10(hi/lo) of the density interval' },
+  age_width_dex: { bunit: 'dex', description: 'Width log10(hi/lo) of the age interval' },
+  at_edge: { bunit: '', description: '1 where the density or age interval reaches the grid edge' },
+  used_quantities: { bunit: '', description: 'Observed quantities used in the fit' },
+};
+
+/** The images the report writes, in this order. */
+export const MAP_OUTPUTS: readonly MapImageName[] = ['best_age_yr', 'best_density', 'best_chi2', 'density_width_dex', 'age_width_dex'];
 
 /** Keywords the writer sets itself, or that describe the input data rather than ours: not carried over. */
 const NOT_CARRIED = /^(SIMPLE|XTENSION|BITPIX|NAXIS\d*|EXTEND|PCOUNT|GCOUNT|TFIELDS|TFORM\d+|TTYPE\d+|TUNIT\d+|TNULL\d+|BSCALE|BZERO|BLANK|EXTNAME|END|BUNIT|DATAMIN|DATAMAX|CHECKSUM|DATASUM|COMMENT|HISTORY)$/;
@@ -56,24 +69,46 @@ export function carriedCards(wcs: MapGeometry['wcs'], warnings: string[]): FitsC
   return cards;
 }
 
-/** Write one FITS image per map output into `dir`; NaN marks pixels without a fit. */
-export function writeMapImages(dir: string, map: MapFitJson, geometry: MapGeometry | undefined, warnings: string[]): string[] {
-  const wcs = geometry ? carriedCards(geometry.wcs, warnings) : [];
-  if (geometry && (geometry.nx !== map.nx || geometry.ny !== map.ny)) {
-    throw new Error(`map results are ${map.nx} x ${map.ny} pixels but the observed maps ${geometry.nx} x ${geometry.ny}`);
+interface MapImage {
+  name: MapImageName;
+  /** One value per pixel, row-major (y * nx + x); NaN or null where the pixel has no fit. */
+  values: ArrayLike<number | null>;
+  nx: number;
+  ny: number;
+}
+
+/** Write one map image as a FITS file: BUNIT, the observed map's cleaned WCS cards, what the pixels mean. */
+function writeMapImage(file: string, image: MapImage, geometry: MapGeometry | undefined, warnings: string[]): void {
+  if (geometry && (geometry.nx !== image.nx || geometry.ny !== image.ny)) {
+    throw new Error(`map results are ${image.nx} x ${image.ny} pixels but the observed maps ${geometry.nx} x ${geometry.ny}`);
   }
+  const info = MAP_IMAGE_INFO[image.name];
+  const data = Float64Array.from({ length: image.values.length }, (_, i) => image.values[i] ?? Number.NaN);
+  const header: FitsCard[] = [
+    ...(info.bunit ? [{ key: 'BUNIT', value: info.bunit, comment: 'unit of the pixel values' }] : []),
+    ...(geometry ? carriedCards(geometry.wcs, warnings) : []),
+    { key: 'ORIGIN', value: 'hoarfrost', comment: 'written by' },
+    ...commentCards(`${info.description} per pixel; NaN where the pixel has no fit.`),
+  ];
+  writeFitsImages(file, [{ name: image.name.toUpperCase(), data, nx: image.nx, ny: image.ny, header }]);
+}
+
+/**
+ * Write the named images of a map, each to the file `fileOf` gives; notes on
+ * the carried header cards are reported once, not once per image.
+ */
+export function writeMapImages(map: MapFitJson, geometry: MapGeometry | undefined, warnings: string[], names: readonly MapImageName[], fileOf: (name: MapImageName) => string): string[] {
   const files: string[] = [];
-  for (const out of MAP_OUTPUTS) {
-    const values = map.images[out.image];
-    const data = Float64Array.from(values, (v) => (v === null ? Number.NaN : v));
-    const header: FitsCard[] = [
-      ...(out.bunit ? [{ key: 'BUNIT', value: out.bunit, comment: 'unit of the pixel values' }] : []),
-      ...wcs,
-      { key: 'ORIGIN', value: 'hoarfrost', comment: 'written by' },
-      ...commentCards(`${out.description} per pixel; NaN where the pixel has no fit.`),
-    ];
-    const file = outputPath(dir, `${out.image}.fits`);
-    writeFitsImages(file, [{ data, nx: map.nx, ny: map.ny, header }]);
+  const seen = new Set(warnings);
+  for (const name of names) {
+    const file = fileOf(name);
+    const notes: string[] = [];
+    writeMapImage(file, { name, values: map.images[name], nx: map.nx, ny: map.ny }, geometry, notes);
+    for (const n of notes) {
+      if (seen.has(n)) continue;
+      seen.add(n);
+      warnings.push(n);
+    }
     files.push(file);
   }
   return files;

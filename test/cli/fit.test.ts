@@ -1,16 +1,23 @@
 /**
  * `hoarfrost fit PIPELINE` end to end: a pipeline over an invented cloud, its
- * observations table, and a model store written with invented analytic
- * abundances (see test/fit/synthetic.ts), so no model has to run.
+ * observations table, and a model store of the pipeline's grid written with
+ * invented analytic abundances (see test/fit/synthetic.ts) and recorded by
+ * the grid stage, which finds it complete, so no model has to run.
  */
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { hostname } from 'node:os';
 import { join, resolve } from 'node:path';
+import Database from 'better-sqlite3';
 import { csvParseRows } from 'd3-dsv';
 import { describe, expect, it } from 'vitest';
-import { defaultConditions } from '../../src/config/conditions.ts';
+import { loadPipeline } from '../../src/config/pipeline.ts';
+import { planGrid } from '../../src/grid/plan.ts';
 import { ModelStore, type StoredModel } from '../../src/grid/store.ts';
+import { defaultStages } from '../../src/pipeline/default-stages.ts';
+import { runStages } from '../../src/pipeline/runner.ts';
+import { readState } from '../../src/pipeline/state.ts';
 import { analyticAbundances, logSpaced } from '../fit/synthetic.ts';
-import { runCli } from '../support/cli.ts';
+import { expectNoStack, runCli } from '../support/cli.ts';
 import { scratch } from '../support/scratch.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
@@ -27,21 +34,26 @@ const STARS: [string, number, number, number][] = [
   ['QM-3', 20, 5, 11],
 ];
 
-function writeStore(file: string): void {
-  mkdirSync(resolve(file, '..'), { recursive: true });
-  const store = ModelStore.open(file);
-  const models: StoredModel[] = DENSITIES.map((density, i) => {
-    const abundances = new Float64Array(TIMES.length * STORE_SPECIES.length);
-    TIMES.forEach((t, k) => abundances.set(analyticAbundances(density, t), k * STORE_SPECIES.length));
-    return { id: `p${i}`, hash: `h${i}`, conditions: { ...defaultConditions(), density }, status: 'ok', abundances };
+/** The store of the pipeline's grid, each model's abundances analytic in the five store species (0 for the rest of the network); then the grid stage records it. */
+async function writeStore(pipelineFile: string): Promise<void> {
+  const pipeline = loadPipeline(pipelineFile);
+  const plan = planGrid(pipeline);
+  const timesYr = plan.shared.options.timesYr;
+  const columns = STORE_SPECIES.map((s) => plan.species.indexOf(s));
+  const store = ModelStore.open(join(plan.storeDir, 'models.sqlite'));
+  const models: StoredModel[] = plan.points.map((p) => {
+    const abundances = new Float64Array(timesYr.length * plan.species.length);
+    timesYr.forEach((t, k) => analyticAbundances(p.conditions.density, t).forEach((x, j) => (abundances[k * plan.species.length + columns[j]] = x)));
+    return { id: p.id, hash: p.hash, conditions: p.conditions, status: 'ok', abundances };
   });
-  store.setGrid({ gridHash: 'g', species: STORE_SPECIES, timesYr: Float64Array.from(TIMES), points: models.map((m, index) => ({ id: m.id, hash: m.hash, index })), shard: '', toolVersion: '0.1.0', networkHash: 'n' });
+  store.setGrid({ gridHash: plan.gridHash, species: plan.species, timesYr, points: plan.points, shard: '', toolVersion: plan.shared.toolVersion, networkHash: plan.shared.networkHash });
   store.write(models, 'run-1');
   store.close();
+  await runStages(pipeline, defaultStages(), { stages: ['grid'], workers: 1 });
 }
 
 /** A project folder: observations (exact columns from the true models, stated errors), column mapping, pipeline, store. */
-function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?: boolean; names?: string[] } = {}): string {
+async function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?: boolean; names?: string[] } = {}): Promise<string> {
   const dir = scratch('hoarfrost-fit-cli-');
   const species = ['H2O(s)', 'CO(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)'];
   const col = (s: string) => s.replace('(s)', '_ice');
@@ -79,15 +91,15 @@ function project(options: { fitSpecies?: string[]; waterLimit?: boolean; store?:
     '  model_sigma_dex: 0.1',
   ];
   writeFileSync(join(dir, 'pipeline.yaml'), pipeline.join('\n') + '\n');
-  if (options.store !== false) writeStore(join(dir, 'out', 'store', 'models.sqlite'));
+  if (options.store !== false) await writeStore(join(dir, 'pipeline.yaml'));
   return dir;
 }
 
 const hoarfrost = (dir: string, args: string[] = []) => runCli(['fit', join(dir, 'pipeline.yaml'), ...args], dir);
 
 describe('hoarfrost fit', () => {
-  it('prints the best fits with intervals and writes the tables', () => {
-    const dir = project();
+  it('prints the best fits with intervals, writes the tables and records the fit stage', async () => {
+    const dir = await project();
     const r = hoarfrost(dir);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
@@ -105,12 +117,13 @@ describe('hoarfrost fit', () => {
       expect(r.stdout).toMatch(new RegExp(`^${name}\\s`, 'm'));
     });
     for (const f of ['fit.json', 'profiles.json', 'intervals.csv', 'residuals.csv']) expect(existsSync(join(dir, 'out', 'fit', f))).toBe(true);
+    expect(Object.keys(readState(join(dir, 'out'))).sort()).toEqual(['fit', 'grid', 'observe']);
   });
 
-  it('writes sightline names that a spreadsheet would take for formulas as text (OWASP CSV injection; issue 16 item 7)', () => {
+  it('writes sightline names that a spreadsheet would take for formulas as text (OWASP CSV injection)', async () => {
     // The reader trims names, so the tab of '\t+QM-3' is gone by then; the writer's own test covers a leading tab.
     const names = ['=1+1', '@QM-2', '\t+QM-3'];
-    const dir = project({ names });
+    const dir = await project({ names });
     const r = hoarfrost(dir);
     expect(r.code, r.stderr).toBe(0);
     const expected = ['=1+1', '@QM-2', '+QM-3'];
@@ -126,24 +139,54 @@ describe('hoarfrost fit', () => {
     for (const line of best.slice(1, 4)) for (const cell of line.split(',').slice(1)) expect(cell).not.toMatch(/^["']/);
   });
 
-  it('a species the store lacks: a clear error, exit 2, no stack', () => {
-    const r = hoarfrost(project({ fitSpecies: ['CO(s)', 'NH3(s)'] }));
-    expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/NH3\(s\)/);
-    expect(r.stderr).toMatch(/model store/);
-    expect(r.stderr).not.toMatch(/internal error|\n\s+at /);
-  });
-
-  it('ratios to a reference with only limits: a clear error', () => {
-    const r = hoarfrost(project({ waterLimit: true }));
+  it('ratios to a reference with only limits: a clear error', async () => {
+    const r = hoarfrost(await project({ waterLimit: true }));
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(/H2O\(s\).*only as a limit/);
     expect(r.stderr).not.toMatch(/internal error/);
   });
 
-  it('no store yet: says which command makes it', () => {
-    const r = hoarfrost(project({ store: false }));
+  it('no grid yet: says which command makes it', async () => {
+    const r = hoarfrost(await project({ store: false }));
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/no model store at .*hoarfrost grid/);
+    expect(r.stderr).toMatch(/the fit stage needs the results of the grid stage, and there are none in .*hoarfrost grid PIPELINE/);
+  });
+
+  // Issue 16: the fit and the report use exactly the finished grid the pipeline plans, or say what to run.
+  const storeOf = (dir: string) => join(dir, 'out', 'store', 'models.sqlite');
+
+  it('refuses a store that lacks models of the grid, and so does the report', async () => {
+    const dir = await project();
+    expect(hoarfrost(dir).code).toBe(0);
+    const db = new Database(storeOf(dir));
+    db.prepare('DELETE FROM models WHERE id IN (SELECT id FROM models LIMIT 2)').run();
+    db.close();
+    // The report first: a refused fit leaves no fit results for the report to be refused on.
+    for (const verb of ['report', 'fit']) {
+      const r = runCli([verb, join(dir, 'pipeline.yaml')], dir);
+      expect(r.code, r.stdout).toBe(2);
+      expectNoStack(r.stderr);
+      expect(r.stderr).toMatch(/the model store lacks 2 of the 7 models the pipeline plans.*hoarfrost grid/);
+    }
+  });
+
+  it('refuses a store of another grid (an axis narrowed since)', async () => {
+    const dir = await project();
+    const file = join(dir, 'pipeline.yaml');
+    writeFileSync(file, readFileSync(file, 'utf8').replace(/density: \[[^\]]*\]/, `density: [${DENSITIES.slice(0, 4).join(', ')}]`));
+    const r = hoarfrost(dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/the model store holds another grid than the pipeline plans.*hoarfrost grid/);
+  });
+
+  it('refuses while a grid is computing into the store', async () => {
+    const dir = await project();
+    // This test's own process stands for the running grid: alive, on this host.
+    writeFileSync(`${storeOf(dir)}.running`, JSON.stringify({ pid: process.pid, host: hostname(), started: new Date().toISOString() }));
+    const r = hoarfrost(dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(new RegExp(`a grid \\(process ${process.pid}, started .*\\) is computing into the model store`));
+    expect(existsSync(join(dir, 'out', 'fit', 'best_fits.csv'))).toBe(false);
   });
 });
+

@@ -13,7 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadPipeline } from '../../src/config/pipeline.ts';
 import { loadCandidates } from '../../src/grid/candidates.ts';
 import { runGrid } from '../../src/grid/run.ts';
-import { storeContentHash } from '../../src/grid/status.ts';
+import { storeContentHash } from '../../src/grid/store.ts';
 import { BIN, scratch, writePipeline } from '../grid/helpers.ts';
 import { needReference, referenceMissing, SLURM } from '../support/references.ts';
 

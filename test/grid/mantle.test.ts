@@ -40,7 +40,7 @@ describe('grid with grain.mantle on', () => {
       writeFileSync(file, `name: t\nnetwork: ${TINY_NETWORK}\ninitial: { H2: 0.5, CO: 1.0e-4, CO(mantle): 1.0e-5 }\ngrain: { mantle: ${mantle} }\n`);
       return loadPipeline(file);
     };
-    expect(planGrid(write(true)).shared.initial['CO(mantle)']).toBe(1e-5);
+    expect(planGrid(write(true)).shared.options.initial['CO(mantle)']).toBe(1e-5);
     expect(caught(() => planGrid(write(false))).message).toMatch(/needs species 'CO\(mantle\)'/);
     rmSync(dir, { recursive: true, force: true });
   });

@@ -7,7 +7,8 @@ import { loadCandidates } from '../../src/grid/candidates.ts';
 import { findShardStores, mergeShards } from '../../src/grid/merge.ts';
 import { mainStoreFile, planGrid, shardStoreFile } from '../../src/grid/plan.ts';
 import { runGrid } from '../../src/grid/run.ts';
-import { gridStatus, storeContentHash } from '../../src/grid/status.ts';
+import { gridStatus } from '../../src/grid/status.ts';
+import { storeContentHash } from '../../src/grid/store.ts';
 import { ModelStore } from '../../src/grid/store.ts';
 import { caught, scratch, writePipeline } from './helpers.ts';
 

@@ -1,19 +1,16 @@
 /**
- * `hoarfrost fit PIPELINE`: score every (model, time) candidate of the
- * pipeline's model store against its observations, write the fit's tables
- * and JSON under OUT/fit/ (and FITS images for a map), and print the best
- * fits with their 68.3% intervals, every warning, and the model cautions.
+ * `hoarfrost fit PIPELINE`: the observe and fit stages of `hoarfrost run`
+ * (the observe stage skipped when unchanged, the fit always run, both
+ * recorded): score every (model, time) candidate of the pipeline's model
+ * store against its observations, write the fit's tables and JSON under
+ * OUT/fit/ (and FITS images for a map), and print the best fits with their
+ * 68.3% intervals, every warning, and the model cautions.
  */
-import { existsSync, mkdirSync } from 'node:fs';
-import { writeOutput } from '../../config/write.ts';
-import { dirname, join, relative } from 'node:path';
+import { relative } from 'node:path';
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
-import type { Pipeline } from '../../config/pipeline.ts';
 import { TABLE_LEVEL } from '../../fit/regions.ts';
-import type { FitStageOutput } from '../../fit/stage.ts';
-import type { FitStageResult, ParameterInterval, SightlineFit } from '../../fit/types.ts';
-import type { ObservationSet, ObservedQuantity } from '../../obs/types.ts';
+import type { FitStageResult, MapFitJson, ParameterInterval, SightlineFit } from '../../fit/types.ts';
 import type { CommandContext } from '../main.ts';
 
 /** Sightlines printed before the rest are counted (the CSV holds them all). */
@@ -44,7 +41,7 @@ function intervalText(fit: SightlineFit, parameter: string, best: number): strin
 }
 
 /** The printed summary: best fits with 68.3% intervals, joint fits, warnings, cautions. */
-export function formatFitSummary(result: FitStageResult, output: FitStageOutput, maxRows = DEFAULT_ROWS, held: Readonly<Record<string, Readonly<Record<string, number>>>> = {}): string {
+export function formatFitSummary(result: FitStageResult, map: Pick<MapFitJson, 'nx' | 'ny' | 'fittedPixels' | 'level'> | undefined, maxRows = DEFAULT_ROWS, held: Readonly<Record<string, Readonly<Record<string, number>>>> = {}): string {
   const out: string[] = [];
   const heldSets = Object.values(held);
   const heldEverywhere = heldSets.length > 0 ? result.fittedParameters.filter((p) => heldSets.every((h) => p in h)) : [];
@@ -52,8 +49,8 @@ export function formatFitSummary(result: FitStageResult, output: FitStageOutput,
   const levels = result.levels.map((l) => `${(l.level * 100).toFixed(1)}% (Delta chi2 ${l.deltaChi2.toFixed(2)})`).join(', ');
   const heldText = heldEverywhere.length > 0 ? `; held at each sightline's own value: ${heldEverywhere.join(', ')}` : '';
   out.push(`${result.nCandidates} candidates; fitted parameters: ${fitted.join(', ')}${heldText}; regions for ${result.levels[0].parametersOfInterest} parameters of interest at ${levels}; model floor ${result.modelSigmaDex} dex.`);
-  if (output.map) {
-    const m = output.map;
+  if (map) {
+    const m = map;
     out.push(`Map of ${m.nx} x ${m.ny} pixels: ${m.fittedPixels} fitted. Images of best density, best age, chi2, p-value and ${(m.level.level * 100).toFixed(1)}% interval widths are in fit/map_*.fits and fit/map.json.`);
   } else {
     const others = fitted.filter((p) => p !== 'density' && p !== 'age_yr');
@@ -86,81 +83,40 @@ export function formatFitSummary(result: FitStageResult, output: FitStageOutput,
   return out.join('\n');
 }
 
-function requireSections(pipeline: Pipeline) {
-  const { observations, fit } = pipeline.config;
-  if (!observations) throw new UserError('the pipeline has no `observations:` section; `hoarfrost fit` needs one (give at least `file:`).', { file: pipeline.file });
-  if (!fit) throw new UserError('the pipeline has no `fit:` section; name the quantities to fit under `fit: quantities:`.', { file: pipeline.file });
-  return { observations, fit };
-}
-
-function writeText(outDir: string, rel: string, data: string | Uint8Array): void {
-  const file = join(outDir, rel);
-  mkdirSync(dirname(file), { recursive: true });
-  writeOutput(file, data);
-}
-
 export interface FitCommandResult {
-  output: FitStageOutput;
+  result: FitStageResult;
+  map?: MapFitJson;
   /** Grid parameters held per sightline (model A_V tied to the sightlines). */
   held: Record<string, Record<string, number>>;
   outDir: string;
   written: string[];
+  warnings: string[];
 }
 
-/** Reads the pipeline's observations and model store, fits, and writes OUT/fit/. */
+/** Runs the observe stage (when changed) and the fit stage of the pipeline, on the grid stage's recorded store. */
 export async function runFitCommand(pipelineFile: string): Promise<FitCommandResult> {
   const { loadPipeline } = await import('../../config/pipeline.ts');
-  const { loadNetwork } = await import('../../chem/network.ts');
-  const { loadObservations, deriveQuantities } = await import('../../obs/index.ts');
-  const { loadCandidates } = await import('../../grid/candidates.ts');
-  const { mainStoreFile } = await import('../../grid/plan.ts');
   const { heldParameters } = await import('../../pipeline/held.ts');
-  const { outputFolder } = await import('../../pipeline/runner.ts');
-  const { runFitStage } = await import('../../fit/stage.ts');
-  const { FIT_OUTPUT_FILES, MAP_IMAGE_NAMES } = await import('../../fit/types.ts');
-
+  const { runStages } = await import('../../pipeline/runner.ts');
+  const { defaultStages } = await import('../../pipeline/default-stages.ts');
   const pipeline = loadPipeline(pipelineFile);
-  const sections = requireSections(pipeline);
-  const outDir = outputFolder(pipeline);
-  const storeFile = mainStoreFile({ storeDir: join(outDir, 'store') });
-  if (!existsSync(storeFile)) {
-    throw new UserError(`no model store at ${storeFile}. Compute the grid first: \`hoarfrost grid ${pipelineFile}\` (or \`hoarfrost run ${pipelineFile}\`).`, { file: pipeline.file });
-  }
-  const network = loadNetwork(pipeline.resolvePath(pipeline.config.network));
-  const observations: ObservationSet = loadObservations(sections.observations, pipeline.dir, new Set(network.species.map((s) => s.name)));
-  const derived = deriveQuantities(observations, sections.observations, sections.fit.quantities);
-  const quantities: ObservedQuantity[] = derived.quantities;
-  observations.warnings.push(...derived.warnings);
-  const species = new Set<string>();
-  for (const q of quantities) {
-    species.add(q.numerator);
-    if (q.denominator) species.add(q.denominator);
-  }
-  const table = loadCandidates(storeFile, [...species].sort());
-  const held = heldParameters(pipeline, observations) ?? {};
-  const output = runFitStage({
-    table,
-    section: sections.fit,
-    observations,
-    quantities,
-    held,
-    source: { file: pipeline.file, lineOf: pipeline.yaml.lineOf },
+  const run = await runStages(pipeline, defaultStages(), {
+    stages: ['observe', 'fit'],
+    force: ['fit'],
+    asked: 'hoarfrost fit',
+    commandLine: ['hoarfrost', ...process.argv.slice(2)],
   });
-  const written: string[] = [];
-  for (const [rel, text] of Object.entries(output.files)) {
-    writeText(outDir, rel, text);
-    written.push(rel);
-  }
-  if (output.map) {
-    const { encodeFits } = await import('../../report/fits.ts');
-    for (const name of MAP_IMAGE_NAMES) {
-      const rel = `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`;
-      const bytes = encodeFits([{ type: 'image', name: name.toUpperCase(), data: output.map.images[name], nx: output.map.nx, ny: output.map.ny, header: { ...(observations.map?.wcs ?? {}) } }]);
-      writeText(outDir, rel, bytes);
-      written.push(rel);
-    }
-  }
-  return { output, held, outDir, written: written.sort() };
+  const fit = run.data.fit!;
+  const { observations } = await run.dataOf('observe');
+  return {
+    result: fit.result,
+    map: fit.map,
+    held: heldParameters(pipeline, observations) ?? {},
+    outDir: run.outDir,
+    written: run.stages.find((r) => r.name === 'fit')!.outputs,
+    // The fit result's warnings are in its summary; these are the rest (an out-of-date grid, the observations, the map images).
+    warnings: run.stages.flatMap((r) => r.warnings).filter((w) => !fit.result.warnings.includes(w)),
+  };
 }
 
 export function register(program: Command, ctx: CommandContext): void {
@@ -174,8 +130,9 @@ export function register(program: Command, ctx: CommandContext): void {
       return n;
     })
     .action(async (file: string, opts: Options) => {
-      const { output, held, outDir, written } = await runFitCommand(file);
-      ctx.stdout.write(`${formatFitSummary(output.result, output, opts.rows ?? DEFAULT_ROWS, held)}\n\n`);
+      const { result, map, held, outDir, written, warnings } = await runFitCommand(file);
+      for (const w of warnings) ctx.stderr.write(`hoarfrost: warning: ${w}\n`);
+      ctx.stdout.write(`${formatFitSummary(result, map, opts.rows ?? DEFAULT_ROWS, held)}\n\n`);
       const rel = relative(process.cwd(), outDir) || '.';
       ctx.stdout.write(`written under ${rel}: ${written.join(', ')}\n`);
     });

@@ -2,14 +2,17 @@
  * `hoarfrost grid PIPELINE [--workers N] [--shard K/N] [--status] [--retry-failed]`:
  * compute the grid's missing and stale models on worker threads, into
  * OUT/store/models.sqlite (or OUT/store/shard-K-of-N.sqlite for a shard).
+ * The whole grid runs as the grid stage of `hoarfrost run` (after the observe
+ * stage when the model A_V is tied to the sightlines) and is recorded as it;
+ * a shard and --status plan the grid as the stage does and leave the stage
+ * state alone.
  * Ctrl-C once lets the models in flight finish and stops; twice stops at
  * once. SIGTERM (a batch system's time limit) stops at once. Finished models
  * are kept either way, and a rerun computes only what is left.
  */
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
-import type { Pipeline } from '../../config/pipeline.ts';
-import type { GridPlan } from '../../grid/plan.ts';
+import type { GridProgress, GridRunResult } from '../../grid/run.ts';
 import type { CommandContext } from '../main.ts';
 
 /** Exit codes after a stop by signal: 128 + the signal number (shell convention). */
@@ -36,12 +39,14 @@ export function register(program: Command, ctx: CommandContext): void {
       const { loadPipeline } = await import('../../config/pipeline.ts');
       const { parseShard, shardLabel } = await import('../../grid/shard.ts');
       const { mainStoreFile, shardStoreFile, shardPoints } = await import('../../grid/plan.ts');
+      const { standaloneGridPlan, unusedRuleWarnings } = await import('../../pipeline/default-stages.ts');
       const shard = opts.shard === undefined ? undefined : parseShard(opts.shard);
       const pipeline = loadPipeline(file);
-      const plan = await loadGridPlan(pipeline);
-      for (const i of plan.grid.unusedRules) ctx.stderr.write(`hoarfrost: warning: exclusion rule ${i + 1} matches no grid point.\n`);
+      const warn = (w: string) => ctx.stderr.write(`hoarfrost: warning: ${w}\n`);
 
       if (opts.status) {
+        const plan = await standaloneGridPlan(pipeline);
+        for (const w of unusedRuleWarnings(plan)) warn(w);
         const { gridStatus } = await import('../../grid/status.ts');
         const { findShardStores } = await import('../../grid/merge.ts');
         const storeFile = shard ? shardStoreFile(plan, shard) : mainStoreFile(plan);
@@ -70,7 +75,7 @@ export function register(program: Command, ctx: CommandContext): void {
         return;
       }
 
-      const { runGrid } = await import('../../grid/run.ts');
+      const { computeGrid, defaultStages, GridStopped } = await import('../../pipeline/default-stages.ts');
       const { ProgressPrinter, formatDuration } = await import('../../grid/progress.ts');
       const progress = new ProgressPrinter(ctx.stderr);
       const drain = new AbortController();
@@ -90,49 +95,53 @@ export function register(program: Command, ctx: CommandContext): void {
         stoppedBy ??= 'SIGTERM';
         abort.abort();
       };
+      const gridOptions = {
+        retryFailed: opts.retryFailed,
+        signals: { drain: drain.signal, abort: abort.signal },
+        onStart: (i: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number }) =>
+          progress.message(
+            `grid${shard ? ` shard ${shardLabel(shard)}` : ''}: ${i.share} models, ${i.upToDate} already in ${i.storeFile}, ${i.todo} to compute${i.stale > 0 ? ` (${i.stale} stale)` : ''}${i.todo > 0 ? ` on ${i.workers} worker${i.workers > 1 ? 's' : ''}` : ''}`,
+          ),
+        onProgress: (p: GridProgress) => progress.update(p),
+      };
       process.on('SIGINT', onInt);
       process.on('SIGTERM', onTerm);
+      let r: GridRunResult;
       try {
-        const r = await runGrid(pipeline, {
-          plan,
-          workers: opts.workers,
-          shard,
-          retryFailed: opts.retryFailed,
-          drainSignal: drain.signal,
-          abortSignal: abort.signal,
-          onStart: (i) =>
-            progress.message(
-              `grid${shard ? ` shard ${shardLabel(shard)}` : ''}: ${i.share} models, ${i.upToDate} already in ${i.storeFile}, ${i.todo} to compute${i.stale > 0 ? ` (${i.stale} stale)` : ''}${i.todo > 0 ? ` on ${i.workers} worker${i.workers > 1 ? 's' : ''}` : ''}${i.note ? ` (${i.note})` : ''}`,
-            ),
-          onProgress: (p) => progress.update(p),
-        });
-        progress.finish();
-        const reasons = Object.entries(r.failureReasons).sort((a, b) => b[1] - a[1]);
-        const lines = [
-          `${r.interrupted ? 'stopped' : 'done'}: ${r.computed} computed (${r.ok} ok, ${r.failed} failed) in ${formatDuration(r.wallMs)}; ${r.upToDate} were up to date; ${r.remaining} left.`,
-          ...reasons.map(([reason, n]) => `  failed ${n}x: ${reason}`),
-        ];
-        if (r.interrupted) lines.push(`rerun \`hoarfrost grid ${file}${shard ? ` --shard ${shardLabel(shard)}` : ''}\` to compute the rest.`);
-        ctx.stdout.write(lines.join('\n') + '\n');
-        if (r.interrupted) ctx.setExitCode(stoppedBy === 'SIGTERM' ? EXIT_TERMINATED : EXIT_INTERRUPTED);
+        if (shard) {
+          const plan = await standaloneGridPlan(pipeline);
+          for (const w of unusedRuleWarnings(plan)) warn(w);
+          r = await computeGrid(pipeline, plan, { ...gridOptions, shard, workers: opts.workers, progress: (line) => progress.message(line) });
+        } else {
+          const { runStages } = await import('../../pipeline/runner.ts');
+          const { needsSightlines } = await import('../../grid/expand.ts');
+          const run = await runStages(pipeline, defaultStages({ grid: gridOptions }), {
+            stages: needsSightlines(pipeline.config.conditions) ? ['observe', 'grid'] : ['grid'],
+            force: ['grid'],
+            workers: opts.workers,
+            asked: 'hoarfrost grid',
+            commandLine: ['hoarfrost', ...process.argv.slice(2)],
+            progress: (line) => progress.message(line),
+            onStage: (report) => report.warnings.forEach(warn),
+          });
+          r = run.data.grid!.run!;
+        }
+      } catch (e) {
+        if (!(e instanceof GridStopped)) throw e;
+        r = e.result;
       } finally {
         process.off('SIGINT', onInt);
         process.off('SIGTERM', onTerm);
       }
+      progress.finish();
+      const reasons = Object.entries(r.failureReasons).sort((a, b) => b[1] - a[1]);
+      const stopped = r.interrupted || r.remaining > 0;
+      const lines = [
+        `${stopped ? 'stopped' : 'done'}: ${r.computed} computed (${r.ok} ok, ${r.failed} failed) in ${formatDuration(r.wallMs)}; ${r.upToDate} were up to date; ${r.remaining} left.`,
+        ...reasons.map(([reason, n]) => `  failed ${n}x: ${reason}`),
+      ];
+      if (stopped) lines.push(`rerun \`hoarfrost grid ${file}${shard ? ` --shard ${shardLabel(shard)}` : ''}\` to compute the rest.`);
+      ctx.stdout.write(lines.join('\n') + '\n');
+      if (stopped) ctx.setExitCode(stoppedBy === 'SIGTERM' ? EXIT_TERMINATED : EXIT_INTERRUPTED);
     });
-}
-
-/**
- * The grid plan of a pipeline, with the observed sightlines' A_V read when
- * visual_extinction is tied to them (the grid room does not read
- * observations itself). Shared by the grid, slurm and merge commands.
- */
-export async function loadGridPlan(pipeline: Pipeline): Promise<GridPlan> {
-  const { planGrid } = await import('../../grid/plan.ts');
-  const { needsSightlines } = await import('../../grid/expand.ts');
-  const observations = pipeline.config.observations;
-  if (!observations || !needsSightlines(pipeline.config.conditions)) return planGrid(pipeline);
-  const { loadObservations } = await import('../../obs/load.ts');
-  const set = loadObservations(observations, pipeline.dir);
-  return planGrid(pipeline, set.sightlines.flatMap((s) => (s.av === undefined ? [] : [s.av])));
 }

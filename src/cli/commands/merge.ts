@@ -15,10 +15,10 @@ export function register(program: Command, ctx: CommandContext): void {
     .argument('[stores...]', 'shard store files (default: every shard-K-of-N.sqlite in the output store folder)')
     .action(async (file: string, stores: string[]) => {
       const { loadPipeline } = await import('../../config/pipeline.ts');
-      const { loadGridPlan } = await import('./grid.ts');
+      const { standaloneGridPlan } = await import('../../pipeline/default-stages.ts');
       const { mergeShards } = await import('../../grid/merge.ts');
       const { resolve } = await import('node:path');
-      const plan = await loadGridPlan(loadPipeline(file));
+      const plan = await standaloneGridPlan(loadPipeline(file));
       const r = mergeShards(plan, stores.length > 0 ? stores.map((s) => resolve(s)) : undefined);
       const lines = [
         `merged ${r.shardFiles.length} shard stores into ${r.storeFile}: ${r.copied} models copied, ${r.alreadyPresent} already there.`,

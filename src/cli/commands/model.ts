@@ -56,39 +56,26 @@ export function register(program: Command, ctx: CommandContext): void {
 
 async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandContext): Promise<void> {
   const { loadPipeline } = await import('../../config/pipeline.ts');
-  const { loadNetwork } = await import('../../chem/network.ts');
   const { compile } = await import('../../chem/system.ts');
   const { YEAR_SECONDS } = await import('../../chem/constants.ts');
-  const { loadInitialComposition, outputTimesYr, runModel, initialState } = await import('../../model/run.ts');
-  const { grainOptions } = await import('../../grid/plan.ts');
+  const { buildModelSetup, modelInput, runModel, initialState } = await import('../../model/run.ts');
 
   const pipeline = loadPipeline(file);
   const cfg = pipeline.config;
   const conditions = resolveConditions(pipeline, opts.set ?? []);
-  const network = loadNetwork(pipeline.resolvePath(cfg.network));
-  const initialNotes: string[] = [];
-  const grain = grainOptions(pipeline);
+  const setup = buildModelSetup(pipeline, { massActionOnly: opts.massActionOnly, noSelfShielding: opts.selfShielding === false });
+  const { network } = setup;
   const { modelNetwork, outputSpeciesNames } = await import('../../chem/mantle.ts');
-  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
-  const initial = loadInitialComposition(cfg.initial, pipeline.dir, modelNetwork(network, grain), initialNotes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
-  const timesYr = outputTimesYr(cfg.times.start_yr, cfg.times.end_yr, cfg.times.count);
-  const figureSpecies = chooseSpecies(opts.species, outputSpeciesNames(network, grain));
+  const initialNotes = setup.notes;
+  const input = modelInput(setup, conditions);
+  const figureSpecies = chooseSpecies(opts.species, outputSpeciesNames(network, input.grain));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');
 
-  const input = {
-    network,
-    conditions,
-    grain,
-    initial,
-    timesYr,
-    solver: { rtol: cfg.solver.rtol, atol: cfg.solver.atol, maxSteps: cfg.solver.max_steps },
-    massActionOnly: opts.massActionOnly ?? false,
-    selfShielding: (opts.selfShielding ?? true) && cfg.photochemistry.h2_self_shielding,
-  };
   let emittedNote: string | undefined;
   if (opts.emitSystem) {
-    const system = compile(network, conditions, grain, { massActionOnly: input.massActionOnly, selfShielding: input.selfShielding });
-    const emitted = system.emitSystem(initialState(input), timesYr.map((t) => t * YEAR_SECONDS));
+    const system = compile(network, conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding });
+    // The model's own species (with the mantle twins when the three-phase ice is on).
+    const emitted = system.emitSystem(initialState({ network: modelNetwork(network, input.grain), initial: input.initial }), input.timesYr.map((t) => t * YEAR_SECONDS));
     writeOutput(opts.emitSystem, JSON.stringify(emitted) + '\n');
     emittedNote = `${opts.emitSystem} (mass-action part; ${emitted.omitted.length === 0 ? 'nothing left out' : `${emitted.omitted.length} terms that are not mass action left out, each named with why under "omitted"`})`;
   }
@@ -106,7 +93,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     conditions,
     grain: cfg.grain,
     mass_action_only: input.massActionOnly,
-    self_shielding: input.selfShielding,
+    self_shielding: input.photochemistry?.h2SelfShielding,
     status: result.status,
     failure: result.failure ?? null,
     species: result.species,
@@ -114,7 +101,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     abundances: Object.fromEntries(result.species.map((s, i) => [s, Array.from({ length: reached }, (_, k) => result.abundances[k * result.species.length + i])])),
     conservation: result.conservation,
     solver: result.stats,
-    initial: Object.fromEntries(Object.entries(initial)),
+    initial: Object.fromEntries(Object.entries(input.initial)),
     notes: [...initialNotes, ...result.clampNotes, ...(result.skippedNotes ?? [])],
     wall_ms: result.wallMs,
   };

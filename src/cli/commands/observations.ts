@@ -2,7 +2,10 @@
  * `hoarfrost observations FILE|PIPELINE`: read an observation file (or the
  * one a pipeline names, with the pipeline's settings) and print what was
  * understood: sightlines, A_V, column densities and limits, the abundances
- * and ratios derived from them, and every warning. Nothing is run.
+ * and ratios derived from them, and every warning. No model is run. A
+ * pipeline with a `fit:` section is read by the observe stage of `hoarfrost
+ * run`, which is recorded; without one, or with --format or --network, the
+ * file is read by the same reader and every quantity it allows is shown.
  */
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
@@ -122,6 +125,14 @@ export function register(program: Command, ctx: CommandContext): void {
         const { loadPipeline } = await import('../../config/pipeline.ts');
         const p = loadPipeline(file);
         if (!p.config.observations) throw new UserError("the pipeline has no 'observations' section.", { file, field: 'observations' });
+        if (p.config.fit && opts.format === undefined && typeof opts.network !== 'string' && opts.network !== false) {
+          const { runStages } = await import('../../pipeline/runner.ts');
+          const { defaultStages } = await import('../../pipeline/default-stages.ts');
+          const run = await runStages(p, defaultStages(), { stages: ['observe'], force: ['observe'], asked: 'hoarfrost observations', commandLine: ['hoarfrost', ...process.argv.slice(2)] });
+          const { observations, quantities } = run.data.observe!;
+          printSet(observations, p.config.observations, quantities, run.stages.find((r) => r.name === 'observe')!.warnings, opts, ctx);
+          return;
+        }
         section = p.config.observations;
         if (opts.format) section = { ...section, format: opts.format as ObservationsSection['format'] };
         baseDir = p.dir;
@@ -172,11 +183,15 @@ export function register(program: Command, ctx: CommandContext): void {
         if (!hasAv) warnings.push('no A_V or A_K: abundances relative to H not derived (ratios need none).');
         if (!hasRef) warnings.push(`the reference species ${section.reference} is not in the file: no ratios derived (set 'reference' in the pipeline's observations section).`);
       }
-      if (opts.json) {
-        ctx.stdout.write(`${JSON.stringify({ observations: { ...set, warnings: undefined }, quantities, warnings }, null, 2)}\n`);
-        return;
-      }
-      ctx.stdout.write(`${describeSet(set, section, quantities, opts.rows ?? DEFAULT_ROWS)}\n`);
-      if (warnings.length > 0) ctx.stdout.write(`\nWarnings (${warnings.length}):\n${warnings.map((w) => `  - ${w.replace(/\n/g, '\n    ')}`).join('\n')}\n`);
+      printSet(set, section, quantities, warnings, opts, ctx);
     });
+}
+
+function printSet(set: ObservationSet, section: ObservationsSection, quantities: ObservedQuantity[], warnings: readonly string[], opts: Options, ctx: CommandContext): void {
+  if (opts.json) {
+    ctx.stdout.write(`${JSON.stringify({ observations: { ...set, warnings: undefined }, quantities, warnings }, null, 2)}\n`);
+    return;
+  }
+  ctx.stdout.write(`${describeSet(set, section, quantities, opts.rows ?? DEFAULT_ROWS)}\n`);
+  if (warnings.length > 0) ctx.stdout.write(`\nWarnings (${warnings.length}):\n${warnings.map((w) => `  - ${w.replace(/\n/g, '\n    ')}`).join('\n')}\n`);
 }

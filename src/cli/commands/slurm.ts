@@ -31,13 +31,13 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--cpus <n>', `CPUs per task, one worker thread each (default ${DEFAULT_CPUS})`, parseCount('--cpus'))
     .action(async (file: string, opts: { shards: number; partition?: string; time?: string; cpus?: number }) => {
       const { loadPipeline } = await import('../../config/pipeline.ts');
-      const { loadGridPlan } = await import('./grid.ts');
+      const { standaloneGridPlan } = await import('../../pipeline/default-stages.ts');
       const { slurmScript, checkSlurmOptions, HOARFROST_BIN } = await import('../../grid/slurm.ts');
       const cpus = opts.cpus ?? DEFAULT_CPUS;
       checkSlurmOptions({ shards: opts.shards, cpus, time: opts.time, partition: opts.partition });
       const pipeline = loadPipeline(file);
       // Expanding the grid here catches a bad pipeline before anything is queued.
-      const plan = await loadGridPlan(pipeline);
+      const plan = await standaloneGridPlan(pipeline);
       if (opts.shards > plan.points.length) {
         throw new UserError(`--shards ${opts.shards} is more than the ${plan.points.length} points of the grid; use at most ${plan.points.length}.`);
       }

@@ -1,0 +1,77 @@
+/**
+ * The model setup: the network and every model option of a pipeline (grain
+ * and photochemistry switches, initial composition, output times, solver
+ * settings, mass-action-only), built once from the loaded pipeline. It alone
+ * feeds `runModel`, the grid's workers, the model content hash and the store,
+ * so an option added to ModelOptions (or to a section it mirrors) reaches all
+ * of them without a second list to keep.
+ */
+import { loadNetwork } from '../chem/network.ts';
+import type { Network } from '../chem/network-types.ts';
+import { modelNetwork } from '../chem/mantle.ts';
+import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
+import type { Pipeline } from '../config/pipeline.ts';
+import { loadInitialComposition } from './initial.ts';
+import { outputTimesYr } from './times.ts';
+import type { ModelInput, ModelOptions } from './types.ts';
+
+export interface ModelSetup {
+  network: Network;
+  /** Absolute path of the network file (a worker loads it again and checks its content hash). */
+  networkFile: string;
+  options: ModelOptions;
+  /** Notes from building it, for the terminal (optional trace species the network lacks, dropped). */
+  notes: string[];
+}
+
+/** snake_case to camelCase, as a type: the pipeline's section keys become the options' field names. */
+type Camel<S extends string> = S extends `${infer H}_${infer T}` ? `${H}${Capitalize<Camel<T>>}` : S;
+type Camelised<T> = { [K in keyof T & string as Camel<K>]: T[K] };
+
+/**
+ * A pipeline section with its keys in camelCase. The compiler checks the
+ * result against the option type it is assigned to, so a field added to
+ * GrainOptions without its pipeline key (or the other way round) fails the
+ * type check instead of being dropped.
+ */
+function camelised<T extends Record<string, unknown>>(section: T): Camelised<T> {
+  const out: Record<string, unknown> = {};
+  for (const [key, value] of Object.entries(section)) out[key.replace(/_([a-z0-9])/g, (_, c: string) => c.toUpperCase())] = value;
+  return out as Camelised<T>;
+}
+
+/** A pipeline's grain section (snake_case, defaults applied) as the model's grain options. */
+export function grainOptionsOf(section: Pipeline['config']['grain']): GrainOptions {
+  return camelised(section);
+}
+
+export interface SetupOverrides {
+  massActionOnly?: boolean;
+  /** Turn H2 self-shielding off whatever the pipeline says (`hoarfrost model --no-self-shielding`). */
+  noSelfShielding?: boolean;
+}
+
+export function buildModelSetup(pipeline: Pipeline, overrides: SetupOverrides = {}): ModelSetup {
+  const c = pipeline.config;
+  const networkFile = pipeline.resolvePath(c.network);
+  const network = loadNetwork(networkFile);
+  const notes: string[] = [];
+  const grain = grainOptionsOf(c.grain);
+  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
+  const initial = loadInitialComposition(c.initial, pipeline.dir, modelNetwork(network, grain), notes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
+  const photochemistry = camelised(c.photochemistry);
+  const options: ModelOptions = {
+    grain,
+    photochemistry: { ...photochemistry, h2SelfShielding: photochemistry.h2SelfShielding && !overrides.noSelfShielding },
+    initial,
+    timesYr: outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count),
+    solver: camelised(c.solver),
+    massActionOnly: overrides.massActionOnly ?? false,
+  };
+  return { network, networkFile, options, notes };
+}
+
+/** The input of one model of the setup. */
+export function modelInput(setup: Pick<ModelSetup, 'network' | 'options'>, conditions: PhysicalConditions): ModelInput {
+  return { network: setup.network, conditions, ...setup.options };
+}
