@@ -372,7 +372,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   if (pairs && pairs.surface.length > 0) {
     const layers = grain.surfaceLayers * rateSet.grain.monolayerAbundance;
     transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y, dydt) => othersRhs(y, dydt));
-    omitted.push(transfer.name);
+    omitted.push(`${transfer.name}: the transfer rate is the net surface growth of every other process times a share of the surface or mantle, a ratio of sums of abundances (docs/ice-mantle.md)`);
     if (options.massActionOnly) transfer = undefined;
     else {
       nonMassAction.push(transfer);

@@ -98,9 +98,9 @@ export function register(program: Command, ctx: CommandContext): void {
       const gridOptions = {
         retryFailed: opts.retryFailed,
         signals: { drain: drain.signal, abort: abort.signal },
-        onStart: (i: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number }) =>
+        onStart: (i: { storeFile: string; share: number; upToDate: number; todo: number; stale: number; workers: number; note?: string }) =>
           progress.message(
-            `grid${shard ? ` shard ${shardLabel(shard)}` : ''}: ${i.share} models, ${i.upToDate} already in ${i.storeFile}, ${i.todo} to compute${i.stale > 0 ? ` (${i.stale} stale)` : ''}${i.todo > 0 ? ` on ${i.workers} worker${i.workers > 1 ? 's' : ''}` : ''}`,
+            `grid${shard ? ` shard ${shardLabel(shard)}` : ''}: ${i.share} models, ${i.upToDate} already in ${i.storeFile}, ${i.todo} to compute${i.stale > 0 ? ` (${i.stale} stale)` : ''}${i.todo > 0 ? ` on ${i.workers} worker${i.workers > 1 ? 's' : ''}` : ''}${i.note ? ` (${i.note})` : ''}`,
           ),
         onProgress: (p: GridProgress) => progress.update(p),
       };
