@@ -134,8 +134,9 @@ describe('default network ice targets, recommended grain switches (10 K, A_V = 1
     });
 
     // Measured: NH2OH(s) holds 23 % of the nitrogen from 1e5 yr on at n_H = 1e5 (NO hydrogenation, Congiu et al. 2012;
-    // Fedoseev et al. 2012, barrierless; no surface reaction destroys NH2OH at 10 K and its photolysis is slow,
-    // about 2e6 yr with the cosmic-ray induced UV); at n_H = 2e4 H2CO(s) holds 12.4 % of the carbon from 1e6 yr on.
+    // Fedoseev et al. 2012, barrierless; no surface reaction destroys NH2OH at 10 K, and ice photolysis reaches the
+    // surface layer only, in about 2e6 yr with the cosmic-ray induced UV); at n_H = 2e4 H2CO(s) holds 12.4 % of the
+    // carbon from 1e6 yr on.
     it.skip(`no ice species outside ${OBSERVED_CARRIERS.join(', ')} holds more than 10 % of ${RESERVOIR_ELEMENTS.join(', ')} (issue text)`, () => {
       for (const r of results) expect(r.worstReservoir.share, `${r.worstReservoir.species} at n_H = ${r.density}`).toBeLessThanOrEqual(RESERVOIR_LIMIT);
     });
