@@ -9,9 +9,11 @@
  * both with the same vibration frequency. The encounter rate is that of a
  * Langmuir-Hinshelwood pair of identical partners, k_hop(H2 on water) n(H2(s))^2
  * / (N_sites n_gr), so the process is the mass-action reaction
- * H2(s) + H2(s) -> H2(s) + H2 with that coefficient times P. The formula and
- * the 23 K are from memory (Hincelin et al. 2015, who take E_D(H2 on H2)
- * from Cuppen & Herbst 2007, ApJ 668, 294), not re-checked.
+ * H2(s) + H2(s) -> H2(s) + H2 with that coefficient times P. The mechanism
+ * is that of the paper's abstract ("A new and simple approach to determine
+ * the abundance of hydrogen molecules on interstellar ice mantles", read
+ * here); the formula for P and the 23 K (which they take from Cuppen &
+ * Herbst 2007, ApJ 668, 294) are from memory, not re-checked.
  *
  * Why it comes with the three-phase ice (docs/ice-mantle.md): the transfer of
  * Garrod & Pauly 2011 buries each surface species in proportion to its share
