@@ -22,7 +22,8 @@ export type RateLawName =
   | 'ice-cosmic-ray-uv'
   | 'three-body'
   | 'eley-rideal'
-  | 'photodissociation-induced';
+  | 'photodissociation-induced'
+  | 'encounter-desorption';
 
 export interface LawParameter {
   name: string;
@@ -178,6 +179,15 @@ export const RATE_LAWS: Readonly<Record<RateLawName, RateLaw>> = {
   'photodissociation-induced': {
     name: 'photodissociation-induced',
     description: 'non-diffusive: a fragment of an ice photodissociation reacts at once with a neighbour (Jin & Garrod 2020); derived with grain.photodissociation_induced',
+    reactantCount: 2,
+    reactantPhase: 'ice',
+    productPhase: 'any',
+    params: [],
+    derivedOnly: true,
+  },
+  'encounter-desorption': {
+    name: 'encounter-desorption',
+    description: 'H2(s) meeting H2(s) on the surface desorbs with the probability set by the 23 K binding of H2 on H2 (Hincelin et al. 2015); derived with grain.mantle',
     reactantCount: 2,
     reactantPhase: 'ice',
     productPhase: 'any',

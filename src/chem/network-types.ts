@@ -11,7 +11,7 @@ export interface SourceLocation {
 
 /** How a reaction the model made from the network's own reactions came about (src/chem/nondiffusive.ts, src/chem/ice-photolysis.ts). */
 export interface DerivedFrom {
-  mechanism: 'three-body' | 'eley-rideal' | 'photodissociation-induced' | 'ice-photolysis';
+  mechanism: 'three-body' | 'eley-rideal' | 'photodissociation-induced' | 'ice-photolysis' | 'encounter-desorption';
   /** The reactions it was made from: the one that makes the fresh species first, the follow-on reaction last. */
   parents: Reaction[];
   /**

@@ -5,6 +5,7 @@
  * is k n_i n_j); src/chem/system.ts folds them with n_H for fractional
  * abundances.
  */
+import { encounterDesorptionProbability } from './encounter-desorption.ts';
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import { UserError } from '../config/errors.ts';
 import { CR_REFERENCE_RATE } from './constants.ts';
@@ -322,6 +323,14 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
         const appear = parentRate * r.derived!.multiplicity!;
         const probability = followOnProbability(follow);
         rates.push({ reaction: r, k: appear * probability, form: 'coverage', parts: { appear, follow: probability } });
+        break;
+      }
+      case 'encounter-desorption': {
+        // Encounters of identical partners (HHL92 pair convention) times the desorption probability on H2 (Hincelin et al. 2015).
+        const name = r.reactants[0];
+        const hop = data.hop(name, r, grain.tunnelling);
+        const p = encounterDesorptionProbability(c.dust_temperature, c.diffusion_ratio);
+        rates.push({ reaction: r, k: surfaceReactionCoefficient(p, diffusionRate(hop, props.sitesPerGrain), 0, true, grainDensity), form: 'mass-action' });
         break;
       }
       case 'parametric-h2':

@@ -117,3 +117,34 @@ describe('the default network with the mantle on', () => {
     expect(column(r, 'H2O(mantle)', 3)).toBeGreaterThan(10 * column(r, 'H2O(surface)', 3));
   });
 });
+
+describe('the default network with every grain switch on', () => {
+  it('runs to 1e7 yr conserving every element and the charge to 1e-12 relative (physics.md section 7; issue 17)', () => {
+    const network = loadNetwork(join(import.meta.dirname, '../../config/networks/dark-cloud.yaml'));
+    const conditions = { ...defaultConditions(), density: 2e4, gas_temperature: 10, dust_temperature: 10, visual_extinction: 10 };
+    const grain: GrainOptions = {
+      ...DEFAULT_GRAIN_OPTIONS,
+      mantle: true,
+      threeBody: true,
+      eleyRideal: true,
+      photodissociationInduced: true,
+      icePhotolysis: true,
+      tunnelling: true,
+      diffusionCompetition: true,
+    };
+    // Every boolean switch of the grain section is on (a switch added later must be added here too).
+    for (const [name, value] of Object.entries(DEFAULT_GRAIN_OPTIONS)) if (typeof value === 'boolean') expect(grain[name as keyof GrainOptions], name).toBe(true);
+    const r = runModel({
+      network,
+      conditions,
+      grain,
+      initial: loadInitialComposition('low-metal', '.', network),
+      timesYr: Float64Array.from([1e3, 1e5, 1e7]),
+      solver: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
+    });
+    expect(r.status, r.failure).toBe('ok');
+    expect(r.timesYr.at(-1)).toBe(1e7);
+    expect(r.conservation.maxRelativeDrift).toBeLessThan(1e-12);
+    expect(Object.keys(r.conservation.perElement).sort()).toEqual(['C', 'Fe', 'H', 'He', 'Mg', 'N', 'Na', 'O', 'S', 'Si']);
+  });
+});
