@@ -9,10 +9,10 @@
  * here from HHL92's nu_0, hopping and tunnelling formulas and CODATA
  * constants, not from the code under test.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { scratch } from '../support/scratch.ts';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions, type GrainOptions } from '../../src/config/conditions.ts';
 import { deriveReactions } from '../../src/chem/derive.ts';
 import { deriveIcePhotolysis } from '../../src/chem/ice-photolysis.ts';
@@ -218,7 +218,7 @@ describe('non-diffusive reactions', () => {
 
 describe('network files', () => {
   it('refuse a derived-only law with a message naming the grain option', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'hoarfrost-nd-'));
+    const dir = scratch('hoarfrost-nd-');
     const file = join(dir, 'net.yaml');
     writeFileSync(
       file,
