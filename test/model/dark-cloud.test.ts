@@ -5,7 +5,7 @@
  */
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { DEFAULT_GRAIN_OPTIONS, defaultConditions } from '../../src/config/conditions.ts';
+import { DEFAULT_GRAIN_OPTIONS, defaultConditions, type GrainOptions } from '../../src/config/conditions.ts';
 import { loadNetwork } from '../../src/chem/network.ts';
 import { loadInitialComposition, outputTimesYr, runModel } from '../../src/model/run.ts';
 import type { ModelResult } from '../../src/model/types.ts';
@@ -16,6 +16,20 @@ const NEAR_FACTOR = 3;
 /** "Present" in the ice: above 1e-8 per H nucleus, about 1e-4 of the water ice (our choice for the test). */
 const PRESENT = 1e-8;
 
+/** The default network at n_H = 2e4 cm^-3, 10 K, A_V = 10 from the low-metal start, 13 output times to 1e7 yr. */
+function darkCloudModel(grain: GrainOptions): ModelResult {
+  const network = loadNetwork(NETWORK);
+  const conditions = { ...defaultConditions(), density: 2e4, gas_temperature: 10, dust_temperature: 10, visual_extinction: 10 };
+  return runModel({
+    network,
+    conditions,
+    grain,
+    initial: loadInitialComposition('low-metal', '.', network),
+    timesYr: outputTimesYr(1e3, 1e7, 13),
+    solver: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
+  });
+}
+
 describe('default network, dark-cloud conditions', () => {
   let result: ModelResult;
   const at = (species: string, tYr: number): number => {
@@ -25,16 +39,7 @@ describe('default network, dark-cloud conditions', () => {
     return result.abundances[k * result.species.length + i];
   };
   beforeAll(() => {
-    const network = loadNetwork(NETWORK);
-    const conditions = { ...defaultConditions(), density: 2e4, gas_temperature: 10, dust_temperature: 10, visual_extinction: 10 };
-    result = runModel({
-      network,
-      conditions,
-      grain: DEFAULT_GRAIN_OPTIONS,
-      initial: loadInitialComposition('low-metal', '.', network),
-      timesYr: outputTimesYr(1e3, 1e7, 13),
-      solver: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
-    });
+    result = darkCloudModel(DEFAULT_GRAIN_OPTIONS);
   });
 
   it('runs to 1e7 yr', () => {
@@ -78,16 +83,7 @@ describe('default network, dark-cloud conditions', () => {
 describe('default network with tunnelling on, dark-cloud conditions', () => {
   let result: ModelResult;
   beforeAll(() => {
-    const network = loadNetwork(NETWORK);
-    const conditions = { ...defaultConditions(), density: 2e4, gas_temperature: 10, dust_temperature: 10, visual_extinction: 10 };
-    result = runModel({
-      network,
-      conditions,
-      grain: { ...DEFAULT_GRAIN_OPTIONS, tunnelling: true },
-      initial: loadInitialComposition('low-metal', '.', network),
-      timesYr: outputTimesYr(1e3, 1e7, 13),
-      solver: { rtol: 1e-6, atol: 1e-25, maxSteps: 50000 },
-    });
+    result = darkCloudModel({ ...DEFAULT_GRAIN_OPTIONS, tunnelling: true });
   });
 
   it('runs to 1e7 yr', () => {

@@ -22,6 +22,7 @@ import { compile } from '../../src/chem/system.ts';
 import { YEAR_SECONDS } from '../../src/chem/constants.ts';
 import { loadInitialComposition, runModel } from '../../src/model/run.ts';
 import type { ModelResult } from '../../src/model/types.ts';
+import { RECOMMENDED_GRAIN } from '../../scripts/ice-targets.ts';
 import { makeNetwork } from './fixtures.ts';
 
 // Binding energies E_D/k_B, K: physics.md section 4 (memory).
@@ -122,16 +123,8 @@ describe('the default network with every grain switch on', () => {
   it('runs to 1e7 yr conserving every element and the charge to 1e-12 relative (physics.md section 7; issue 17)', () => {
     const network = loadNetwork(join(import.meta.dirname, '../../config/networks/dark-cloud.yaml'));
     const conditions = { ...defaultConditions(), density: 2e4, gas_temperature: 10, dust_temperature: 10, visual_extinction: 10 };
-    const grain: GrainOptions = {
-      ...DEFAULT_GRAIN_OPTIONS,
-      mantle: true,
-      threeBody: true,
-      eleyRideal: true,
-      photodissociationInduced: true,
-      icePhotolysis: true,
-      tunnelling: true,
-      diffusionCompetition: true,
-    };
+    // The recommended ice switches (mantle, three-body, Eley-Rideal, photodissociation-induced, ice photolysis) and the other two.
+    const grain: GrainOptions = { ...RECOMMENDED_GRAIN, tunnelling: true, diffusionCompetition: true };
     // Every boolean switch of the grain section is on (a switch added later must be added here too).
     for (const [name, value] of Object.entries(DEFAULT_GRAIN_OPTIONS)) if (typeof value === 'boolean') expect(grain[name as keyof GrainOptions], name).toBe(true);
     const r = runModel({
