@@ -415,6 +415,9 @@ class BdfIntegrator {
       }
 
       const c = h / ALPHA[order];
+      // A switched right-hand side fixes its form for this attempt at the
+      // prediction; a Jacobian taken on the other form would only fail Newton.
+      if (this.problem.beginStep && this.problem.beginStep(tNew, yPredict)) refreshJacobian = true;
       if (refreshJacobian) {
         if (!this.evaluateJacobian(tNew, yPredict)) return Outcome.NonFiniteJacobian;
         jacobianCurrent = true;
