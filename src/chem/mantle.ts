@@ -147,6 +147,9 @@ export function fillOutputs(columns: OutputColumns, y: ArrayLike<number>, out: F
  * storing it, which would fill the LU. The rest, F/d on species i's own
  * column, goes on four pattern entries per species.
  */
+/** The transfer's form: held by beginStep, or free (by the sign of F at each call) before the first. */
+type Branch = 'free' | 'growth' | 'erosion';
+
 export class IceTransfer implements NonMassActionTerm {
   readonly name: string;
   readonly entries: [number, number][] = [];
@@ -159,6 +162,7 @@ export class IceTransfer implements NonMassActionTerm {
   private positions: Int32Array = new Int32Array(0);
   private rowPtr: Int32Array = new Int32Array(0);
   private colIdx: Int32Array = new Int32Array(0);
+  private branch: Branch = 'free';
 
   /**
    * @param layersAbundance Lambda = L x_ML, the abundance of the surface's monolayers
@@ -204,16 +208,41 @@ export class IceTransfer implements NonMassActionTerm {
     return s;
   }
 
+  /**
+   * Holds the branch given by the sign of F at the step's predicted state
+   * until the next step (OdeProblem.beginStep). The two forms meet at F = 0
+   * with slopes in F that differ by 1e4 and more for trace species; once the
+   * ice stops growing F sits at round-off around 0, and a branch chosen afresh
+   * at every Newton iterate made the iteration straddle the switch without
+   * contracting. With the branch held, the rhs is smooth within a step. This
+   * is sound: the error test still judges each step on the rhs it used, and
+   * the transfer is proportional to F, so where the held branch can disagree
+   * with the sign of F inside a step, F and the transfer are both near 0.
+   */
+  beginStep(y: Float64Array): boolean {
+    this.othersRhs(y, this.scratch);
+    const branch = this.surfaceRate(this.scratch) >= 0 ? 'growth' : 'erosion';
+    const changed = branch !== this.branch;
+    this.branch = branch;
+    return changed;
+  }
+
+  /** Growth (surface -> mantle at F x_s / Lambda) or erosion (mantle -> surface at |F| x_m / max(x_mant, x_surf)). */
+  private growing(f: number): boolean {
+    return this.branch === 'free' ? f >= 0 : this.branch === 'growth';
+  }
+
   addRhs(y: Float64Array, dydt: Float64Array): void {
     const f = this.surfaceRate(dydt);
-    if (f > 0) {
+    if (f === 0) return;
+    if (this.growing(f)) {
       const scale = f / this.layersAbundance;
       for (let q = 0; q < this.k; q++) {
         const t = scale * y[this.surface[q]];
         dydt[this.surface[q]] -= t;
         dydt[this.mantle[q]] += t;
       }
-    } else if (f < 0) {
+    } else {
       const d = Math.max(this.total(y, this.surface), this.total(y, this.mantle));
       if (!(d > 0)) return;
       const scale = f / d;
@@ -236,7 +265,7 @@ export class IceTransfer implements NonMassActionTerm {
       const row = this.surface[q];
       for (let p = rowPtr[row]; p < rowPtr[row + 1]; p++) w[colIdx[p]] += values[p];
     }
-    const growth = f >= 0;
+    const growth = this.growing(f);
     const sSurface = this.total(y, this.surface);
     const sMantle = this.total(y, this.mantle);
     const d = growth ? this.layersAbundance : Math.max(sSurface, sMantle);

@@ -39,6 +39,12 @@ export interface NonMassActionTerm {
   bind(positions: Int32Array): void;
   addRhs(y: Float64Array, dydt: Float64Array): void;
   addJacobian(y: Float64Array, values: Float64Array): void;
+  /**
+   * For a term whose form switches on the state: pick the form at the step's
+   * predicted state and keep it until the next call (OdeProblem.beginStep).
+   * Returns true when the form changed.
+   */
+  beginStep?(y: Float64Array): boolean;
 }
 
 export interface MassActionTerms {
@@ -91,6 +97,8 @@ export interface CompiledSystem {
   rankOne?: { u: Float64Array; w: Float64Array };
   rhs(t: number, y: Float64Array, dydt: Float64Array): void;
   jacobian(t: number, y: Float64Array, values: Float64Array): void;
+  /** Forwarded to every non-mass-action term with a switched form (OdeProblem.beginStep); true when any changed form. */
+  beginStep(t: number, y: Float64Array): boolean;
   /** The mass-action part as JSON (the --emit-system contract of issue 4). */
   emitSystem(y0: Float64Array, timesS: Float64Array): EmittedSystem;
 }
@@ -466,6 +474,13 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     for (let q = 0; q < nonMassAction.length; q++) nonMassAction[q].addJacobian(y, values);
   };
 
+  const switched = nonMassAction.filter((term): term is NonMassActionTerm & Required<Pick<NonMassActionTerm, 'beginStep'>> => term.beginStep !== undefined);
+  const beginStep = (_t: number, y: Float64Array): boolean => {
+    let changed = false;
+    for (let g = 0; g < switched.length; g++) if (switched[g].beginStep(y)) changed = true;
+    return changed;
+  };
+
   const terms: MassActionTerms = { reactantStart, reactants, productStart, products, k, reaction };
   const emitSystem = (y0: Float64Array, timesS: Float64Array): EmittedSystem => ({
     species,
@@ -493,6 +508,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     rankOne: transfer ? { u: transfer.u, w: transfer.w } : undefined,
     rhs,
     jacobian,
+    beginStep,
     emitSystem,
   };
 }

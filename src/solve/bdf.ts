@@ -32,6 +32,10 @@
  * `nonNegative`, negative components of each accepted solution (the newest
  * row of the difference array) and of every output are set to zero, the
  * usual remedy for the round-off negatives of abundances far below atol.
+ * Each step attempt first hands its prediction to the problem's optional
+ * `beginStep`, where a switched right-hand side fixes its form for the
+ * attempt (the usual treatment of switches: smooth within a step, each step
+ * still judged by the error test).
  *
  * The integration always starts at t = 0 from y0 and runs forward to the last
  * output time; outputs are interpolated from the BDF polynomial, the last one
@@ -415,6 +419,9 @@ class BdfIntegrator {
       }
 
       const c = h / ALPHA[order];
+      // A switched right-hand side fixes its form for this attempt at the
+      // prediction; a Jacobian taken on the other form would only fail Newton.
+      if (this.problem.beginStep && this.problem.beginStep(tNew, yPredict)) refreshJacobian = true;
       if (refreshJacobian) {
         if (!this.evaluateJacobian(tNew, yPredict)) return Outcome.NonFiniteJacobian;
         jacobianCurrent = true;

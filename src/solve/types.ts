@@ -23,6 +23,16 @@ export interface OdeProblem {
   pattern: SparsityPattern;
   /** A dense rank-one part of the Jacobian, J = J(pattern) + u w^T, that the pattern would carry only with much fill. */
   rankOne?: RankOneJacobian;
+  /**
+   * Called once per step attempt, at the predicted state, before the
+   * corrector's Newton iteration. A problem whose right-hand side switches
+   * between smooth forms on a condition of the state picks its form here and
+   * keeps it in `rhs` and `jacobian` until the next call, so that within a
+   * step it is smooth and Newton converges as on any smooth problem; the
+   * error test still judges the step. Returns true when the form changed,
+   * since a Jacobian taken on the other form is then stale.
+   */
+  beginStep?(t: number, yPredicted: Float64Array): boolean;
 }
 
 /** Vectors of length n that every `jacobian` call rewrites beside the pattern's values. */
