@@ -21,6 +21,7 @@
  */
 import type { Network, Reaction } from './network-types.ts';
 import { iceName, tryParseSpecies } from './species.ts';
+import { describeReaction } from './reaction-text.ts';
 
 export interface DerivedReactions {
   reactions: Reaction[];
@@ -32,10 +33,6 @@ const GAS_TO_ICE_LAW = { 'interstellar-uv': 'ice-interstellar-uv', 'cosmic-ray-u
 
 function channelKey(law: string, reactant: string, products: readonly string[]): string {
   return `${law}: ${reactant} > ${[...products].sort().join(' ')}`;
-}
-
-export function describeReaction(r: { reactants: readonly string[]; products: readonly string[] }): string {
-  return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
 }
 
 /**

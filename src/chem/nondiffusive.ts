@@ -46,7 +46,7 @@
  */
 import type { Network, Reaction } from './network-types.ts';
 import type { NonMassActionTerm } from './system.ts';
-import { describeReaction } from './ice-photolysis.ts';
+import { describeReaction } from './reaction-text.ts';
 import { iceName, parseSpecies } from './species.ts';
 
 export interface NonDiffusiveSwitches {

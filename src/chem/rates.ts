@@ -26,6 +26,7 @@ import { deriveReactions } from './derive.ts';
 import type { Network, Reaction } from './network-types.ts';
 import { NH_PER_AV } from './shielding.ts';
 import type { Species } from './species.ts';
+import { describeReaction, reactionLabel } from './reaction-text.ts';
 
 /**
  * How a reaction enters the system. 'mass-action': event rate k times the
@@ -90,10 +91,6 @@ const DEFAULT_PHOTODESORPTION_YIELD = RATE_LAWS.photodesorption.params.find((q) 
 /** Species whose surface hopping may tunnel (HHL92: H and H2). */
 const TUNNELLING_SPECIES = new Set(['H', 'H2']);
 
-function describe(r: Reaction): string {
-  return r.derived ? r.derived.label : `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
-}
-
 function where(r: Reaction): { file: string; line?: number; row?: number } {
   return { file: r.source.file, line: r.source.line, row: r.source.row };
 }
@@ -137,7 +134,7 @@ class SurfaceData {
     const e = this.network.speciesData.get(s.gasName)?.bindingEnergy;
     if (e === undefined) {
       throw new UserError(
-        `reaction ${describe(r)} (${r.law}) needs the binding energy of ${s.gasName}, which the network does not give. Add binding_energy for ${s.gasName} to the species data of ${this.network.file}.`,
+        `reaction ${describeReaction(r)} (${r.law}) needs the binding energy of ${s.gasName}, which the network does not give. Add binding_energy for ${s.gasName} to the species data of ${this.network.file}.`,
         where(r),
       );
     }
@@ -256,7 +253,7 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
         if (t < r.tmin || t > r.tmax) {
           const clamped = Math.min(Math.max(t, r.tmin), r.tmax);
           clampNotes.push(
-            `reaction ${r.index + 1} (${describe(r)}): gas temperature ${t} K is outside its valid range ${r.tmin}-${r.tmax} K; evaluated at ${clamped} K`,
+            `reaction ${r.index + 1} (${describeReaction(r)}): gas temperature ${t} K is outside its valid range ${r.tmin}-${r.tmax} K; evaluated at ${clamped} K`,
           );
           t = clamped;
         }
@@ -359,7 +356,7 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
   for (const { reaction: r, k } of rates) {
     if (!Number.isFinite(k)) {
       throw new UserError(
-        `${r.derived ? `derived ${r.derived.label}` : `reaction ${r.index + 1} (${describe(r)}, ${r.law})`}: the rate coefficient is ${k} at these conditions (gas temperature ${c.gas_temperature} K, dust temperature ${c.dust_temperature} K, zeta ${c.cr_ionisation_rate} s^-1, G0 ${c.uv_field}, A_V ${c.visual_extinction} mag). Check its parameters; 'hoarfrost network check' evaluates every coefficient over its temperature range.`,
+        `${r.derived ? reactionLabel(r) : `reaction ${r.index + 1} (${describeReaction(r)}, ${r.law})`}: the rate coefficient is ${k} at these conditions (gas temperature ${c.gas_temperature} K, dust temperature ${c.dust_temperature} K, zeta ${c.cr_ionisation_rate} s^-1, G0 ${c.uv_field}, A_V ${c.visual_extinction} mag). Check its parameters; 'hoarfrost network check' evaluates every coefficient over its temperature range.`,
         where(r),
       );
     }

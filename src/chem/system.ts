@@ -22,6 +22,7 @@ import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network, Reaction } from './network-types.ts';
 import { IceTransfer, mantlePairs, modelNetwork } from './mantle.ts';
 import { CoverageTerms, type FreshGroup } from './nondiffusive.ts';
+import { describeReaction } from './reaction-text.ts';
 import { computeRates, type RateForm, type RateSet, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
@@ -103,10 +104,6 @@ export interface CompiledSystem {
   emitSystem(y0: Float64Array, timesS: Float64Array): EmittedSystem;
 }
 
-function describe(r: Reaction): string {
-  return `${r.reactants.join(' + ')} -> ${r.products.join(' + ')}`;
-}
-
 /** Why each rate form is not mass action: the reason --emit-system gives beside every term it leaves out. */
 const NOT_MASS_ACTION: Readonly<Record<Exclude<RateForm, 'mass-action'>, string>> = {
   'monolayer-photodesorption': 'above one monolayer the rate per grain saturates, k x_i x_ML / x_ice, a ratio of abundances rather than a product',
@@ -117,7 +114,7 @@ const NOT_MASS_ACTION: Readonly<Record<Exclude<RateForm, 'mass-action'>, string>
 
 /** How a term names its reaction: the file's reaction number, or the derivation. */
 function reactionName(r: Reaction): string {
-  return r.derived ? `derived ${r.derived.label}` : `reaction ${r.index + 1}: ${describe(r)}`;
+  return r.derived ? `derived ${r.derived.label}` : `reaction ${r.index + 1}: ${describeReaction(r)}`;
 }
 
 /**

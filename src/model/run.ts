@@ -5,6 +5,7 @@
  * an exception, so a grid can record it and go on.
  */
 import { fillOutputs, modelNetwork, outputColumns } from '../chem/mantle.ts';
+import { reactionLabel } from '../chem/reaction-text.ts';
 import { compile, type CompiledSystem } from '../chem/system.ts';
 import { evaporatedHydrogenShare, hydrogenGrainTerms, PHYSISORBED_H2_MAX_EVAPORATED_SHARE } from '../chem/grain-h2.ts';
 import { UserError } from '../config/errors.ts';
@@ -127,7 +128,7 @@ export function runModel(input: ModelInput): ModelResult {
     stats,
     clampNotes: notes,
     skippedNotes: [
-      ...system.skipped.map((s) => `${s.reaction.derived ? `derived ${s.reaction.derived.label}` : `reaction ${s.reaction.index + 1} (${s.reaction.reactants.join(' + ')} -> ${s.reaction.products.join(' + ')})`}: ${s.reason}`),
+      ...system.skipped.map((s) => `${reactionLabel(s.reaction)}: ${s.reason}`),
       ...system.notes,
     ],
     wallMs: performance.now() - started,
