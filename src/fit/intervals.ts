@@ -38,6 +38,7 @@ export function intervalFromProfile(profile: Profile1D, best: number, level: Reg
     parameter: profile.parameter,
     level: level.level,
     deltaChi2Threshold: level.deltaChi2,
+    parametersOfInterest: level.parametersOfInterest,
     best,
     lo: profile.values[first],
     hi: profile.values[last],

@@ -17,7 +17,7 @@ import { fitJoint } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
 import { buildModelQuantities, collectTerms, termKey } from './model-quantities.ts';
 import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
-import { regionLevels, TABLE_LEVEL } from './regions.ts';
+import { PAIR_PARAMETERS, regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
 import {
   AGE_PARAMETER,
@@ -296,6 +296,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     fittedParameters: [...axes.independent],
     fixedParameters,
     levels: options.levels,
+    regionLevels: regionLevels([...section.levels, TABLE_LEVEL], PAIR_PARAMETERS),
     modelSigmaDex: section.model_sigma_dex,
     poorFitP: section.poor_fit_p,
     nCandidates: model.nCandidates,

@@ -152,14 +152,17 @@ export interface RegionLevel {
 }
 
 /**
- * Confidence interval of one parameter at one level: the range of grid values
- * whose profile lies within the level's Delta chi^2 threshold (the projection
- * of the joint region of `parametersOfInterest` parameters onto this axis).
+ * Confidence interval of one parameter at one level: the range of values
+ * whose profile lies within the level's Delta chi^2 threshold: one
+ * parameter's own interval at p = 1, the projection of the joint region of p
+ * parameters onto this axis at p > 1.
  */
 export interface ParameterInterval {
   parameter: string;
   level: number;
   deltaChi2Threshold: number;
+  /** p of the threshold: 1 one-parameter, more a projection (absent in files written before it was stated). */
+  parametersOfInterest?: number;
   best: number;
   /** Smallest and largest grid value inside the region. */
   lo: number;
@@ -253,7 +256,10 @@ export interface FitStageResult {
   fittedParameters: string[];
   /** Grid parameter names with one value (held fixed) and that value. */
   fixedParameters: Record<string, number>;
+  /** Levels and thresholds of the intervals (p = fit.parameters_of_interest). */
   levels: RegionLevel[];
+  /** Levels and thresholds of the 2-D regions of the pair profiles (p = 2); absent in files written before they were stated. */
+  regionLevels?: RegionLevel[];
   modelSigmaDex: number;
   /** p-value below which a fit is reported as poor. */
   poorFitP: number;

@@ -11,6 +11,7 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import type { TopLevelSpec } from 'vega-lite';
+import { intervalReading } from '../fit/regions.ts';
 import { escapeHtml, inlineScriptSource, jsonForScript } from './escape.ts';
 import { numberHtml } from './numbers.ts';
 import type { BuiltFigure } from './figures/builder.ts';
@@ -59,7 +60,8 @@ function intervalCell(c: ParameterCell): string {
       : c.unresolved
         ? ' <span class="range" title="only the best grid value lies inside the interval">(narrower than the grid step)</span>'
         : ` <span class="range">(${numberHtml(c.lo)}–${numberHtml(c.hi)})</span>`;
-  return `<td>${numberHtml(c.best)}${range}${edge}</td>`;
+  const disjoint = c.disjoint ? ' <span class="edge" title="the region has several disjoint parts: values between the bounds lie outside it">§</span>' : '';
+  return `<td>${numberHtml(c.best)}${range}${edge}${disjoint}</td>`;
 }
 
 function summaryHtml(table: SummaryTable): string {
@@ -208,14 +210,14 @@ export function reportHtml(h: HtmlInput): string {
 <body data-ready="false">
 <header>
 <h1>${escapeHtml(title)}</h1>
-<p>${input.map && h.table.rows.length === 0 ? `${input.map.fittedPixels} of ${input.map.nx * input.map.ny} map pixels` : `${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'}`} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${numberHtml(v, 3)}`).join(', ')}.` : ''}</p>
+<p>${input.map && h.table.rows.length === 0 ? `${input.map.fittedPixels} of ${input.map.nx * input.map.ny} map pixels` : `${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'}`} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence, Δχ² ≤ ${escapeHtml(h.table.deltaChi2.toFixed(2))} (${escapeHtml(intervalReading(h.table.parametersOfInterest))}).${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${numberHtml(v, 3)}`).join(', ')}.` : ''}</p>
 <p class="files">Tables and images: ${linksHtml(h.tableLinks)}</p>
 <p id="embed-error" hidden></p>
 </header>
 <section id="summary">
 <h2>Best fits</h2>
 ${h.table.rows.length > 0 ? `<div class="scroll">${summaryHtml(h.table)}</div>` : '<p>No sightline table: the per-pixel best fits of the map are in the sky maps below and in the FITS images linked above.</p>'}
-${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>' : ''}
+${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid; § the region has disjoint parts. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>' : ''}
 </section>
 ${input.fit.joint.length > 0 ? `<section id="joint">\n<h2>Joint fits</h2>\n<div class="scroll">${jointHtml(input.fit.joint, h.table.level)}</div>\n</section>` : ''}
 <section id="cautions">

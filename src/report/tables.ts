@@ -6,7 +6,7 @@
  * The tables hold no time stamps or paths, so the same run gives the same bytes.
  */
 import { toCsv, type CsvCell } from '../config/csv.ts';
-import { TABLE_LEVEL } from '../fit/regions.ts';
+import { intervalReading, statedLevel, TABLE_LEVEL } from '../fit/regions.ts';
 import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
 import { escapeLatex } from './escape.ts';
 import { numberLatex } from './numbers.ts';
@@ -21,6 +21,8 @@ export interface ParameterCell {
   hiAtEdge: boolean;
   /** Only the best grid value lies inside: narrower than the grid spacing. */
   unresolved: boolean;
+  /** Values between lo and hi lie outside the region: the region has several parts. */
+  disjoint: boolean;
 }
 
 export interface SummaryRow {
@@ -38,6 +40,9 @@ export interface SummaryRow {
 export interface SummaryTable {
   /** Confidence level of the intervals shown. */
   level: number;
+  /** Delta chi^2 threshold of that level and its p (1: one-parameter intervals; more: projected). */
+  deltaChi2: number;
+  parametersOfInterest: number;
   /** Fitted parameters, in the fit stage's order (grid conditions, then age_yr). */
   parameters: string[];
   rows: SummaryRow[];
@@ -61,7 +66,9 @@ export function summaryTable(input: ReportInput): SummaryTable {
     agreement: fit.agreementFraction,
     warnings: fit.warnings,
   }));
-  return { level, parameters, rows, poorFitP: input.fit.poorFitP };
+  // A fit.json written before p was stated used p = 2 for its intervals.
+  const stated = statedLevel(level, input.fit.levels, 2);
+  return { level, deltaChi2: stated.deltaChi2, parametersOfInterest: stated.parametersOfInterest, parameters, rows, poorFitP: input.fit.poorFitP };
 }
 
 /** Density and age first (the quantities a reader looks for), the rest in the fit's order. */
@@ -73,19 +80,19 @@ function orderParameters(fitted: readonly string[]): string[] {
 function cell(fit: SightlineFit, parameter: string, level: number): ParameterCell {
   const iv: ParameterInterval | undefined = fit.intervals.find((i) => i.parameter === parameter && Math.abs(i.level - level) < 1e-9);
   const best = parameter === 'age_yr' ? fit.best.ageYr : fit.best.parameters[parameter];
-  return { parameter, best, lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false, unresolved: iv?.unresolved ?? false };
+  return { parameter, best, lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false, unresolved: iv?.unresolved ?? false, disjoint: iv?.disjoint ?? false };
 }
 
 // ---------------------------------------------------------------- CSV
 
 export function summaryCsv(table: SummaryTable): string {
   const header = ['sightline', 'av_mag'];
-  for (const p of table.parameters) header.push(p, `${p}_lo`, `${p}_hi`, `${p}_at_edge`, `${p}_unresolved`);
-  header.push('level', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'agreement', 'warnings');
+  for (const p of table.parameters) header.push(p, `${p}_lo`, `${p}_hi`, `${p}_at_edge`, `${p}_unresolved`, `${p}_disjoint`);
+  header.push('level', 'delta_chi2', 'parameters_of_interest', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'agreement', 'warnings');
   const rows = table.rows.map((r) => {
     const f: CsvCell[] = [r.sightline, r.av];
-    for (const c of r.parameters) f.push(c.best, c.lo, c.hi, c.loAtEdge || c.hiAtEdge, c.unresolved);
-    f.push(table.level, r.chi2, r.dof, r.reducedChi2, r.pValue, r.agreement, r.warnings.join('; '));
+    for (const c of r.parameters) f.push(c.best, c.lo, c.hi, c.loAtEdge || c.hiAtEdge, c.unresolved, c.disjoint);
+    f.push(table.level, table.deltaChi2, table.parametersOfInterest, r.chi2, r.dof, r.reducedChi2, r.pValue, r.agreement, r.warnings.join('; '));
     return f;
   });
   return toCsv(header, rows);
@@ -104,7 +111,7 @@ export function summaryJson(table: SummaryTable, input: ReportInput): string {
     intervals: j.intervals.filter((i) => Math.abs(i.level - table.level) < 1e-9),
     warnings: j.warnings,
   }));
-  return `${JSON.stringify({ format: 'hoarfrost-report-table/1', level: table.level, parameters: table.parameters, rows: table.rows, joint }, null, 2)}\n`;
+  return `${JSON.stringify({ format: 'hoarfrost-report-table/1', level: table.level, deltaChi2: table.deltaChi2, parametersOfInterest: table.parametersOfInterest, parameters: table.parameters, rows: table.rows, joint }, null, 2)}\n`;
 }
 
 // ---------------------------------------------------------------- LaTeX
@@ -124,14 +131,16 @@ const LATEX_HEADS: Record<string, [string, string]> = {
 };
 
 function latexCell(c: ParameterCell): string {
-  const note = [c.loAtEdge || c.hiAtEdge ? 'a' : '', c.unresolved ? 'c' : ''].filter((n) => n !== '').map((n) => `\\tablenotemark{${n}}`).join('');
+  const note = [c.loAtEdge || c.hiAtEdge ? 'a' : '', c.unresolved ? 'c' : '', c.disjoint ? 'd' : ''].filter((n) => n !== '').map((n) => `\\tablenotemark{${n}}`).join('');
   if (c.lo === null || c.hi === null) return `$${numberLatex(c.best)}$${note}`;
   return `$${numberLatex(c.best)}$ ($${numberLatex(c.lo)}$--$${numberLatex(c.hi)}$)${note}`;
 }
 
 export function summaryLatex(table: SummaryTable, caption: string | undefined): string {
   const pct = `${Number((table.level * 100).toFixed(1))}\\%`;
-  const text = caption !== undefined ? escapeLatex(caption) : `Best-fitting models with ${pct} confidence intervals`;
+  const threshold = `$\\Delta\\chi^2 \\le ${table.deltaChi2.toFixed(2)}$`;
+  const reading = table.parametersOfInterest === 1 ? 'one-parameter' : `projected from the ${table.parametersOfInterest}-parameter region`;
+  const text = caption !== undefined ? escapeLatex(caption) : `Best-fitting models with ${pct} confidence intervals (${threshold}, ${reading})`;
   const heads = table.parameters.map((p) => LATEX_HEADS[p] ?? [escapeLatex(p), '']);
   const columns = `lr${'c'.repeat(heads.length)}rr`;
   const head1 = ['Sightline', '$A_V$', ...heads.map((h) => h[0]), '$\\chi^2$/dof', '$p$'];
@@ -159,10 +168,11 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
     '\\startdata',
     body.join(' \\\\\n'),
     '\\enddata',
-    `\\tablecomments{Intervals are the ranges of grid values inside the ${pct} confidence region of each parameter (profile $\\Delta\\chi^2$). A best fit is a statement about the model grid, not a measurement of the cloud.}`,
+    `\\tablecomments{Intervals are the ${pct} confidence intervals of ${table.parametersOfInterest === 1 ? 'each parameter alone' : `each parameter read as the projection of the joint region of ${table.parametersOfInterest} parameters`}: the values whose profile $\\chi^2$ (minimised over the other parameters) lies within ${threshold} of the minimum (Avni 1976; ${intervalReading(table.parametersOfInterest)}). A best fit is a statement about the model grid, not a measurement of the cloud.}`,
     '\\tablenotetext{a}{The interval reaches the edge of the model grid: the true range may extend beyond it.}',
     `\\tablenotetext{b}{Poor fit: $p < ${table.poorFitP}$.}`,
     '\\tablenotetext{c}{Only the best grid value lies inside the interval: it is narrower than the grid spacing there.}',
+    '\\tablenotetext{d}{The region has several disjoint parts: grid values between the bounds lie outside it.}',
     '\\end{deluxetable*}',
     '',
   ].join('\n');

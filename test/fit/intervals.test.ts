@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { fitSection } from '../../src/config/sections/fit.ts';
 import { intervalFromProfile } from '../../src/fit/intervals.ts';
+import { intervalReading, levelStatement } from '../../src/fit/regions.ts';
 import { runFitStage } from '../../src/fit/stage.ts';
 import type { Profile1D, RegionLevel } from '../../src/fit/types.ts';
 import { analyticAbundances, detection, logSpaced, observationSet, SPECIES, syntheticTable } from './synthetic.ts';
@@ -47,11 +48,11 @@ describe('intervals from a profile (Delta chi^2 projection)', () => {
 });
 
 describe('fit section defaults', () => {
-  it('model floor 0.3 dex, levels 68.3% and 95.4%, two parameters of interest, density x age pair', () => {
+  it('model floor 0.3 dex, levels 68.3% and 95.4%, one parameter of interest for intervals, density x age pair', () => {
     const s = fitSection.parse({ quantities: [{ species: 'CO(s)' }] });
     expect(s.model_sigma_dex).toBe(0.3);
     expect(s.levels).toEqual([0.683, 0.954]);
-    expect(s.parameters_of_interest).toBe(2);
+    expect(s.parameters_of_interest).toBe(1);
     expect(s.pairs).toEqual([['density', 'age_yr']]);
     expect(s.agreement_factor).toBe(10);
     expect(s.limits_in_dof).toBe(false);
@@ -60,14 +61,28 @@ describe('fit section defaults', () => {
     expect(fitSection.safeParse({ quantities: [{ species: 'CO(s)' }], levels: [1.2] }).success).toBe(false);
   });
 
-  it('one parameter of interest gives the 1-parameter thresholds (Avni 1976: 1.00 at 68.3%)', () => {
+  it('by default intervals use the one-parameter thresholds (Avni 1976: 1.00 at 68.3%) and the 2-D regions the two-parameter ones (2.30, 6.18)', () => {
     const table = syntheticTable({ densities: logSpaced(1e3, 1e6, 5), times: logSpaced(1e4, 1e7, 6) });
     const x = analyticAbundances(1e4, 1e5).map(Math.log10);
     const q = SPECIES.map((s, j) => detection('s', s, x[j], 0.2));
-    const { result } = runFitStage({ table, section: fitSection.parse({ quantities: [{ species: 'CO(s)' }], parameters_of_interest: 1 }), observations: observationSet(['s']), quantities: q });
+    const { result } = runFitStage({ table, section: fitSection.parse({ quantities: [{ species: 'CO(s)' }] }), observations: observationSet(['s']), quantities: q });
+    expect(result.levels.every((l) => l.parametersOfInterest === 1)).toBe(true);
+    expect(result.fits[0].intervals.every((iv) => iv.parametersOfInterest === 1)).toBe(true);
+    // For 2 dof the quantile is -2 ln(1 - L) (closed form): 2.2977 and 6.1582 at the rounded levels.
+    expect(result.regionLevels!.map((l) => Number(l.deltaChi2.toFixed(2)))).toEqual([2.3, 6.16]);
     // For 1 dof the quantile is z^2 with Phi(z) = (1 + L)/2: z = 1.0006 at 0.683 and 1.9954 at 0.954
     // (NIST/SEMATECH e-Handbook normal table, 1.3.6.7.1: Phi(1.00) = 0.84134, Phi(2.00) = 0.97725).
     expect(result.levels.map((l) => Number(l.deltaChi2.toFixed(2)))).toEqual([1.0, 3.98]);
+  });
+
+  it('parameters_of_interest: 2 keeps the projected reading, and says so', () => {
+    const table = syntheticTable({ densities: logSpaced(1e3, 1e6, 5), times: logSpaced(1e4, 1e7, 6) });
+    const x = analyticAbundances(1e4, 1e5).map(Math.log10);
+    const q = SPECIES.map((s, j) => detection('s', s, x[j], 0.2));
+    const { result } = runFitStage({ table, section: fitSection.parse({ quantities: [{ species: 'CO(s)' }], parameters_of_interest: 2 }), observations: observationSet(['s']), quantities: q });
+    expect(result.levels.map((l) => Number(l.deltaChi2.toFixed(2)))).toEqual([2.3, 6.16]);
+    expect(levelStatement(result.levels[0])).toBe('68.3%, Delta chi2 <= 2.30, projected from the 2-parameter region');
+    expect(intervalReading(1)).toBe('one-parameter');
   });
 });
 

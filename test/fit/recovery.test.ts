@@ -60,7 +60,8 @@ describe('recovery on a synthetic grid', () => {
       quantities.push(...drawQuantities(id, DENSITIES[i], TIMES[k], noise));
     }
     const { result, profiles } = runFitStage({ table, section, observations: observationSet(ids), quantities });
-    const level = result.levels.find((l) => l.level === 0.954)!;
+    // The 2-D region of density and age jointly: p = 2 (Avni 1976), whatever p the intervals use.
+    const level = result.regionLevels!.find((l) => l.level === 0.954)!;
     expect(level.parametersOfInterest).toBe(2);
     let covered = 0;
     let cellsInside = 0;

@@ -64,8 +64,10 @@ describe('profiles, intervals and degrees of freedom', () => {
       expect(a.hi).toBeGreaterThanOrEqual(a.best);
       expect(b.lo).toBeLessThanOrEqual(a.lo);
       expect(b.hi).toBeGreaterThanOrEqual(a.hi);
-      // Two parameters of interest: -2 ln(1 - 0.683), the 2-dof quantile in closed form.
-      expect(a.deltaChi2Threshold).toBeCloseTo(-2 * Math.log(1 - 0.683), 10);
+      // One parameter of interest (the default): z^2 with Phi(z) = (1 + 0.683)/2, z = 1.00064
+      // (NIST/SEMATECH e-Handbook normal table, 1.3.6.7.1: Phi(1.00) = 0.84134).
+      expect(a.deltaChi2Threshold).toBeCloseTo(1.0013, 3);
+      expect(a.parametersOfInterest).toBe(1);
     }
     // The uv_field axis is only weakly constrained by one species: its region runs to both grid edges.
     const uv = fit.intervals.find((iv) => iv.parameter === 'uv_field' && iv.level === 0.954)!;
@@ -193,7 +195,8 @@ describe('ties and held parameters', () => {
 
 describe('ratios and absolute abundances', () => {
   const table = syntheticTable({ densities: DENSITIES, times: TIMES });
-  const section = parse({ model_sigma_dex: 0 });
+  // Framed for the projected reading (p = 2) of the intervals, where it was measured.
+  const section = parse({ model_sigma_dex: 0, parameters_of_interest: 2 });
   /** The same observed columns as abundances X = N/N_H (N_H exact), or as X(H2O(s)) and ratios to H2O(s) (errors in quadrature). */
   function both(noisy: number[], sigma: number[]) {
     const abs = SPECIES.map((s, j) => detection('a', s, noisy[j], sigma[j]));

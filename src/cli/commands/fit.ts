@@ -9,7 +9,7 @@
 import { relative } from 'node:path';
 import type { Command } from 'commander';
 import { UserError } from '../../config/errors.ts';
-import { TABLE_LEVEL } from '../../fit/regions.ts';
+import { intervalReading, levelStatement, TABLE_LEVEL } from '../../fit/regions.ts';
 import type { FitStageResult, MapFitJson, ParameterInterval, SightlineFit } from '../../fit/types.ts';
 import type { CommandContext } from '../main.ts';
 
@@ -48,7 +48,7 @@ export function formatFitSummary(result: FitStageResult, map: Pick<MapFitJson, '
   const fitted = result.fittedParameters.filter((p) => !heldEverywhere.includes(p));
   const levels = result.levels.map((l) => `${(l.level * 100).toFixed(1)}% (Delta chi2 ${l.deltaChi2.toFixed(2)})`).join(', ');
   const heldText = heldEverywhere.length > 0 ? `; held at each sightline's own value: ${heldEverywhere.join(', ')}` : '';
-  out.push(`${result.nCandidates} candidates; fitted parameters: ${fitted.join(', ')}${heldText}; regions for ${result.levels[0].parametersOfInterest} parameters of interest at ${levels}; model floor ${result.modelSigmaDex} dex.`);
+  out.push(`${result.nCandidates} candidates; fitted parameters: ${fitted.join(', ')}${heldText}; intervals ${intervalReading(result.levels[0].parametersOfInterest)} at ${levels}; model floor ${result.modelSigmaDex} dex.`);
   if (map) {
     const m = map;
     out.push(`Map of ${m.nx} x ${m.ny} pixels: ${m.fittedPixels} fitted. Images of best density, best age, chi2, p-value and ${(m.level.level * 100).toFixed(1)}% interval widths are in fit/map_*.fits and fit/map.json.`);
@@ -65,7 +65,8 @@ export function formatFitSummary(result: FitStageResult, map: Pick<MapFitJson, '
       f.pValue < 1e-3 ? f.pValue.toExponential(1) : f.pValue.toFixed(3),
       `${Math.round(f.agreementFraction * 100)}%`,
     ]);
-    out.push(`Best fits, with ${(TABLE_LEVEL * 100).toFixed(1)}% intervals ([<=lo, >=hi]: the interval reaches the grid's edge; *: narrower than the grid spacing):`);
+    const tableLevel = result.levels.find((l) => l.level === TABLE_LEVEL);
+    out.push(`Best fits, with ${tableLevel ? levelStatement(tableLevel) : `${(TABLE_LEVEL * 100).toFixed(1)}%`} intervals ([<=lo, >=hi]: the interval reaches the grid's edge; *: narrower than the grid spacing):`);
     out.push(textTable(header, rows));
     if (result.fits.length > shown.length) out.push(`... and ${result.fits.length - shown.length} more in fit/best_fits.csv (show them with --rows ${result.fits.length})`);
   }

@@ -41,8 +41,13 @@ export const fitSection = z
     limit_sigma_dex: z.number().min(0).default(0),
     /** Confidence levels of the Delta chi^2 regions (68.3% and 95.4%: the 1 and 2 sigma of a Gaussian, common practice); the same as DEFAULT_LEVELS of the fit room's table, src/fit/regions.ts. */
     levels: z.array(z.number().gt(0).lt(1)).min(1).default([0.683, 0.954]),
-    /** Parameters of interest p of the Delta chi^2 thresholds (Avni 1976): 2 for density and age jointly. */
-    parameters_of_interest: z.number().int().min(1).max(10).default(2),
+    /**
+     * Parameters of interest p of the Delta chi^2 thresholds of the intervals (Avni 1976):
+     * 1 (the default) gives each parameter's own interval (Delta chi^2 = 1.00 at 68.3%);
+     * 2 or more the projection of the joint region of p parameters onto each axis, a wider
+     * interval labelled "projected" wherever it is shown. The 2-D regions always use p = 2.
+     */
+    parameters_of_interest: z.number().int().min(1).max(10).default(1),
     /** Pairs of parameters whose 2-D profiles are computed. */
     pairs: z.array(z.tuple([parameterName, parameterName])).default([['density', 'age_yr']]),
     /** A model agrees with a quantity when within this factor (common practice: 10, |d| < 1 dex). */

@@ -7,7 +7,7 @@
  * replaced by the single best value (docs/physics.md section 8).
  */
 import type { TopLevelSpec } from 'vega-lite';
-import { deltaChi2Threshold } from '../../fit/regions.ts';
+import { deltaChi2Threshold, PAIR_PARAMETERS } from '../../fit/regions.ts';
 import type { Profile2D, SightlineFit } from '../../fit/types.ts';
 import { contourSegments } from '../contours.ts';
 import { slug } from '../escape.ts';
@@ -58,7 +58,7 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
   const contours: { x: number; y: number; x2: number; y2: number; region: string }[] = [];
   const regionNames: string[] = [];
   for (const level of ctx.levels) {
-    const threshold = deltaChi2Threshold(level, 2, ctx.input.fit.levels);
+    const threshold = deltaChi2Threshold(level, PAIR_PARAMETERS, ctx.input.fit.regionLevels ?? ctx.input.fit.levels);
     const region = `${levelLabel(level)} (Δχ² ≤ ${threshold.toFixed(2)})`;
     regionNames.push(region);
     for (const s of contourSegments(xs, ys, pair.deltaChi2, threshold)) {
@@ -173,7 +173,7 @@ export const chi2MapFigure: FigureBuilder = {
         name: sightlineFigureName(request, indexOf(ctx, id), request.sightlines.length, slug(id)),
         kind: 'chi2_map',
         title: `χ² map of ${id}`,
-        caption: `Δχ² over ${plainName(xName)} and ${plainName(yName)} for ${id} (minimised over every other parameter), with the joint ${ctx.levels.map(levelLabel).join(' and ')} regions and the best fit (cross).`,
+        caption: `Δχ² over ${plainName(xName)} and ${plainName(yName)} for ${id} (minimised over every other parameter), with the joint regions of the two parameters (${ctx.levels.map((l) => `${levelLabel(l)}: Δχ² ≤ ${deltaChi2Threshold(l, PAIR_PARAMETERS, ctx.input.fit.regionLevels ?? ctx.input.fit.levels).toFixed(2)}`).join(', ')}) and the best fit (cross).`,
         sightline: id,
         spec: buildChi2MapSpec(ctx, fit, pair, transposed),
       });

@@ -5,6 +5,7 @@
  * lie outside the grid).
  */
 import type { TopLevelSpec } from 'vega-lite';
+import { levelStatement, statedLevel } from '../../fit/regions.ts';
 import type { MapImageName } from '../../fit/types.ts';
 import type { Sightline } from '../../obs/types.ts';
 import { figureConfig, figureSize } from '../theme.ts';
@@ -150,7 +151,7 @@ export const fitVsAvFigure: FigureBuilder = {
         name: request.name,
         kind: 'fit_vs_av',
         title: 'Best-fit density and age against A_V',
-        caption: `Best-fit density and chemical age of each sightline against its observed visual extinction, with ${levelLabel(ctx.levels[0])} intervals; open symbols: the interval reaches the edge of the model grid.`,
+        caption: `Best-fit density and chemical age of each sightline against its observed visual extinction, with ${levelStatement(statedLevel(ctx.levels[0], ctx.input.fit.levels, 1), 'Δχ²')} intervals; open symbols: the interval reaches the edge of the model grid.`,
         spec: buildFitVsAvSpec(ctx),
       },
     ];

@@ -5,7 +5,7 @@
  * interval is where the profile lies below a line).
  */
 import type { TopLevelSpec } from 'vega-lite';
-import { deltaChi2Threshold } from '../../fit/regions.ts';
+import { intervalReading, levelStatement, statedLevel } from '../../fit/regions.ts';
 import type { Profile1D, SightlineFit } from '../../fit/types.ts';
 import { slug } from '../escape.ts';
 import { figureConfig, figureSize } from '../theme.ts';
@@ -28,9 +28,8 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
   const panelWidth = Math.round((totalWidth - AXIS_ROOM - PANEL_SPACING * (columns - 1)) / columns);
   // The thresholds the fit's intervals used (for p parameters of interest, as the fit states them), so the lines cut the profiles where the intervals end.
   const thresholds = ctx.levels.map((level) => {
-    const stated = ctx.input.fit.levels.find((l) => Math.abs(l.level - level) < 1e-9);
-    const threshold = stated?.deltaChi2 ?? deltaChi2Threshold(level, 1);
-    return { level: `${levelLabel(level)} (Δχ² = ${threshold.toFixed(2)})`, threshold };
+    const stated = statedLevel(level, ctx.input.fit.levels, 1);
+    return { level: `${levelLabel(level)} (Δχ² = ${stated.deltaChi2.toFixed(2)}, ${intervalReading(stated.parametersOfInterest)})`, threshold: stated.deltaChi2 };
   });
   const yMax = Y_HEADROOM * Math.max(...thresholds.map((t) => t.threshold));
   const levelNames = thresholds.map((t) => t.level);
@@ -105,7 +104,7 @@ export const profilesFigure: FigureBuilder = {
         name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
         kind: 'profiles',
         title: `χ² profiles of ${id}`,
-        caption: `Δχ² profiles of ${id} for each fitted parameter (chi² minimised over the others); the horizontal lines are the Δχ² thresholds of the ${ctx.levels.map(levelLabel).join(' and ')} intervals, the vertical line the best fit.`,
+        caption: `Δχ² profiles of ${id} for each fitted parameter (chi² minimised over the others); the horizontal lines are the Δχ² thresholds of the intervals (${ctx.levels.map((l) => levelStatement(statedLevel(l, ctx.input.fit.levels, 1), 'Δχ²')).join('; ')}), the vertical line the best fit.`,
         sightline: id,
         spec: buildProfilesSpec(ctx, fit, profiles),
       });

@@ -6,6 +6,7 @@
  * that quantities do not hide each other), and the age interval is shaded.
  */
 import type { TopLevelSpec } from 'vega-lite';
+import { levelStatement, statedLevel } from '../../fit/regions.ts';
 import type { SightlineFit } from '../../fit/types.ts';
 import type { ObservedQuantity } from '../../obs/types.ts';
 import { slug } from '../escape.ts';
@@ -199,7 +200,7 @@ export const tracksFigure: FigureBuilder = {
         name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
         kind: 'tracks',
         title: `Model tracks for ${id}`,
-        caption: `Abundances or ratios of the best-fit model for ${id} against time (lines), with the observed values at the best-fit age: detections with 1σ error bars, limits as triangles; the shaded band is the ${Math.round(ctx.levels[0] * 1000) / 10}% age interval.`,
+        caption: `Abundances or ratios of the best-fit model for ${id} against time (lines), with the observed values at the best-fit age: detections with 1σ error bars, limits as triangles; the shaded band is the ${levelStatement(statedLevel(ctx.levels[0], ctx.input.fit.levels, 1), 'Δχ²')} age interval.`,
         sightline: id,
         spec: buildTracksSpec(ctx, fit, tracks, observed, labels),
       });
