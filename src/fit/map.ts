@@ -14,6 +14,7 @@ import { censoredCost } from './censored.ts';
 import { degreesOfFreedom } from './dof.ts';
 import { usedCount, type ObservationVector } from './observation-vector.ts';
 import type { Axis } from './axes.ts';
+import { axisCoordinates, subgridInterval, type SubgridInterval } from './subgrid.ts';
 import { AGE_PARAMETER, MAP_IMAGE_NAMES, type MapFitImages, type MapImageName, type RegionLevel } from './types.ts';
 
 /** Candidates scored per block: their model values (block x terms doubles) stay in the L1/L2 cache while every pixel is visited. */
@@ -23,6 +24,14 @@ const DENSITY_PARAMETER = 'density';
 const SEED_CANDIDATES = 512;
 /** Relative widening of the cut-off bound, far above round-off in best + threshold and far below any chi^2 difference that matters. */
 const PRUNE_MARGIN = 1 + 1e-12;
+/**
+ * Depth of the profiles kept exact, in units of the level's threshold: the
+ * sub-grid bounds interpolate between the last value inside the region and
+ * the first outside, so that one must be known too when it lies within this
+ * depth (4 thresholds: 2 sigma beyond a 1-sigma bound); a deeper value is
+ * taken at the depth, its known lower bound (subgrid.ts), the widest reading.
+ */
+const PROFILE_DEPTH = 4;
 
 export interface MapPixel {
   x: number;
@@ -113,27 +122,16 @@ function openValues(candidateKey: Int32Array, nKeys: number, axis: Axis): Uint8A
 }
 
 /**
- * Lowest and highest grid value whose profile lies within the threshold; at
- * the edge when either is the outermost value with a candidate open to the
- * pixel (as intervalFromProfile: values without one were never tested). The
- * openness comes from `open`, not from the minima, which are also Infinity
- * where every candidate of a value was cut short as far outside the region.
+ * The sub-grid interval of one pixel's profile (subgrid.ts), as
+ * intervalFromProfile reads it. Openness comes from `open`, not from the
+ * minima, which are also Infinity where every candidate of a value was cut
+ * short as beyond the kept depth: such a value lies at least PROFILE_DEPTH
+ * thresholds above the minimum and is taken there (the widest reading).
  */
-function regionBounds(mins: Float64Array, offset: number, n: number, best: number, delta: number, values: Float64Array, open: Uint8Array, openOffset: number): { lo: number; hi: number; atEdge: boolean } {
-  let first = -1;
-  let last = -1;
-  let firstOpen = -1;
-  let lastOpen = -1;
-  for (let i = 0; i < n; i++) {
-    if (open[openOffset + i] === 0) continue;
-    if (firstOpen < 0) firstOpen = i;
-    lastOpen = i;
-    if (mins[offset + i] - best <= delta) {
-      if (first < 0) first = i;
-      last = i;
-    }
-  }
-  return { lo: values[first], hi: values[last], atEdge: n > 1 && (first === firstOpen || last === lastOpen) };
+function pixelInterval(mins: Float64Array, offset: number, threshold: number, axis: Axis, coordinates: { u: Float64Array; log: boolean }, open: Uint8Array, openOffset: number): SubgridInterval {
+  const sub = subgridInterval(axis.values, coordinates.u, coordinates.log, mins, offset, threshold, (i) => open[openOffset + i] === 1, PROFILE_DEPTH * threshold);
+  if (sub === undefined) throw new RangeError(`a fitted pixel has no open value of ${axis.name}`);
+  return sub;
 }
 
 export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly MapPixel[], level: RegionLevel, where: { file?: string } = {}): MapFitImages {
@@ -177,7 +175,7 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const lInverseSigma = lim.weightLo;
   const lKind = lim.weightHi;
 
-  const delta = level.deltaChi2;
+  const delta = PROFILE_DEPTH * level.deltaChi2;
   /**
    * Scores candidates c0..c1 (step `stride`) against every pixel. A candidate
    * whose partial chi^2 already exceeds the pixel's best so far plus the
@@ -247,6 +245,9 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   let poor = 0;
   let floored = 0;
   let atEdge = 0;
+  let unresolved = 0;
+  const densityCoordinates = axisCoordinates(density.values);
+  const ageCoordinates = axisCoordinates(age.values);
   usable.forEach((px, p) => {
     const i = px.y * nx + px.x;
     const c = bestCandidate[p];
@@ -256,8 +257,15 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
     const dof = dofs.dof;
     if (dofs.floored) floored++;
     const key = Math.max(0, pixelKey[p]);
-    const dr = regionBounds(densityMin, p * nD, nD, chi2, level.deltaChi2, density.values, densityOpen, key * nD);
-    const ar = regionBounds(ageMin, p * nA, nA, chi2, level.deltaChi2, age.values, ageOpen, key * nA);
+    // Minima above the final cut-off are not exact (a better candidate of that value may have been cut
+    // against the tighter bound of a later best): they are known only to lie beyond it.
+    const cutoff = (chi2 + delta) * PRUNE_MARGIN;
+    for (let b = p * nD; b < (p + 1) * nD; b++) if (densityMin[b] > cutoff) densityMin[b] = Infinity;
+    for (let b = p * nA; b < (p + 1) * nA; b++) if (ageMin[b] > cutoff) ageMin[b] = Infinity;
+    const dr = pixelInterval(densityMin, p * nD, level.deltaChi2, density, densityCoordinates, densityOpen, key * nD);
+    const ar = pixelInterval(ageMin, p * nA, level.deltaChi2, age, ageCoordinates, ageOpen, key * nA);
+    const drEdge = nD > 1 && (dr.loAtEdge || dr.hiAtEdge);
+    const arEdge = nA > 1 && (ar.loAtEdge || ar.hiAtEdge);
     const pValue = chiSquarePValue(chi2, dof);
     images.best_density[i] = density.values[dBin[c]];
     images.best_age_yr[i] = age.values[aBin[c]];
@@ -272,16 +280,24 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
     pixelBest[i] = c;
     images.density_width_dex[i] = Math.log10(dr.hi / dr.lo);
     images.age_width_dex[i] = Math.log10(ar.hi / ar.lo);
-    images.at_edge[i] = dr.atEdge || ar.atEdge ? 1 : 0;
+    images.at_edge[i] = drEdge || arEdge ? 1 : 0;
+    const narrow = (nD > 1 && dr.inside <= 1) || (nA > 1 && ar.inside <= 1);
+    images.unresolved[i] = narrow ? 1 : 0;
+    images.density_subgrid[i] = dr.best;
+    images.age_subgrid_yr[i] = ar.best;
     images.used_quantities[i] = usedCount(px.obs);
     if (pValue < ctx.options.poorFitP) poor++;
-    if (dr.atEdge || ar.atEdge) atEdge++;
+    if (drEdge || arEdge) atEdge++;
+    if (narrow) unresolved++;
   });
   if (usable.length < pixels.length) warnings.push(`${pixels.length - usable.length} of ${pixels.length} map pixels have no usable quantity and are left blank (NaN) in every image.`);
   if (floored > 0) {
     warnings.push(`${floored} of ${nPix} fitted pixels have fewer counted quantities than the ${fitted} fitted parameters plus one: their dof is raised to 1 (the dof image), so their p-values do not test the fit.`);
   }
   if (poor > 0) warnings.push(`${poor} of ${nPix} fitted pixels are poor fits (p < ${ctx.options.poorFitP}): see the p_value image.`);
+  if (unresolved > 0) {
+    warnings.push(`${unresolved} of ${nPix} fitted pixels have a ${(level.level * 100).toFixed(1)}% density or age interval narrower than the grid spacing (the unresolved image): their bounds come from interpolation between grid values alone.`);
+  }
   if (atEdge > 0) warnings.push(`${atEdge} of ${nPix} fitted pixels have a ${(level.level * 100).toFixed(1)}% density or age interval reaching the grid's edge (the at_edge image): the truth may lie outside the grid there.`);
   return { nx, ny, images, bestCandidate: pixelBest, fittedPixels: nPix, level, warnings };
 }

@@ -15,7 +15,8 @@ import { fitSightline } from './fit-sightline.ts';
 import { holdParameters } from './held.ts';
 import { fitJoint } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
-import { buildModelQuantities, collectTerms, termKey } from './model-quantities.ts';
+import { buildModelQuantities, collectTerms, termKey, type ModelQuantities } from './model-quantities.ts';
+import { interpolationError, refinableAxes, refinedSize, refineTable } from './refine.ts';
 import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
 import { PAIR_PARAMETERS, regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
@@ -23,6 +24,7 @@ import {
   AGE_PARAMETER,
   type CandidateTable,
   type FitStageResult,
+  type InterpolationSummary,
   type JointFit,
   type MapFitImages,
   type ProfilesJson,
@@ -163,10 +165,57 @@ export function fitOptions(section: FitSection): FitOptions {
   };
 }
 
+/** Candidates a refined mesh may hold: the refinement factor is lowered until the mesh fits (about 100 MB of model values for ten quantities). */
+const REFINED_CANDIDATES_BUDGET = 1_000_000;
+
+/**
+ * The refined table of a sightline fit (refine.ts), with the interpolation
+ * error per term folded into the term floors. A map, fit.refine: 1, or a grid
+ * with nothing to refine keeps the grid's own table.
+ */
+function refineForFit(
+  table: CandidateTable,
+  axes: GridAxes,
+  model: ModelQuantities,
+  section: FitSection,
+  held: FitStageInput['held'],
+  warnings: string[],
+): { table: CandidateTable; axes: GridAxes; model: ModelQuantities; summary?: InterpolationSummary; errorDex?: Map<string, number> } {
+  const heldNames = new Set(Object.values(held ?? {}).flatMap((h) => Object.keys(h)));
+  const names = refinableAxes(axes, heldNames);
+  if (section.refine <= 1 || names.length === 0) return { table, axes, model };
+  let factor = section.refine;
+  while (factor > 1 && refinedSize(table, axes, names, factor) > REFINED_CANDIDATES_BUDGET) factor--;
+  if (factor <= 1) {
+    warnings.push(`the grid (${table.nModels * table.nTimes} candidates) is too large to refine within ${REFINED_CANDIDATES_BUDGET} candidates: best fits and intervals are read between grid values from the profiles alone.`);
+    return { table, axes, model };
+  }
+  const error = interpolationError(table, axes, model, names);
+  const refined = refineTable(table, axes, names, factor);
+  const refinedAxes = buildAxes(refined.table);
+  const refinedModel = buildModelQuantities(refined.table, model.terms);
+  const byLabel = (m: Map<string, number>) => Object.fromEntries(model.terms.map((t) => [t.label, m.get(t.key) ?? 0]));
+  return {
+    table: refined.table,
+    axes: refinedAxes,
+    model: refinedModel,
+    errorDex: error.errorDex,
+    summary: {
+      factor,
+      axes: refined.axes,
+      gridCandidates: table.nModels * table.nTimes,
+      refinedCandidates: refined.table.nModels * refined.table.nTimes,
+      errorDex: byLabel(error.errorDex),
+      leaveOneOutDex: byLabel(error.leaveOneOutDex),
+    },
+  };
+}
+
 export function runFitStage(input: FitStageInput): FitStageOutput {
-  const { table, section, observations, quantities, source } = input;
+  const { section, observations, quantities, source } = input;
+  let table = input.table;
   if (table.nModels === 0) throw new UserError('the model store holds no finished model to fit. Run the grid first (`hoarfrost grid`), and check its failures.', { file: source?.file });
-  const axes = buildAxes(table);
+  let axes = buildAxes(table);
   checkOptions(section, axes, table, source);
   checkRatioReferences(observations, quantities, source);
   checkWidths(section, quantities, source);
@@ -175,9 +224,22 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   if (terms.length === 0) {
     throw located(source, ['fit', 'quantities'], `no sightline of ${observations.file} has a value of any quantity in fit.quantities; check the species names against the observation columns.`);
   }
-  const model = buildModelQuantities(table, terms, { file: source?.file });
+  let model = buildModelQuantities(table, terms, { file: source?.file });
   const options = fitOptions(section);
   options.termModelSigmaDex = termFloors(section, quantities);
+  const refineWarnings: string[] = [];
+  let interpolation: InterpolationSummary | undefined;
+  if (observations.kind !== 'map') {
+    const refined = refineForFit(table, axes, model, section, input.held, refineWarnings);
+    if (refined.summary && refined.errorDex) {
+      ({ table, axes, model } = refined);
+      interpolation = refined.summary;
+      // The interpolation error joins each quantity's model floor in quadrature.
+      const floors = new Map<string, number>();
+      for (const t of model.terms) floors.set(t.key, Math.hypot(options.termModelSigmaDex.get(t.key) ?? options.modelSigmaDex, refined.errorDex.get(t.key) ?? 0));
+      options.termModelSigmaDex = floors;
+    }
+  }
   options.levels = regionLevels([...section.levels, TABLE_LEVEL], section.parameters_of_interest);
   const ctx: FitContext = { table, model, axes, options, chi2: new Float64Array(model.nCandidates) };
 
@@ -197,7 +259,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     else byId.set(q.sightline, [q]);
   }
   const vectors: ObservationVector[] = [];
-  const warnings: string[] = [...observations.warnings];
+  const warnings: string[] = [...observations.warnings, ...refineWarnings];
   const unfitted: string[] = [];
   const isMap = observations.kind === 'map';
   if (isMap && section.joint.length > 0) {
@@ -298,6 +360,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     levels: options.levels,
     regionLevels: regionLevels([...section.levels, TABLE_LEVEL], PAIR_PARAMETERS),
     modelSigmaDex: section.model_sigma_dex,
+    ...(interpolation ? { interpolation } : {}),
     poorFitP: section.poor_fit_p,
     nCandidates: model.nCandidates,
     fits,

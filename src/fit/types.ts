@@ -163,10 +163,16 @@ export interface ParameterInterval {
   deltaChi2Threshold: number;
   /** p of the threshold: 1 one-parameter, more a projection (absent in files written before it was stated). */
   parametersOfInterest?: number;
+  /** Sub-grid best value: the vertex of the profile interpolated between grid values (docs/statistics.md section 5). */
   best: number;
-  /** Smallest and largest grid value inside the region. */
+  /** The grid value of the best candidate (absent in files written before sub-grid reading). */
+  bestNode?: number;
+  /** Bounds of the region, interpolated between grid values (sub-grid reading). */
   lo: number;
   hi: number;
+  /** The open grid values just outside the region (the edge value where it reaches the edge): the bounds the grid itself resolves. */
+  nodeLo?: number;
+  nodeHi?: number;
   /** The region reaches the smallest (largest) grid value with a candidate open to the sightline: the truth may lie outside the grid. */
   loAtEdge: boolean;
   hiAtEdge: boolean;
@@ -174,7 +180,7 @@ export interface ParameterInterval {
   disjoint: boolean;
   /** The grid has one value of this parameter: it was not fitted. */
   fixed: boolean;
-  /** Only the best grid value lies inside: the region is narrower than the grid spacing there, which the bounds cannot show. */
+  /** At most one grid value lies inside: the region is narrower than the grid spacing; its bounds come from the interpolation alone, and nodeLo..nodeHi is what the grid resolves. */
   unresolved: boolean;
 }
 
@@ -261,6 +267,8 @@ export interface FitStageResult {
   /** Levels and thresholds of the 2-D regions of the pair profiles (p = 2); absent in files written before they were stated. */
   regionLevels?: RegionLevel[];
   modelSigmaDex: number;
+  /** The sub-grid refinement of the models (absent when off, for maps, and in files written before it). */
+  interpolation?: InterpolationSummary;
   /** p-value below which a fit is reported as poor. */
   poorFitP: number;
   nCandidates: number;
@@ -270,6 +278,21 @@ export interface FitStageResult {
   warnings: string[];
   /** Model cautions to show the reader (docs/physics.md section 8). */
   cautions: string[];
+}
+
+/** How the models were refined between grid values (docs/statistics.md section 5). */
+export interface InterpolationSummary {
+  /** Steps each grid interval was cut into. */
+  factor: number;
+  /** Refined axes (grid conditions, then age_yr). */
+  axes: string[];
+  /** Candidates of the grid and of the refined mesh. */
+  gridCandidates: number;
+  refinedCandidates: number;
+  /** Per quantity label: the interpolation error at the grid spacing, dex, added in quadrature to the model floor. */
+  errorDex: Record<string, number>;
+  /** Per quantity label: the leave-one-out error measured at held-out grid values (twice the spacing), dex. */
+  leaveOneOutDex: Record<string, number>;
 }
 
 /** What profiles.json holds. */
@@ -288,7 +311,7 @@ export const MAP_IMAGE_NAMES = [
   'reduced_chi2',
   'p_value',
   'dof',
-  /** Bounds of the 68.3% intervals (grid values). */
+  /** Bounds of the 68.3% intervals, read between grid values (sub-grid). */
   'density_lo',
   'density_hi',
   'age_lo_yr',
@@ -298,6 +321,11 @@ export const MAP_IMAGE_NAMES = [
   'age_width_dex',
   /** 1 where the 68.3% density or age interval reaches the grid edge, else 0. */
   'at_edge',
+  /** 1 where the 68.3% density or age interval holds at most one grid value (narrower than the grid spacing), else 0. */
+  'unresolved',
+  /** Sub-grid best density and age: the vertices of the interpolated profiles (docs/statistics.md section 5). */
+  'density_subgrid',
+  'age_subgrid_yr',
   'used_quantities',
 ] as const;
 export type MapImageName = (typeof MAP_IMAGE_NAMES)[number];

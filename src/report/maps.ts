@@ -30,6 +30,9 @@ export const MAP_IMAGE_INFO: Record<MapImageName, MapImageInfo> = {
   density_width_dex: { bunit: 'dex', description: 'Width log10(hi/lo) of the density interval' },
   age_width_dex: { bunit: 'dex', description: 'Width log10(hi/lo) of the age interval' },
   at_edge: { bunit: '', description: '1 where the density or age interval reaches the grid edge' },
+  unresolved: { bunit: '', description: '1 where the density or age interval is narrower than the grid spacing' },
+  density_subgrid: { bunit: 'cm-3', description: 'Sub-grid best density (interpolated profile)' },
+  age_subgrid_yr: { bunit: 'yr', description: 'Sub-grid best age (interpolated profile)' },
   used_quantities: { bunit: '', description: 'Observed quantities used in the fit' },
 };
 

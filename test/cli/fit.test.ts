@@ -103,7 +103,7 @@ describe('hoarfrost fit', () => {
     const r = hoarfrost(dir);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(r.stdout).toMatch(/Best fits, with 68\.3% intervals/);
+    expect(r.stdout).toMatch(/Best fits, with 68\.3%, Delta chi2 <= 1\.00, one-parameter intervals/);
     expect(r.stdout).toMatch(/Cautions:/);
     const csv = readFileSync(join(dir, 'out', 'fit', 'best_fits.csv'), 'utf8').trim().split('\n');
     const header = csv[0].split(',');

@@ -12,19 +12,45 @@ function profile(delta: (number | null)[]): Profile1D {
   return { parameter: 'density', values: delta.map((_, i) => 10 ** (3 + i)), chi2Min: delta.map((d) => (d === null ? null : d + 5)), deltaChi2: delta };
 }
 
-describe('intervals from a profile (Delta chi^2 projection)', () => {
-  it('bounds are the outermost grid values inside the threshold', () => {
-    const iv = intervalFromProfile(profile([9, 2, 0, 1.5, 7]), 1e5, LEVEL);
-    expect([iv.lo, iv.hi, iv.loAtEdge, iv.hiAtEdge, iv.disjoint, iv.unresolved, iv.fixed]).toEqual([1e4, 1e6, false, false, false, false, false]);
+describe('intervals from a profile (sub-grid reading)', () => {
+  it('is exact for a parabolic profile: vertex and bounds between grid values (u = log10 value)', () => {
+    // chi^2(u) = 5 + ((u - 5.3) / 0.4)^2 at u = 3..7: the Gaussian case, minimum between two grid values.
+    const values = [3, 4, 5, 6, 7].map((u) => 10 ** u);
+    const chi2 = [3, 4, 5, 6, 7].map((u) => 5 + ((u - 5.3) / 0.4) ** 2);
+    const p: Profile1D = { parameter: 'density', values, chi2Min: chi2, deltaChi2: chi2.map((c) => c - Math.min(...chi2)) };
+    const one: RegionLevel = { level: 0.683, parametersOfInterest: 1, deltaChi2: 1 };
+    const iv = intervalFromProfile(p, 1e5, one);
+    expect(Math.log10(iv.best)).toBeCloseTo(5.3, 12);
+    expect(Math.log10(iv.lo)).toBeCloseTo(4.9, 12);
+    expect(Math.log10(iv.hi)).toBeCloseTo(5.7, 12);
+    expect(iv.bestNode).toBe(1e5);
+    // One grid value (1e5) inside: narrower than the grid, flagged, with the grid's own bounds beside it.
+    expect([iv.unresolved, iv.nodeLo, iv.nodeHi]).toEqual([true, 1e4, 1e6]);
+    const wide = intervalFromProfile(p, 1e5, LEVEL);
+    expect(Math.log10(wide.lo)).toBeCloseTo(5.3 - 0.4 * Math.sqrt(2.3), 12);
+    expect(Math.log10(wide.hi)).toBeCloseTo(5.3 + 0.4 * Math.sqrt(2.3), 12);
   });
 
-  it('flags the grid edges, a region in several parts, a single value, and skips missing cells', () => {
-    const edge = intervalFromProfile(profile([0, 1, 5]), 1e3, LEVEL);
-    expect([edge.loAtEdge, edge.hiAtEdge]).toEqual([true, false]);
+  it('the vertex is the parabola through the lowest value and its neighbours (Numerical Recipes 10.2.1)', () => {
+    // Through (3, 3), (4, 0), (5, 4): 3.5 (u - 4)^2 + 0.5 (u - 4), vertex at u = 4 - 1/14.
     const split = intervalFromProfile(profile([3, 0, 4, 2, 9]), 1e4, LEVEL);
-    expect([split.lo, split.hi, split.disjoint]).toEqual([1e4, 1e6, true]);
+    expect(Math.log10(split.best)).toBeCloseTo(4 - 1 / 14, 12);
+    expect([split.nodeLo, split.nodeHi, split.disjoint]).toEqual([1e3, 1e7, true]);
+    expect(split.lo).toBeGreaterThan(1e3);
+    expect(split.lo).toBeLessThan(1e4);
+    expect(split.hi).toBeGreaterThan(1e6);
+    expect(split.hi).toBeLessThan(1e7);
+  });
+
+  it('flags the grid edges, a single value, and skips missing cells', () => {
+    const iv = intervalFromProfile(profile([9, 2, 0, 1.5, 7]), 1e5, LEVEL);
+    expect([iv.nodeLo, iv.nodeHi, iv.loAtEdge, iv.hiAtEdge, iv.disjoint, iv.unresolved, iv.fixed]).toEqual([1e3, 1e7, false, false, false, false, false]);
+    const edge = intervalFromProfile(profile([0, 1, 5]), 1e3, LEVEL);
+    expect([edge.loAtEdge, edge.hiAtEdge, edge.lo, edge.best]).toEqual([true, false, 1e3, 1e3]);
     const single = intervalFromProfile(profile([8, 0, 8]), 1e4, LEVEL);
-    expect([single.lo, single.hi, single.unresolved]).toEqual([1e4, 1e4, true]);
+    expect([single.best, single.unresolved, single.nodeLo, single.nodeHi]).toEqual([1e4, true, 1e3, 1e5]);
+    // Symmetric: the bounds where sqrt(Delta chi^2) reaches sqrt(2.3) on the line from 0 to sqrt(8).
+    expect(Math.log10(single.hi) - 4).toBeCloseTo(Math.sqrt(2.3 / 8), 12);
     // A missing cell (null) is never inside, even though null <= 2.3 in JavaScript.
     const holes = intervalFromProfile(profile([null, 0, null]), 1e4, LEVEL);
     expect([holes.lo, holes.hi]).toEqual([1e4, 1e4]);
@@ -38,10 +64,10 @@ describe('intervals from a profile (Delta chi^2 projection)', () => {
     expect([lone.loAtEdge, lone.hiAtEdge]).toEqual([true, true]);
     // Excluded models above 1e5: a region reaching 1e5 reaches the grid's edge for this sightline.
     const cut = intervalFromProfile(profile([9, 2, 0, null, null]), 1e5, LEVEL);
-    expect([cut.lo, cut.hi, cut.loAtEdge, cut.hiAtEdge]).toEqual([1e4, 1e5, false, true]);
+    expect([cut.nodeLo, cut.hi, cut.loAtEdge, cut.hiAtEdge]).toEqual([1e3, 1e5, false, true]);
     // A value without models between two inside the region is a hole in the grid, not a value outside the region.
-    const gap = intervalFromProfile(profile([9, 0, null, 1, 9]), 1e4, LEVEL);
-    expect([gap.lo, gap.hi, gap.disjoint, gap.loAtEdge, gap.hiAtEdge]).toEqual([1e4, 1e6, false, false, false]);
+    const gap = intervalFromProfile(profile([9, 0, null, 0.5, 9]), 1e4, LEVEL);
+    expect([gap.nodeLo, gap.nodeHi, gap.disjoint, gap.loAtEdge, gap.hiAtEdge]).toEqual([1e3, 1e7, false, false, false]);
     const split = intervalFromProfile(profile([9, 0, null, 5, 1, 9]), 1e4, LEVEL);
     expect(split.disjoint).toBe(true);
   });

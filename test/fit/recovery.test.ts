@@ -27,7 +27,8 @@ function drawQuantities(id: string, n: number, t: number, noise: () => number, s
   ];
 }
 
-const section = fitSection.parse({ quantities: [{ species: 'CO(s)' }], model_sigma_dex: 0 });
+// Truths on grid values, regions read on the grid's own cells: no sub-grid mesh (coverage.test.ts tests the mesh).
+const section = fitSection.parse({ quantities: [{ species: 'CO(s)' }], model_sigma_dex: 0, refine: 1 });
 const table = syntheticTable({ densities: DENSITIES, times: TIMES });
 
 describe('recovery on a synthetic grid', () => {

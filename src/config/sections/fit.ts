@@ -62,6 +62,14 @@ export const fitSection = z
     limits_in_dof: z.boolean().default(false),
     /** A fit with a p-value below this is reported as poor. */
     poor_fit_p: z.number().gt(0).lt(1).default(0.01),
+    /**
+     * Sub-grid resolution: every grid interval of density, age and the other
+     * fitted conditions is cut into this many steps, the models interpolated
+     * between grid values (log abundance multilinear in log parameter and log
+     * time; docs/statistics.md section 5); 1 switches it off. Sightline
+     * tables only: a map reads its profiles between grid values instead.
+     */
+    refine: z.number().int().min(1).max(10).default(4),
     /** Groups of sightlines fitted jointly with shared parameters. */
     joint: z.array(jointGroup).default([]),
   })
