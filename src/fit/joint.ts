@@ -15,6 +15,9 @@ import { intervalFromProfile } from './intervals.ts';
 import type { ObservationVector } from './observation-vector.ts';
 import { profileFromMinima } from './profiles.ts';
 import { scoreCandidates } from './score.ts';
+import { censoredCost } from './censored.ts';
+import { choleskyLower } from './covariance.ts';
+import { detectionCovariance } from './observation-vector.ts';
 import type { JointFit, JointMember, ParameterInterval, Profile1D, SightlineProfiles } from './types.ts';
 
 export interface JointFitOutput {
@@ -78,6 +81,7 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
     memberMin.push(mins);
     memberArg.push(args);
   }
+  if (ctx.options.sharedModelSigmaDex > 0) sharedModelError(ctx, members, memberArg, total);
   let bestKey = 0;
   for (let k = 1; k < nKeys; k++) if (total[k] < total[bestKey]) bestKey = k;
   const chi2Best = total[bestKey];
@@ -127,4 +131,113 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
     fit: { name, members: members.map((m) => m.sightline), shared: [...shared], sharedBest, chi2: chi2Best, dof, reducedChi2: chi2Best / dof, pValue, fittedParameters, memberFits, profiles, intervals, warnings },
     profiles: { sightline: name, chi2Best, profiles, pairs: [] },
   };
+}
+
+/** Inverse of a symmetric positive-definite matrix from its Cholesky factor (small matrices: a member's detections). */
+function inverseFromCholesky(l: Float64Array, n: number): Float64Array {
+  const inv = new Float64Array(n * n);
+  const col = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    col.fill(0);
+    col[j] = 1;
+    solveCholesky(l, n, col);
+    for (let i = 0; i < n; i++) inv[i * n + j] = col[i];
+  }
+  return inv;
+}
+
+/** Solves L L^T x = b in place. */
+function solveCholesky(l: Float64Array, n: number, b: Float64Array): void {
+  for (let i = 0; i < n; i++) {
+    let acc = b[i];
+    for (let k = 0; k < i; k++) acc -= l[i * n + k] * b[k];
+    b[i] = acc / l[i * n + i];
+  }
+  for (let i = n - 1; i >= 0; i--) {
+    let acc = b[i];
+    for (let k = i + 1; k < n; k++) acc -= l[k * n + i] * b[k];
+    b[i] = acc / l[i * n + i];
+  }
+}
+
+/**
+ * The group's chi^2 with the model error of each quantity shared by all
+ * members (docs/statistics.md section 6): C = B + U S U^T, B the members'
+ * own covariances (block diagonal, each with the independent part of the
+ * floor on its diagonal), S = diag(sigma_shared^2) per quantity term and U the indicator
+ * of a member's detection of that term; so an error the model makes for every
+ * sightline alike is one error, not N independent ones. By the Woodbury
+ * identity (Numerical Recipes 2.7), r^T C^-1 r = sum_m r_m^T B_m^-1 r_m -
+ * v^T (S^-1 + U^T B^-1 U)^-1 v with v = U^T B^-1 r. Each member keeps the
+ * candidate it chose alone at each shared value (its own minimum); the
+ * group's chi^2 at that value is then recomputed, limits added as they were.
+ * Overwrites `total`.
+ */
+function sharedModelError(ctx: FitContext, members: readonly ObservationVector[], memberArg: readonly Int32Array[], total: Float64Array): void {
+  const terms = ctx.model.terms;
+  const nTerms = terms.length;
+  const values = ctx.model.values;
+  const sharedSigma = Float64Array.from(terms, (t) => Math.min(ctx.options.sharedModelSigmaDex, ctx.options.termModelSigmaDex?.get(t.key) ?? ctx.options.modelSigmaDex));
+  const blocks = members.map((obs) => {
+    const nd = obs.detections.length;
+    // The member's own block keeps the independent part of the floor: U S U^T adds the shared part back on its diagonal.
+    const own = detectionCovariance(obs, terms, ctx.options);
+    for (let a = 0; a < nd; a++) own[a * nd + a] -= sharedSigma[obs.detections[a]] ** 2;
+    const l = choleskyLower(own, nd);
+    if (l === undefined) throw new RangeError(`the covariance of the detections of ${obs.sightline} is not positive definite`);
+    return { l, inv: inverseFromCholesky(l, nd), nd };
+  });
+  // M = S^-1 + U^T B^-1 U over the terms with a shared part.
+  const shared = Int32Array.from(terms.map((_, j) => j).filter((j) => sharedSigma[j] > 0));
+  const ns = shared.length;
+  const slot = new Int32Array(nTerms).fill(-1);
+  shared.forEach((j, i) => (slot[j] = i));
+  const m = new Float64Array(ns * ns);
+  for (let i = 0; i < ns; i++) m[i * ns + i] = 1 / sharedSigma[shared[i]] ** 2;
+  members.forEach((obs, mi) => {
+    const { inv, nd } = blocks[mi];
+    for (let a = 0; a < nd; a++) {
+      const sa = slot[obs.detections[a]];
+      if (sa < 0) continue;
+      for (let b = 0; b < nd; b++) {
+        const sb = slot[obs.detections[b]];
+        if (sb >= 0) m[sa * ns + sb] += inv[a * nd + b];
+      }
+    }
+  });
+  const lm = choleskyLower(m, ns);
+  if (lm === undefined) throw new RangeError('the shared model covariance of a joint group is not positive definite');
+  const v = new Float64Array(ns);
+  const maxNd = Math.max(0, ...blocks.map((b) => b.nd));
+  const y = new Float64Array(maxNd);
+  const r0 = new Float64Array(maxNd);
+  const w = new Float64Array(ns);
+  for (let k = 0; k < total.length; k++) {
+    if (!Number.isFinite(total[k])) continue;
+    v.fill(0);
+    let chi2 = 0;
+    for (let mi = 0; mi < members.length; mi++) {
+      const obs = members[mi];
+      const c = memberArg[mi][k];
+      const base = c * nTerms;
+      const { l, nd } = blocks[mi];
+      const ry = y.subarray(0, nd);
+      for (let a = 0; a < nd; a++) {
+        ry[a] = values[base + obs.detections[a]] - obs.log10[obs.detections[a]];
+        r0[a] = ry[a];
+      }
+      solveCholesky(l, nd, ry);
+      for (let a = 0; a < nd; a++) {
+        chi2 += r0[a] * ry[a];
+        const sa = slot[obs.detections[a]];
+        if (sa >= 0) v[sa] += ry[a];
+      }
+      for (const j of obs.upperLimits) chi2 += censoredCost((obs.log10[j] - values[base + j]) * obs.inverseSigmaLimit[j]);
+      for (const j of obs.lowerLimits) chi2 += censoredCost((values[base + j] - obs.log10[j]) * obs.inverseSigmaLimit[j]);
+    }
+    w.set(v);
+    solveCholesky(lm, ns, w);
+    for (let i = 0; i < ns; i++) chi2 -= v[i] * w[i];
+    total[k] = chi2;
+  }
 }

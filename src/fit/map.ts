@@ -47,6 +47,9 @@ interface PackedEntries {
   /** Detections: 1/sigma^2 below and above; limits: 1/sigma in weightLo, kind code in weightHi (1 upper, -1 lower). */
   weightLo: Float64Array;
   weightHi: Float64Array;
+  /** Detections of correlated pixels: offset of the pixel's Cholesky factor in `whiten` (-1: the plain sum). */
+  whitenOffset: Int32Array;
+  whiten: Float64Array;
 }
 
 function pack(pixels: readonly MapPixel[], which: 'detections' | 'limits'): PackedEntries {
@@ -56,7 +59,20 @@ function pack(pixels: readonly MapPixel[], which: 'detections' | 'limits'): Pack
     offsets[i + 1] = offsets[i] + n;
   });
   const total = offsets[pixels.length];
-  const packed: PackedEntries = { offsets, term: new Int32Array(total), log10: new Float64Array(total), weightLo: new Float64Array(total), weightHi: new Float64Array(total) };
+  const whitenOffset = new Int32Array(pixels.length).fill(-1);
+  let whitenSize = 0;
+  if (which === 'detections') {
+    pixels.forEach((px, i) => {
+      if (px.obs.whiten === undefined) return;
+      whitenOffset[i] = whitenSize;
+      whitenSize += px.obs.whiten.length;
+    });
+  }
+  const whiten = new Float64Array(whitenSize);
+  pixels.forEach((px, i) => {
+    if (whitenOffset[i] >= 0) whiten.set(px.obs.whiten!, whitenOffset[i]);
+  });
+  const packed: PackedEntries = { offsets, term: new Int32Array(total), log10: new Float64Array(total), weightLo: new Float64Array(total), weightHi: new Float64Array(total), whitenOffset, whiten };
   pixels.forEach((px, i) => {
     let k = offsets[i];
     const o = px.obs;
@@ -176,6 +192,10 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
   const lKind = lim.weightHi;
 
   const delta = PROFILE_DEPTH * level.deltaChi2;
+  const whiten = det.whiten;
+  let maxDetections = 0;
+  for (let p = 0; p < nPix; p++) maxDetections = Math.max(maxDetections, dOff[p + 1] - dOff[p]);
+  const z = new Float64Array(maxDetections);
   /**
    * Scores candidates c0..c1 (step `stride`) against every pixel. A candidate
    * whose partial chi^2 already exceeds the pixel's best so far plus the
@@ -200,14 +220,29 @@ export function fitMap(ctx: FitContext, nx: number, ny: number, pixels: readonly
       let bestC = bestCandidate[p];
       let bound = (best + delta) * PRUNE_MARGIN;
       const key = pixelKey[p];
+      const w0 = det.whitenOffset[p];
+      const nd = k1 - k0;
       candidates: for (let c = c0; c < c1; c += stride) {
         if (key >= 0 && candidateKey[c] !== key) continue;
         const base = c * nTerms;
         let chi2 = 0;
-        for (let k = k0; k < k1; k++) {
-          const d = values[base + dTerm[k]] - dObs[k];
-          chi2 += d * d * (d > 0 ? dWHi[k] : dWLo[k]);
-          if (chi2 > bound) continue candidates;
+        if (w0 >= 0) {
+          // Correlated detections: forward substitution with the pixel's Cholesky factor; each step adds a square.
+          for (let i = 0; i < nd; i++) {
+            let acc = values[base + dTerm[k0 + i]] - dObs[k0 + i];
+            const row = w0 + i * nd;
+            for (let k = 0; k < i; k++) acc -= whiten[row + k] * z[k];
+            const zi = acc / whiten[row + i];
+            z[i] = zi;
+            chi2 += zi * zi;
+            if (chi2 > bound) continue candidates;
+          }
+        } else {
+          for (let k = k0; k < k1; k++) {
+            const d = values[base + dTerm[k]] - dObs[k];
+            chi2 += d * d * (d > 0 ? dWHi[k] : dWLo[k]);
+            if (chi2 > bound) continue candidates;
+          }
         }
         for (let k = l0; k < l1; k++) {
           const m = values[base + lTerm[k]];

@@ -6,6 +6,7 @@
  * sigma^2 = sigma_limit^2 + sigma_model^2 for limits.
  */
 import type { ObservedQuantity } from '../obs/types.ts';
+import { choleskyLower, hasCorrelation, type ModelCovariance } from './covariance.ts';
 import { termKey, type QuantityTerm } from './model-quantities.ts';
 
 export interface ScoringWidths {
@@ -15,6 +16,10 @@ export interface ScoringWidths {
   termModelSigmaDex?: ReadonlyMap<string, number>;
   /** Width of a limit, dex (added in quadrature to the floor). */
   limitSigmaDex: number;
+  /** Score detections that share a measurement with their covariance (fit.correlated_errors; default on). */
+  correlatedErrors?: boolean;
+  /** A model covariance between quantity terms, dex^2, in place of the diagonal floor of the terms it names (covariance.ts). */
+  modelCovariance?: ModelCovariance;
 }
 
 export interface ObservationVector {
@@ -36,6 +41,15 @@ export interface ObservationVector {
   modelMask?: Uint8Array;
   /** Parameters held at one value for this sightline, by name. */
   held: Record<string, number>;
+  /**
+   * Correlated detections (covariance.ts): the lower Cholesky factor of their
+   * covariance, row-major over `detections` in order, and a scratch vector of
+   * their residuals; undefined when the covariance is diagonal (the plain sum).
+   */
+  whiten?: Float64Array;
+  residualScratch?: Float64Array;
+  /** Diagonal of that covariance, dex^2 (the width shown in residual tables). */
+  correlatedVariance?: Float64Array;
 }
 
 /**
@@ -88,6 +102,7 @@ export function buildObservationVector(sightline: string, quantities: readonly O
   }
   for (let j = 0; j < n; j++) if (v.quantities[j] === undefined) v.skipped.push(terms[j].label);
   v.detections = Int32Array.from(det);
+  if (widths.correlatedErrors !== false || widths.modelCovariance !== undefined) correlate(v, terms, widths);
   v.upperLimits = Int32Array.from(up);
   v.lowerLimits = Int32Array.from(low);
   return v;
@@ -95,4 +110,52 @@ export function buildObservationVector(sightline: string, quantities: readonly O
 
 export function usedCount(v: ObservationVector): number {
   return v.detections.length + v.upperLimits.length + v.lowerLimits.length;
+}
+
+/**
+ * The covariance of a sightline's detections, dex^2, row-major over
+ * `detections` in order (covariance.ts): shared error parts off the diagonal,
+ * the symmetrised observational variance plus the model floor (or the model
+ * covariance) on it.
+ */
+export function detectionCovariance(v: ObservationVector, terms: readonly QuantityTerm[], widths: ScoringWidths): Float64Array {
+  const det = v.detections;
+  const nd = det.length;
+  const c = new Float64Array(nd * nd);
+  const mc = widths.modelCovariance;
+  const mcIndex = mc ? new Map(mc.keys.map((k, i) => [k, i])) : undefined;
+  const modelIndex = Array.from(det, (j) => mcIndex?.get(terms[j].key) ?? -1);
+  for (let a = 0; a < nd; a++) {
+    const qa = v.quantities[det[a]]!;
+    for (let b = 0; b < a; b++) {
+      const qb = v.quantities[det[b]]!;
+      let cov = 0;
+      if (widths.correlatedErrors !== false) {
+        for (const pa of qa.errorParts ?? []) for (const pb of qb.errorParts ?? []) if (pa.source === pb.source) cov += pa.sign * pb.sign * pa.dex * pb.dex;
+      }
+      if (mc && modelIndex[a] >= 0 && modelIndex[b] >= 0) cov += mc.matrix[modelIndex[a] * mc.keys.length + modelIndex[b]];
+      c[a * nd + b] = cov;
+      c[b * nd + a] = cov;
+    }
+    const floor2 = mc && modelIndex[a] >= 0 ? mc.matrix[modelIndex[a] * (mc.keys.length + 1)] : (widths.termModelSigmaDex?.get(terms[det[a]].key) ?? widths.modelSigmaDex) ** 2;
+    c[a * nd + a] = 0.5 * (qa.sigmaLoDex ** 2 + qa.sigmaHiDex ** 2) + floor2;
+  }
+  return c;
+}
+
+/**
+ * Whitening for a sightline whose detections covary; left diagonal (no
+ * whitening) when nothing is shared, so the plain sum stays as it was to the
+ * last bit.
+ */
+function correlate(v: ObservationVector, terms: readonly QuantityTerm[], widths: ScoringWidths): void {
+  const nd = v.detections.length;
+  if (nd < 2) return;
+  const c = detectionCovariance(v, terms, widths);
+  if (!hasCorrelation(c, nd)) return;
+  const l = choleskyLower(c, nd);
+  if (l === undefined) throw new RangeError(`the covariance of the detections of ${v.sightline} is not positive definite`);
+  v.whiten = l;
+  v.residualScratch = new Float64Array(nd);
+  v.correlatedVariance = Float64Array.from({ length: nd }, (_, a) => c[a * nd + a]);
 }

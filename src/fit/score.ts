@@ -4,12 +4,13 @@
  * log10 X_obs,j, sigma_j from the observational error on the side of d
  * (upper error when the model lies above) combined with the model floor,
  * plus the censored cost of every limit. The loop runs on typed arrays and
- * allocates nothing. Quantities are scored as independent, as the sum of
- * docs/statistics.md section 2 says: ratios to one reference share that reference's
- * observational error, a correlation this sum leaves out (it matters when the
- * reference's error is comparable to the others and the model floor small).
+ * allocates nothing. Detections that share a measurement (ratios to one
+ * reference, the reference's abundance beside them) are scored with their
+ * covariance, chi^2 = r^T C^-1 r (covariance.ts), when the observation vector
+ * carries its Cholesky factor; otherwise as the plain sum above.
  */
 import { censoredCost } from './censored.ts';
+import { whitenedChiSquare } from './covariance.ts';
 import type { ModelQuantities } from './model-quantities.ts';
 import type { ObservationVector } from './observation-vector.ts';
 import type { QuantityScore } from './types.ts';
@@ -29,6 +30,8 @@ export function scoreCandidates(model: ModelQuantities, obs: ObservationVector, 
   const wHi = obs.inverseVarianceHi;
   const wLim = obs.inverseSigmaLimit;
   const mask = obs.modelMask;
+  const whiten = obs.whiten;
+  const r = obs.residualScratch!;
   const nDet = det.length;
   const nUp = up.length;
   const nLow = low.length;
@@ -41,10 +44,15 @@ export function scoreCandidates(model: ModelQuantities, obs: ObservationVector, 
     for (let t = 0; t < nTimes; t++, c++) {
       const base = c * nTerms;
       let chi2 = 0;
-      for (let k = 0; k < nDet; k++) {
-        const j = det[k];
-        const d = values[base + j] - o[j];
-        chi2 += d * d * (d > 0 ? wHi[j] : wLo[j]);
+      if (whiten !== undefined) {
+        for (let k = 0; k < nDet; k++) r[k] = values[base + det[k]] - o[det[k]];
+        chi2 = whitenedChiSquare(r, whiten, nDet);
+      } else {
+        for (let k = 0; k < nDet; k++) {
+          const j = det[k];
+          const d = values[base + j] - o[j];
+          chi2 += d * d * (d > 0 ? wHi[j] : wLo[j]);
+        }
       }
       for (let k = 0; k < nUp; k++) {
         const j = up[k];
@@ -66,6 +74,13 @@ export function scoreCandidates(model: ModelQuantities, obs: ObservationVector, 
 export function scoreBreakdown(model: ModelQuantities, obs: ObservationVector, candidate: number, agreementDex: number): QuantityScore[] {
   const nTerms = model.terms.length;
   const rows: QuantityScore[] = [];
+  // With correlated detections each one's share is its whitened residual squared, so the rows still add up to chi^2.
+  const share = new Map<number, number>();
+  if (obs.whiten !== undefined) {
+    const r = Float64Array.from(obs.detections, (j) => model.values[candidate * nTerms + j] - obs.log10[j]);
+    whitenedChiSquare(r, obs.whiten, r.length);
+    obs.detections.forEach((j, k) => share.set(j, r[k] * r[k]));
+  }
   for (let j = 0; j < nTerms; j++) {
     const q = obs.quantities[j];
     if (q === undefined) continue;
@@ -74,7 +89,11 @@ export function scoreBreakdown(model: ModelQuantities, obs: ObservationVector, c
     let sigma: number;
     let chi2: number;
     let agrees: boolean;
-    if (q.kind === 'detection') {
+    if (q.kind === 'detection' && obs.whiten !== undefined) {
+      sigma = Math.sqrt(obs.correlatedVariance![obs.detections.indexOf(j)]);
+      chi2 = share.get(j)!;
+      agrees = Math.abs(d) < agreementDex;
+    } else if (q.kind === 'detection') {
       sigma = 1 / Math.sqrt(d > 0 ? obs.inverseVarianceHi[j] : obs.inverseVarianceLo[j]);
       chi2 = (d / sigma) ** 2;
       agrees = Math.abs(d) < agreementDex;

@@ -81,7 +81,10 @@ function checkOptions(section: FitSection, axes: GridAxes, table: CandidateTable
       if (!axes.byName.has(s)) unknown(s, ['fit', 'joint', i, 'share', k]);
     });
   });
-  throwProblems(problems, 'the fit section names parameters the model grid lacks:');
+  if (section.model_sigma_shared_dex !== undefined && section.model_sigma_shared_dex > section.model_sigma_dex) {
+    problems.push(located(source, ['fit', 'model_sigma_shared_dex'], `the shared part of the model floor (${section.model_sigma_shared_dex} dex) exceeds the floor itself (model_sigma_dex: ${section.model_sigma_dex} dex); it is a part of it: give at most ${section.model_sigma_dex}.`));
+  }
+  throwProblems(problems, 'the fit section has problems:');
 }
 
 /**
@@ -156,6 +159,8 @@ export function fitOptions(section: FitSection): FitOptions {
   return {
     modelSigmaDex: section.model_sigma_dex,
     limitSigmaDex: section.limit_sigma_dex,
+    correlatedErrors: section.correlated_errors,
+    sharedModelSigmaDex: Math.min(section.model_sigma_shared_dex ?? section.model_sigma_dex / Math.SQRT2, section.model_sigma_dex),
     levels: [],
     pairs: section.pairs.map(([x, y]) => [x, y] as [string, string]),
     agreementDex: Math.log10(section.agreement_factor),

@@ -76,6 +76,11 @@ function dex(relative: number): number {
   return relative / Math.LN10;
 }
 
+/** The relative error of a detection, lower and upper averaged (the symmetric part that correlations carry). */
+function meanRelative(m: Measurement): number {
+  return (m.errLo! + m.errHi!) / (2 * m.value);
+}
+
 /** Kind of N1/N2 from the kinds of N1 and N2; undefined when the ratio is not bounded. */
 export function ratioKind(num: MeasurementKind, den: MeasurementKind): MeasurementKind | undefined {
   if (den === 'detection') return num;
@@ -149,6 +154,8 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
           const relAv = s.avErr !== undefined ? s.avErr / avEff : 0;
           q.sigmaLoDex = dex(Math.hypot(m.errLo! / m.value, relAv));
           q.sigmaHiDex = dex(Math.hypot(m.errHi! / m.value, relAv));
+          q.errorParts = [{ source: w.species, dex: dex(meanRelative(m)), sign: 1 }];
+          if (relAv > 0) q.errorParts.push({ source: 'A_V', dex: dex(relAv), sign: -1 });
         } else if (m.confidence !== undefined) q.confidence = m.confidence;
         quantities.push(q);
       }
@@ -181,6 +188,10 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
       if (kind === 'detection') {
         q.sigmaLoDex = dex(Math.hypot(n.errLo! / n.value, d.errHi! / d.value));
         q.sigmaHiDex = dex(Math.hypot(n.errHi! / n.value, d.errLo! / d.value));
+        q.errorParts = [
+          { source: w.species, dex: dex(meanRelative(n)), sign: 1 },
+          { source: ref, dex: dex(meanRelative(d)), sign: -1 },
+        ];
       } else {
         const c = limitConfidence(n, d);
         if (c !== undefined) q.confidence = c;

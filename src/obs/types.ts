@@ -74,4 +74,21 @@ export interface ObservedQuantity {
   sigmaHiDex: number;
   /** Confidence of a limit, when it was given. */
   confidence?: number;
+  /**
+   * The parts of a detection's error by the measurement they come from, in
+   * dex (symmetric: the mean of the lower and upper relative errors), with the
+   * sign the measurement enters log10 of the quantity: `+1` for a numerator
+   * column, `-1` for a ratio's reference and for the A_V of N_H. Two quantities
+   * of one sightline that share a source share that part of their error
+   * (docs/statistics.md section 2): the fit's covariance is built from these.
+   */
+  errorParts?: ErrorPart[];
+}
+
+/** One measurement's share of a quantity's error (see ObservedQuantity.errorParts). */
+export interface ErrorPart {
+  /** The column (species name) or `A_V`. */
+  source: string;
+  dex: number;
+  sign: 1 | -1;
 }

@@ -37,6 +37,15 @@ export const fitSection = z
     quantities: z.array(fitQuantity).min(1),
     /** Model-uncertainty floor added in quadrature to every quantity's error, dex (common practice: rate-coefficient uncertainties of a factor of a few; 0.3 dex is a factor of 2). */
     model_sigma_dex: z.number().min(0).default(0.3),
+    /**
+     * The part of model_sigma_dex shared by every sightline of a joint group, dex: the same
+     * network and rates make one error for all of them, not one each (docs/statistics.md
+     * section 6). Default: half the variance, model_sigma_dex / sqrt(2) (not measured; a
+     * Monte Carlo over rate coefficients would measure it).
+     */
+    model_sigma_shared_dex: z.number().min(0).optional(),
+    /** Score detections that share a measurement (ratios to one reference, the reference beside them) with their covariance. */
+    correlated_errors: z.boolean().default(true),
     /** Width of a limit in dex, added in quadrature to the model floor in the censored likelihood (0: the floor alone). */
     limit_sigma_dex: z.number().min(0).default(0),
     /** Confidence levels of the Delta chi^2 regions (68.3% and 95.4%: the 1 and 2 sigma of a Gaussian, common practice); the same as DEFAULT_LEVELS of the fit room's table, src/fit/regions.ts. */
