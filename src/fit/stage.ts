@@ -351,7 +351,14 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   const tooGood = fits.filter((f) => f.pValue > SUSPICIOUSLY_GOOD_P && f.dof > 1).length;
   if (tooGood > 0) {
     warnings.push(
-      `${tooGood} of ${fits.length} fits have chi2 far below their dof (p > ${SUSPICIOUSLY_GOOD_P}): the errors, or the ${section.model_sigma_dex} dex model floor, exceed the scatter of the data about the models; the regions are then wider (more cautious) than the data alone would give.`,
+      `${tooGood} of ${fits.length} fits have chi2 far below their dof (p > ${SUSPICIOUSLY_GOOD_P}): the errors, or the ${section.model_sigma_dex} dex model floor, exceed the scatter of the data about the models, so the regions are set by the assumed floor rather than by the data; such a p-value does not show that the model is right (an error the model makes for every sightline alike is invisible in each fit).`,
+    );
+  }
+  for (const j of joint) {
+    if (!(j.pValue > SUSPICIOUSLY_GOOD_P && j.dof > 1)) continue;
+    j.warnings.push(
+      `joint group ${j.name}: chi2 = ${j.chi2.toFixed(2)} is far below its dof (${j.dof}; p = ${j.pValue.toFixed(3)}): the errors and the ${section.model_sigma_dex} dex model floor exceed the members' scatter about the models, so the regions are set by the floor, not by the data. ` +
+        `Of the floor, ${options.sharedModelSigmaDex.toFixed(2)} dex is one error shared by all ${j.members.length} members (fit.model_sigma_shared_dex), not reduced by their number; p near 1 does not show that the model is right, and a model error common to the members would not show in chi2.`,
     );
   }
   for (const f of fits) warnings.push(...f.warnings);
