@@ -16,8 +16,11 @@
  *   (sigma_X / X)^2 = (sigma_N / N)^2 + (sigma_AV / A_V)^2; for R = N1 / N2,
  *   (sigma_R / R)^2 = (sigma_1 / N1)^2 + (sigma_2 / N2)^2, taking the lower
  *   error of N1 with the upper error of N2 for the lower side of R and the
- *   other way round for the upper side. In dex: sigma_log10 = (sigma / X) /
- *   ln 10 (Bevington & Robinson, Data Reduction and Error Analysis, ch. 3).
+ *   other way round for the upper side (Bevington & Robinson, Data Reduction
+ *   and Error Analysis, ch. 3). In dex, from the relative error s, the exact
+ *   asymmetric form sigma_hi = log10(1 + s), sigma_lo = -log10(1 - s)
+ *   (docs/physics.md section 12); detections below observations.min_snr are
+ *   used as upper limits first (lowSignalAsLimits).
  *   The uncertainty of N_H/A_V itself is systematic and common to every
  *   sightline; it is not added, and it cancels in ratios.
  * - Limits: X of an upper (lower) limit is an upper (lower) limit. A ratio
@@ -97,9 +100,50 @@ function limitConfidence(a: Measurement, b?: Measurement): number | undefined {
   return ca ?? cb;
 }
 
-export function deriveQuantities(set: ObservationSet, section: ObservationsSection, wanted: readonly WantedQuantity[]): { quantities: ObservedQuantity[]; warnings: string[] } {
+/** log10 errors below and above of a quantity with relative errors sLo, sHi (docs/physics.md section 12): exact, not first order. */
+function logErrors(sLo: number, sHi: number): { lo: number; hi: number } {
+  return { lo: -Math.log10(1 - sLo), hi: Math.log10(1 + sHi) };
+}
+
+/** The standard normal CDF at z by erf's series (Abramowitz & Stegun 7.1.26, |error| < 1.5e-7): the confidence of a limit at value + z sigma. */
+function normalCdf(z: number): number {
+  const x = Math.abs(z) / Math.SQRT2;
+  const t = 1 / (1 + 0.3275911 * x);
+  const erf = 1 - ((((1.061405429 * t - 1.453152027) * t + 1.421413741) * t - 0.284496736) * t + 0.254829592) * t * Math.exp(-x * x);
+  return z >= 0 ? 0.5 * (1 + erf) : 0.5 * (1 - erf);
+}
+
+/**
+ * Low signal-to-noise detections as upper limits (docs/physics.md section 12,
+ * common practice): a column whose value is below min_snr times its lower
+ * error becomes an upper limit at value + min_snr x upper error, with
+ * confidence Phi(min_snr) (0.977 for 2). In log10 such a detection has no
+ * finite lower error; a symmetric first-order error (0.2 +- 0.8 as -0.7 +- 1.7
+ * dex) would claim a precision it lacks.
+ */
+function lowSignalAsLimits(set: ObservationSet, minSnr: number, warnings: string[]): ObservationSet {
+  if (!(minSnr > 0)) return set;
+  const sightlines = set.sightlines.map((s) => {
+    let columns = s.columns;
+    for (const [species, m] of Object.entries(s.columns)) {
+      if (m.kind !== 'detection' || m.errLo === undefined || m.errHi === undefined) continue;
+      if (!(m.value < minSnr * m.errLo)) continue;
+      const limit = Math.max(m.value, 0) + minSnr * m.errHi;
+      if (columns === s.columns) columns = { ...s.columns };
+      columns[species] = { kind: 'upper', value: limit, confidence: normalCdf(minSnr) };
+      warnings.push(
+        `${set.file}: ${placeOf(s)}: '${species}' = ${m.value.toPrecision(3)} +- ${m.errLo.toPrecision(3)} has S/N ${(m.value / m.errLo).toFixed(2)} < ${minSnr} (observations.min_snr): used as an upper limit at ${limit.toPrecision(3)}.`,
+      );
+    }
+    return columns === s.columns ? s : { ...s, columns };
+  });
+  return { ...set, sightlines };
+}
+
+export function deriveQuantities(inputSet: ObservationSet, section: ObservationsSection, wanted: readonly WantedQuantity[]): { quantities: ObservedQuantity[]; warnings: string[] } {
   const quantities: ObservedQuantity[] = [];
   const warnings: string[] = [];
+  const set = lowSignalAsLimits(inputSet, section.min_snr ?? 0, warnings);
   const problems: UserError[] = [];
   const outside = new Set(set.outsideNetwork ?? []);
   const done = new Set<string>();
@@ -152,8 +196,14 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
         const q: ObservedQuantity = { sightline: s.id, label, numerator: w.species, kind: m.kind, log10: Math.log10(x), sigmaLoDex: 0, sigmaHiDex: 0 };
         if (m.kind === 'detection') {
           const relAv = s.avErr !== undefined ? s.avErr / avEff : 0;
-          q.sigmaLoDex = dex(Math.hypot(m.errLo! / m.value, relAv));
-          q.sigmaHiDex = dex(Math.hypot(m.errHi! / m.value, relAv));
+          const e = logErrors(Math.hypot(m.errLo! / m.value, relAv), Math.hypot(m.errHi! / m.value, relAv));
+          if (!Number.isFinite(e.lo)) {
+            warnings.push(`${set.file}: ${placeOf(s)}: X(${w.species}) has a relative error of 1 or more (A_V included): no lower error in log10; used as an upper limit.`);
+            quantities.push({ sightline: s.id, label, numerator: w.species, kind: 'upper', log10: Math.log10(x) + e.hi, sigmaLoDex: 0, sigmaHiDex: 0 });
+            continue;
+          }
+          q.sigmaLoDex = e.lo;
+          q.sigmaHiDex = e.hi;
           q.errorParts = [{ source: w.species, dex: dex(meanRelative(m)), sign: 1 }];
           if (relAv > 0) q.errorParts.push({ source: 'A_V', dex: dex(relAv), sign: -1 });
         } else if (m.confidence !== undefined) q.confidence = m.confidence;
@@ -186,8 +236,14 @@ export function deriveQuantities(set: ObservationSet, section: ObservationsSecti
       }
       const q: ObservedQuantity = { sightline: s.id, label, numerator: w.species, denominator: ref, kind, log10: Math.log10(n.value / d.value), sigmaLoDex: 0, sigmaHiDex: 0 };
       if (kind === 'detection') {
-        q.sigmaLoDex = dex(Math.hypot(n.errLo! / n.value, d.errHi! / d.value));
-        q.sigmaHiDex = dex(Math.hypot(n.errHi! / n.value, d.errLo! / d.value));
+        const e = logErrors(Math.hypot(n.errLo! / n.value, d.errHi! / d.value), Math.hypot(n.errHi! / n.value, d.errLo! / d.value));
+        if (!Number.isFinite(e.lo)) {
+          warnings.push(`${set.file}: ${placeOf(s)}: ${label} has a relative error of 1 or more: no lower error in log10; used as an upper limit.`);
+          quantities.push({ ...q, kind: 'upper', log10: q.log10 + e.hi });
+          continue;
+        }
+        q.sigmaLoDex = e.lo;
+        q.sigmaHiDex = e.hi;
         q.errorParts = [
           { source: w.species, dex: dex(meanRelative(n)), sign: 1 },
           { source: ref, dex: dex(meanRelative(d)), sign: -1 },

@@ -36,11 +36,11 @@ describe('bad observation input', () => {
     expect(e.message).toMatch(/negative\.csv:3, field 'N\(CO\(s\)\)': a column density must be positive, found '0'/);
   });
 
-  it('an error more than ten times the value is a warning naming line and column', () => {
+  it('an error more than three times the value (observations.max_error_ratio) is a warning naming line and column', () => {
     const set = load('bigerror.csv', 'id,AV,N(CO(s)),N(CO(s))_err\na,5,1e16,2e17\nb,5,1e17,1e16\n');
     expect(set.sightlines).toHaveLength(2);
     expect(set.warnings).toHaveLength(1);
-    expect(set.warnings[0]).toMatch(/bigerror\.csv, line 2, column 'N\(CO\(s\)\)_err': the error \(2\.00e\+17\) is more than 10 times the value \(1\.00e\+16\)/);
+    expect(set.warnings[0]).toMatch(/bigerror\.csv, line 2, column 'N\(CO\(s\)\)_err': the error \(2\.00e\+17\) is more than 3 times the value \(1\.00e\+16\)/);
   });
 
   it('many suspicious errors in one column: five named, the rest counted', () => {

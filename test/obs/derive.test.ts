@@ -1,9 +1,10 @@
 /**
  * Abundances, ratios and their errors against examples worked by hand (the
  * arithmetic is written out beside each check). Formulas: physics.md
- * section 5; first-order error propagation (Bevington & Robinson, Data
- * Reduction and Error Analysis for the Physical Sciences, ch. 3):
- * sigma_log10(X) = (sigma_X / X) / ln 10.
+ * section 5; first-order error propagation of relative errors (Bevington &
+ * Robinson, Data Reduction and Error Analysis for the Physical Sciences,
+ * ch. 3), turned into dex exactly and asymmetrically (physics.md section 12):
+ * sigma_hi = log10(1 + s), sigma_lo = -log10(1 - s).
  */
 import { describe, expect, it } from 'vitest';
 import { deriveQuantities, modelAv, ratioKind, hydrogenColumn } from '../../src/obs/derive.ts';
@@ -25,7 +26,8 @@ const det = (value: number, errLo: number, errHi = errLo): Measurement => ({ kin
 describe('abundances X = N / N_H', () => {
   it('N_H/A_V = 1.87e21 (Bohlin, Savage & Drake 1978): A_V = 10 +- 1, N = 1.87e18 +- 10 % gives X = 1e-4', () => {
     // N_H = 1.87e21 * 10 = 1.87e22; X = 1.87e18 / 1.87e22 = 1e-4, log10 X = -4.
-    // sigma_X / X = sqrt(0.1^2 + 0.1^2) = 0.141421356; in dex / ln 10 = 0.0614185146.
+    // sigma_X / X = s = sqrt(0.1^2 + 0.1^2) = 0.141421356; in dex (physics.md section 12, exact, asymmetric):
+    // lower -log10(1 - s) = 0.0662199183, upper log10(1 + s) = 0.0574459940 (first order, s / ln 10, would give 0.0614185146 for both).
     const s = section({ file: 'x.csv' });
     expect(hydrogenColumn(10, s)).toBe(1.87e22);
     const { quantities, warnings } = deriveQuantities(set(sightline('a', 10, 1, { 'H2O(s)': det(1.87e18, 1.87e17) })), s, [{ species: 'H2O(s)', as: 'abundance' }]);
@@ -35,8 +37,8 @@ describe('abundances X = N / N_H', () => {
     expect(q.label).toBe('X(H2O(s))');
     expect(q.denominator).toBeUndefined();
     expect(q.log10).toBeCloseTo(-4, 12);
-    expect(q.sigmaLoDex).toBeCloseTo(0.0614185146, 9);
-    expect(q.sigmaHiDex).toBeCloseTo(0.0614185146, 9);
+    expect(q.sigmaLoDex).toBeCloseTo(0.0662199183, 9);
+    expect(q.sigmaHiDex).toBeCloseTo(0.0574459940, 9);
   });
 
   it('N_H/A_V = 2.21e21 (Guver & Ozel 2009) lowers X by log10(2.21/1.87) = 0.0725 dex', () => {
@@ -49,12 +51,12 @@ describe('abundances X = N / N_H', () => {
 
   it('an ice threshold of 3 mag is taken off A_V for ice species only', () => {
     // A_V - 3 = 7 mag: N_H = 1.309e22, X = 1.87e18 / 1.309e22 = 1.4285714e-4, log10 = -3.845098040.
-    // sigma: sqrt(0.1^2 + (1/7)^2) = 0.174379, / ln 10 = 0.0757319964.
+    // s = sqrt(0.1^2 + (1/7)^2) = 0.174379; lower error -log10(1 - s) = 0.0832194616.
     const s = section({ file: 'x.csv', ice_threshold_av: 3 });
     const obs = set(sightline('a', 10, 1, { 'H2O(s)': det(1.87e18, 1.87e17), CO: det(1.87e18, 1.87e17) }));
     const { quantities } = deriveQuantities(obs, s, [{ species: 'H2O(s)', as: 'abundance' }, { species: 'CO', as: 'abundance' }]);
     expect(quantities[0].log10).toBeCloseTo(-3.845098040, 9);
-    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0757319964, 9);
+    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0832194616, 9);
     expect(quantities[1].log10).toBeCloseTo(-4, 12); // gas CO: the whole A_V
   });
 
@@ -66,10 +68,10 @@ describe('abundances X = N / N_H', () => {
   });
 
   it('asymmetric errors stay asymmetric: -10 % / +20 % with A_V exact', () => {
-    // lo: 0.1 / ln 10 = 0.0434294482; hi: 0.2 / ln 10 = 0.0868588964
+    // lo: -log10(1 - 0.1) = 0.0457574906; hi: log10(1 + 0.2) = 0.0791812460 (physics.md section 12)
     const { quantities } = deriveQuantities(set(sightline('a', 10, undefined, { CO: det(1.87e18, 1.87e17, 3.74e17) })), section({ file: 'x.csv' }), [{ species: 'CO', as: 'abundance' }]);
-    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0434294482, 9);
-    expect(quantities[0].sigmaHiDex).toBeCloseTo(0.0868588964, 9);
+    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0457574906, 9);
+    expect(quantities[0].sigmaHiDex).toBeCloseTo(0.0791812460, 9);
   });
 
   it('an upper limit on N is an upper limit on X, with no error and its confidence kept', () => {
@@ -82,14 +84,14 @@ describe('abundances X = N / N_H', () => {
 describe('ratios to the reference species', () => {
   it('CO(s)/H2O(s) = 0.3 with errors combined side by side', () => {
     // R = 3e17 / 1e18 = 0.3, log10 = -0.522878745.
-    // lower side: N1 low (0.3e17 / 3e17 = 0.1) with N2 high (1e17 / 1e18 = 0.1): sqrt(0.02) / ln 10 = 0.0614185146
-    // upper side: N1 high (0.6e17 / 3e17 = 0.2) with N2 low (0.1): sqrt(0.05) / ln 10 = 0.0971111984
+    // lower side: N1 low (0.3e17 / 3e17 = 0.1) with N2 high (1e17 / 1e18 = 0.1): s = sqrt(0.02), -log10(1 - s) = 0.0662199183
+    // upper side: N1 high (0.6e17 / 3e17 = 0.2) with N2 low (0.1): s = sqrt(0.05), log10(1 + s) = 0.0876418810
     const obs = set(sightline('a', undefined, undefined, { 'CO(s)': det(3e17, 0.3e17, 0.6e17), 'H2O(s)': det(1e18, 1e17) }));
     const { quantities } = deriveQuantities(obs, section({ file: 'x.csv' }), [{ species: 'CO(s)', as: 'ratio' }]);
     expect(quantities[0]).toMatchObject({ label: 'CO(s)/H2O(s)', numerator: 'CO(s)', denominator: 'H2O(s)', kind: 'detection' });
     expect(quantities[0].log10).toBeCloseTo(-0.522878745, 9);
-    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0614185146, 9);
-    expect(quantities[0].sigmaHiDex).toBeCloseTo(0.0971111984, 9);
+    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0662199183, 9);
+    expect(quantities[0].sigmaHiDex).toBeCloseTo(0.0876418810, 9);
   });
 
   it('ratios need no A_V; the reference can be changed', () => {
@@ -135,8 +137,8 @@ describe('ratios to the reference species', () => {
 
 describe('a reference of its own per quantity', () => {
   it('CH3OH(s)/CO(s) and N2H+/CO beside ratios to the global reference, errors combined as for any ratio', () => {
-    // CH3OH(s)/CO(s) = 3e16 / 3e17 = 0.1, log10 = -1; lower side: sqrt(0.1^2 + 0.1^2) / ln 10 = 0.0614185146 (both errors 10 %).
-    // N2H+/CO = 2e12 / 1e18 = 2e-6, log10 = -5.698970004; sides: sqrt(0.2^2 + 0.05^2) / ln 10 = 0.0895321011.
+    // CH3OH(s)/CO(s) = 3e16 / 3e17 = 0.1, log10 = -1; lower side: -log10(1 - sqrt(0.1^2 + 0.1^2)) = 0.0662199183 (both errors 10 %).
+    // N2H+/CO = 2e12 / 1e18 = 2e-6, log10 = -5.698970004; upper side: log10(1 + sqrt(0.2^2 + 0.05^2)) = 0.0814032228.
     const obs = set(sightline('a', undefined, undefined, { 'CH3OH(s)': det(3e16, 3e15), 'CO(s)': det(3e17, 3e16), 'H2O(s)': det(1e18, 1e17), 'N2H+': det(2e12, 4e11), CO: det(1e18, 5e16) }));
     const { quantities, warnings } = deriveQuantities(obs, section({ file: 'x.csv' }), [
       { species: 'CH3OH(s)', as: 'ratio', reference: 'CO(s)' },
@@ -150,10 +152,10 @@ describe('a reference of its own per quantity', () => {
       ['N2H+/CO', 'N2H+', 'CO'],
     ]);
     expect(quantities[0].log10).toBeCloseTo(-1, 12);
-    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0614185146, 9);
+    expect(quantities[0].sigmaLoDex).toBeCloseTo(0.0662199183, 9);
     expect(quantities[1].log10).toBeCloseTo(Math.log10(0.03), 12);
     expect(quantities[2].log10).toBeCloseTo(-5.698970004, 9);
-    expect(quantities[2].sigmaHiDex).toBeCloseTo(0.0895321011, 9);
+    expect(quantities[2].sigmaHiDex).toBeCloseTo(0.0814032228, 9);
   });
 
   it("a reference the observations lack names the quantity's reference, not observations.reference", () => {

@@ -78,8 +78,17 @@ export const observationsSection = z
     reference: z.string().default('H2O(s)'),
     /** Band-strength table, relative to the pipeline file; default the tool's config/band-strengths.yaml. */
     band_strengths: z.string().optional(),
-    /** An error larger than this multiple of its value is flagged with a warning. */
-    max_error_ratio: z.number().positive().default(10),
+    /**
+     * An error larger than this multiple of its value is flagged with a warning (a unit or
+     * exponent slip is the usual cause; a measurement this weak is used as a limit anyway).
+     */
+    max_error_ratio: z.number().positive().default(3),
+    /**
+     * Detections below this signal-to-noise ratio (value over its lower error) are used as
+     * upper limits at value + min_snr x error, with a note per sightline: in log10 their
+     * error has no lower side (docs/physics.md section 5; common practice: about 2).
+     */
+    min_snr: z.number().min(0).default(2),
   })
   .strict();
 export type ObservationsSection = z.infer<typeof observationsSection>;
