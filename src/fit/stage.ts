@@ -216,12 +216,25 @@ function refineForFit(
   };
 }
 
+/** The median step of each fitted axis of positive values, dex: what "one grid step" means for the lock file's tolerance. */
+function medianStepsDex(axes: GridAxes): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const name of axes.independent) {
+    const v = axes.byName.get(name)!.values;
+    if (!(v[0] > 0) || v.length < 2) continue;
+    const steps = Array.from({ length: v.length - 1 }, (_, i) => Math.log10(v[i + 1] / v[i])).sort((a, b) => a - b);
+    out[name] = steps[Math.floor((steps.length - 1) / 2)];
+  }
+  return out;
+}
+
 export function runFitStage(input: FitStageInput): FitStageOutput {
   const { section, observations, quantities, source } = input;
   let table = input.table;
   if (table.nModels === 0) throw new UserError('the model store holds no finished model to fit. Run the grid first (`hoarfrost grid`), and check its failures.', { file: source?.file });
   let axes = buildAxes(table);
   checkOptions(section, axes, table, source);
+  const gridStepsDex = medianStepsDex(axes);
   checkRatioReferences(observations, quantities, source);
   checkWidths(section, quantities, source);
 
@@ -372,6 +385,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     levels: options.levels,
     regionLevels: regionLevels([...section.levels, TABLE_LEVEL], PAIR_PARAMETERS),
     modelSigmaDex: section.model_sigma_dex,
+    gridStepsDex,
     ...(interpolation ? { interpolation } : {}),
     poorFitP: section.poor_fit_p,
     nCandidates: model.nCandidates,

@@ -267,6 +267,12 @@ export interface FitStageResult {
   /** Levels and thresholds of the 2-D regions of the pair profiles (p = 2); absent in files written before they were stated. */
   regionLevels?: RegionLevel[];
   modelSigmaDex: number;
+  /**
+   * The grid's own step of each fitted parameter (the median spacing of its
+   * grid values, in dex, before any refinement): the unit of the lock file's
+   * default tolerances (absent in files written before it).
+   */
+  gridStepsDex?: Record<string, number>;
   /** The sub-grid refinement of the models (absent when off, for maps, and in files written before it). */
   interpolation?: InterpolationSummary;
   /** p-value below which a fit is reported as poor. */

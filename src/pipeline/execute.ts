@@ -7,8 +7,8 @@
 import { isAbsolute, join, relative } from 'node:path';
 import { UserError } from '../config/errors.ts';
 import { loadPipeline } from '../config/pipeline.ts';
-import { readFitResult, lockedFits, tableHashes } from './fit-lock.ts';
-import { buildLock, checkLockTarget, compareWithLock, formatComparison, readLock, writeLock, DEFAULT_AGE_TOLERANCE_DEX, DEFAULT_DENSITY_TOLERANCE_DEX } from './lock.ts';
+import { readFitResult, lockedFits, lockTolerance, tableHashes } from './fit-lock.ts';
+import { buildLock, checkLockTarget, compareWithLock, formatComparison, readLock, writeLock } from './lock.ts';
 import { buildProvenance, PROVENANCE_FILE, writeProvenance } from './provenance.ts';
 import { formatStageLine, outputFolder, runStages } from './runner.ts';
 import type { StageDataMap, StageName, StageSet } from './stages.ts';
@@ -67,10 +67,11 @@ export async function executeRun(o: ExecuteOptions): Promise<number> {
 
   let exitCode = 0;
   if (o.lock || lock) {
-    const fits = lockedFits(readFitResult(outDir));
+    const result = readFitResult(outDir);
+    const fits = lockedFits(result);
     const tables = tableHashes(outDir, run.state);
     if (o.lock) {
-      writeLock(o.lock, buildLock(pipeline.config.name, fits, tables, { densityDex: o.densityToleranceDex ?? DEFAULT_DENSITY_TOLERANCE_DEX, ageDex: o.ageToleranceDex ?? DEFAULT_AGE_TOLERANCE_DEX }));
+      writeLock(o.lock, buildLock(pipeline.config.name, fits, tables, lockTolerance(result, { densityDex: o.densityToleranceDex, ageDex: o.ageToleranceDex })));
       o.stdout.write(`lock file written: ${displayPath(o.lock)} (${fits.length} sightlines, ${Object.keys(tables).length} tables)\n`);
     }
     if (lock && o.check) {

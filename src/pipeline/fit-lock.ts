@@ -9,7 +9,7 @@ import { UserError } from '../config/errors.ts';
 import { TABLE_LEVEL } from '../fit/regions.ts';
 import { AGE_PARAMETER, FIT_OUTPUT_FILES, type FitStageResult, type SightlineFit } from '../fit/types.ts';
 import { hashFile } from './hash.ts';
-import type { LockedFit } from './lock.ts';
+import { DEFAULT_AGE_TOLERANCE_DEX, DEFAULT_DENSITY_TOLERANCE_DEX, defaultToleranceDex, TOLERANCE_GRID_STEPS, type LockedFit, type LockTolerance } from './lock.ts';
 import type { StageState } from './state.ts';
 
 const DENSITY = 'density';
@@ -41,7 +41,13 @@ export function lockedFits(result: FitStageResult): LockedFit[] {
     const ageYr = fit.best.ageYr;
     const d = intervalOf(fit, DENSITY, density);
     const a = intervalOf(fit, AGE_PARAMETER, ageYr);
-    return { sightline: fit.sightline, density, densityLo: d.lo, densityHi: d.hi, ageYr, ageLoYr: a.lo, ageHiYr: a.hi, chi2: fit.best.chi2 };
+    const parameters: Record<string, { best: number; lo: number; hi: number }> = {};
+    for (const name of result.fittedParameters) {
+      if (name in fit.heldParameters) continue;
+      const best = name === AGE_PARAMETER ? ageYr : fit.best.parameters[name];
+      parameters[name] = { best, ...intervalOf(fit, name, best) };
+    }
+    return { sightline: fit.sightline, density, densityLo: d.lo, densityHi: d.hi, ageYr, ageLoYr: a.lo, ageHiYr: a.hi, chi2: fit.best.chi2, parameters };
   });
 }
 
@@ -56,4 +62,21 @@ export function tableHashes(outDir: string, state: StageState): Record<string, s
     }
   }
   return tables;
+}
+
+/**
+ * The lock's tolerances: given ones win; otherwise TOLERANCE_GRID_STEPS grid
+ * steps of each fitted parameter (fit.json gridStepsDex), or the fixed
+ * default of 0.1 dex where the fit states no step.
+ */
+export function lockTolerance(result: FitStageResult, given: { densityDex?: number; ageDex?: number }): LockTolerance {
+  const steps = result.gridStepsDex ?? {};
+  const parametersDex: Record<string, number> = {};
+  for (const name of result.fittedParameters) if (name !== DENSITY && name !== AGE_PARAMETER) parametersDex[name] = defaultToleranceDex(steps[name], DEFAULT_DENSITY_TOLERANCE_DEX);
+  return {
+    densityDex: given.densityDex ?? defaultToleranceDex(steps[DENSITY], DEFAULT_DENSITY_TOLERANCE_DEX),
+    ageDex: given.ageDex ?? defaultToleranceDex(steps[AGE_PARAMETER], DEFAULT_AGE_TOLERANCE_DEX),
+    parametersDex,
+    rule: `default: ${TOLERANCE_GRID_STEPS} grid steps of each parameter (one step passes, two fail); ${DEFAULT_DENSITY_TOLERANCE_DEX} dex where the grid step is not known; --density-tolerance and --age-tolerance override`,
+  };
 }

@@ -16,9 +16,20 @@ import { canonicalJson } from './hash.ts';
 const LOCK_FORMAT = 'hoarfrost-lock';
 const LOCK_VERSION = 1;
 
-/** Default tolerance, dex: a tenth of a decade, well inside the grid spacing of a typical survey grid. */
+/**
+ * Default tolerance, dex, when the fit states no grid step: a tenth of a
+ * decade. With a grid step known (fit.json gridStepsDex), the default is
+ * TOLERANCE_GRID_STEPS steps of that parameter's grid, so that a move by one
+ * grid step passes and one by two fails (the rule stated in the lock file).
+ */
 export const DEFAULT_DENSITY_TOLERANCE_DEX = 0.1;
 export const DEFAULT_AGE_TOLERANCE_DEX = 0.1;
+export const TOLERANCE_GRID_STEPS = 1.5;
+
+/** The default tolerance of a parameter with grid step `stepDex` (dex), or the fixed default without one. */
+export function defaultToleranceDex(stepDex: number | undefined, fallback: number): number {
+  return stepDex !== undefined && stepDex > 0 ? Number((TOLERANCE_GRID_STEPS * stepDex).toPrecision(3)) : fallback;
+}
 
 /** The locked values of one sightline's fit: best value and 68.3% interval, density in cm^-3, age in yr. */
 export interface LockedFit {
@@ -30,11 +41,17 @@ export interface LockedFit {
   ageLoYr: number;
   ageHiYr: number;
   chi2: number;
+  /** Every fitted parameter (grid conditions and age_yr): best value and 68.3% interval (absent in version-1 lock files written before it). */
+  parameters?: Record<string, { best: number; lo: number; hi: number }>;
 }
 
 export interface LockTolerance {
   densityDex: number;
   ageDex: number;
+  /** Tolerance of each other fitted parameter, dex (default: TOLERANCE_GRID_STEPS of its grid step). */
+  parametersDex?: Record<string, number>;
+  /** The rule the defaults followed, for a reader of the lock file. */
+  rule?: string;
 }
 
 export interface LockFile {
@@ -134,7 +151,11 @@ const FIELDS: { key: keyof LockedFit; label: string; unit: string; kind: 'densit
 
 /** Compare a run's fits with a lock; `tolerance` overrides the lock's own when given. */
 export function compareWithLock(lock: LockFile, fits: readonly LockedFit[], tables: Readonly<Record<string, string>>, tolerance: Partial<LockTolerance> = {}): LockComparison {
-  const tol: LockTolerance = { densityDex: tolerance.densityDex ?? lock.tolerance.densityDex, ageDex: tolerance.ageDex ?? lock.tolerance.ageDex };
+  const tol: LockTolerance = {
+    densityDex: tolerance.densityDex ?? lock.tolerance.densityDex,
+    ageDex: tolerance.ageDex ?? lock.tolerance.ageDex,
+    ...(lock.tolerance.parametersDex ? { parametersDex: { ...lock.tolerance.parametersDex, ...tolerance.parametersDex } } : {}),
+  };
   const current = new Map(fits.map((f) => [f.sightline, f]));
   const locked = new Map(lock.sightlines.map((f) => [f.sightline, f]));
   const moved: LockDifference[] = [];
@@ -151,6 +172,20 @@ export function compareWithLock(lock: LockFile, fits: readonly LockedFit[], tabl
       const dex = Math.abs(Math.log10(b) - Math.log10(a));
       const limit = f.kind === 'density' ? tol.densityDex : tol.ageDex;
       if (!(dex <= limit)) changes.push(`${f.label} moved ${dex.toFixed(3)} dex (> ${limit} dex): ${formatValue(a)} -> ${formatValue(b)} ${f.unit}`);
+    }
+    for (const [name, was] of Object.entries(old.parameters ?? {})) {
+      if (name === 'density' || name === 'age_yr') continue;
+      const is = now.parameters?.[name];
+      if (is === undefined) {
+        changes.push(`${name} is no longer fitted`);
+        continue;
+      }
+      const limit = tol.parametersDex?.[name] ?? DEFAULT_DENSITY_TOLERANCE_DEX;
+      for (const key of ['best', 'lo', 'hi'] as const) {
+        const dex = Math.abs(Math.log10(is[key]) - Math.log10(was[key]));
+        const label = key === 'best' ? `best ${name}` : `${name} 68.3% ${key === 'lo' ? 'lower' : 'upper'} bound`;
+        if (!(dex <= limit)) changes.push(`${label} moved ${dex.toFixed(3)} dex (> ${limit} dex): ${formatValue(was[key])} -> ${formatValue(is[key])}`);
+      }
     }
     if (changes.length > 0) moved.push({ sightline: old.sightline, changes });
   }

@@ -21,8 +21,8 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--workers <n>', 'worker threads for the grid (default: one per core)', parseNumber('--workers'))
     .option('--lock <file>', "write the run's best fits, intervals and table hashes to a lock file")
     .option('--check <file>', 'compare the run with a lock file; exit 1 listing every sightline whose fit moved beyond the tolerance')
-    .option('--density-tolerance <dex>', 'tolerance in density, dex (stored by --lock; overrides the lock file with --check; default 0.1)', parseNumber('--density-tolerance'))
-    .option('--age-tolerance <dex>', 'tolerance in age, dex (stored by --lock; overrides the lock file with --check; default 0.1)', parseNumber('--age-tolerance'))
+    .option('--density-tolerance <dex>', 'tolerance in density, dex (stored by --lock; overrides the lock file with --check; default 1.5 grid steps of density, 0.1 dex without a stated step)', parseNumber('--density-tolerance'))
+    .option('--age-tolerance <dex>', 'tolerance in age, dex (stored by --lock; overrides the lock file with --check; default 1.5 grid steps of age)', parseNumber('--age-tolerance'))
     .action(async (file: string, opts: { from?: string; only?: string; workers?: number; lock?: string; check?: string; densityTolerance?: number; ageTolerance?: number }) => {
       const { executeRun } = await import('../../pipeline/execute.ts');
       const { parseStageName } = await import('../../pipeline/stages.ts');
