@@ -17,6 +17,8 @@ export interface FitOptions extends ScoringWidths {
   runnerUps: number;
   limitsInDof: boolean;
   poorFitP: number;
+  /** Compute the posterior reading beside the profile one. */
+  posterior: boolean;
   /** Part of the model floor shared by the members of a joint group, dex (at most the floor). */
   sharedModelSigmaDex: number;
 }

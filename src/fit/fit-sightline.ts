@@ -10,6 +10,7 @@ import type { FitContext } from './context.ts';
 import { degreesOfFreedom } from './dof.ts';
 import { intervalFromProfile } from './intervals.ts';
 import { usedCount, type ObservationVector } from './observation-vector.ts';
+import { posteriorFromChi2 } from './posterior.ts';
 import { profile1D, profile2D } from './profiles.ts';
 import { scoreBreakdown, scoreCandidates } from './score.ts';
 import type { CandidateRef, ParameterInterval, Profile1D, QuantityCounts, SightlineFit, SightlineProfiles } from './types.ts';
@@ -90,6 +91,8 @@ export function fitSightline(ctx: FitContext, obs: ObservationVector): Sightline
   }
   const pairs = options.pairs.filter(([x, y]) => !(x in obs.held) && !(y in obs.held)).map(([x, y]) => profile2D(chi2, axes.byName.get(x)!, axes.byName.get(y)!, chi2Best));
 
+  const fitted = axes.axes.filter((a) => a.varied && !(a.name in obs.held) && axes.independent.includes(a.name)).map((a) => a.name);
+  const posterior = options.posterior ? posteriorFromChi2(chi2, axes, fitted, options.levels, options.pairs) : undefined;
   const id = obs.sightline;
   const warnings: string[] = [];
   if (obs.skipped.length > 0) warnings.push(`${id}: no measurement of ${obs.skipped.join(', ')}: fitted without ${obs.skipped.length === 1 ? 'it' : 'them'}.`);
@@ -117,6 +120,7 @@ export function fitSightline(ctx: FitContext, obs: ObservationVector): Sightline
       runnerUps,
       candidatesInRegion: count,
       intervals,
+      ...(posterior ? { posterior } : {}),
       warnings,
     },
     profiles: { sightline: id, chi2Best, profiles, pairs },

@@ -160,6 +160,7 @@ export function fitOptions(section: FitSection): FitOptions {
     modelSigmaDex: section.model_sigma_dex,
     limitSigmaDex: section.limit_sigma_dex,
     correlatedErrors: section.correlated_errors,
+    posterior: section.method === 'profile+posterior',
     sharedModelSigmaDex: Math.min(section.model_sigma_shared_dex ?? section.model_sigma_dex / Math.SQRT2, section.model_sigma_dex),
     levels: [],
     pairs: section.pairs.map(([x, y]) => [x, y] as [string, string]),

@@ -184,6 +184,44 @@ export interface ParameterInterval {
   unresolved: boolean;
 }
 
+/** Credible interval of one parameter from its marginal posterior (docs/statistics.md section 8). */
+export interface CredibleInterval {
+  parameter: string;
+  level: number;
+  /** Equal-tailed: (1 - level)/2 of the mass below lo and above hi. */
+  lo: number;
+  hi: number;
+  /** Highest-density interval: the densest cells holding the level's mass (cell edges). */
+  hdiLo: number;
+  hdiHi: number;
+  /** The highest-density cells are not contiguous. */
+  hdiDisjoint: boolean;
+  /** The first (last) grid cell holds more than half a tail's mass: the grid cuts the posterior off there. */
+  loAtEdge: boolean;
+  hiAtEdge: boolean;
+}
+
+/** Marginal posterior of one parameter: probability of each grid value's cell. */
+export interface MarginalPosterior {
+  parameter: string;
+  /** The prior, in words: `uniform in log10 density`. */
+  prior: string;
+  values: number[];
+  probability: number[];
+  /** Posterior mean and standard deviation of log10 of the parameter (null for an axis with values <= 0). */
+  meanLog: number | null;
+  sdLog: number | null;
+}
+
+/** The posterior reading of one fit. */
+export interface PosteriorSummary {
+  priors: string[];
+  marginals: MarginalPosterior[];
+  intervals: CredibleInterval[];
+  /** 2-D marginals of the fit's pairs: probability[iy * xValues.length + ix]. */
+  pairs: { x: string; y: string; xValues: number[]; yValues: number[]; probability: number[] }[];
+}
+
 /** Everything known about the fit of one sightline. */
 export interface SightlineFit {
   sightline: string;
@@ -209,6 +247,8 @@ export interface SightlineFit {
   /** How many candidates lie within the first level's threshold in all (the best included). */
   candidatesInRegion: number;
   intervals: ParameterInterval[];
+  /** The posterior reading (fit.method profile+posterior; absent otherwise and in files written before it). */
+  posterior?: PosteriorSummary;
   /** Poor fit, interval at the grid edge, skipped quantities, dof floored. */
   warnings: string[];
 }

@@ -149,7 +149,12 @@ describe('hoarfrost run, end to end', () => {
     expect(locked.code).toBe(0);
     const lock = readLock(lockFile);
     expect(lock.sightlines.map((s) => s.sightline)).toEqual(['T-1', 'T-2', 'T-3']);
-    expect(lock.tolerance).toEqual({ densityDex: 0.1, ageDex: 0.1 });
+    // Default tolerance: 1.5 grid steps of each parameter (the steps fit.json states), so one step passes.
+    const steps = JSON.parse(readFileSync(join(dir, 'out/fit/fit.json'), 'utf8')).gridStepsDex;
+    expect(lock.tolerance.densityDex).toBeCloseTo(1.5 * steps.density, 2);
+    expect(lock.tolerance.ageDex).toBeCloseTo(1.5 * steps.age_yr, 2);
+    expect(lock.tolerance.rule).toMatch(/1\.5 grid steps/);
+    expect(lock.sightlines[0].parameters?.density).toBeDefined();
     expect(Object.keys(lock.tables)).toContain('fit/best_fits.csv');
 
     const same = await run(pipeline, { check: lockFile });
@@ -163,7 +168,7 @@ describe('hoarfrost run, end to end', () => {
     // The grid reads only the sightlines' A_V bins, which did not change.
     expect(stageStatuses(moved.out)).toEqual(['observe ran', 'grid unchanged', 'fit ran', 'report ran']);
     expect(moved.code).toBe(1);
-    expect(moved.out).toMatch(/FAILED; \d sightlines? moved beyond 0\.1 dex/);
+    expect(moved.out).toMatch(/FAILED; \d sightlines? moved beyond [\d.]+ dex/);
     expect(moved.out).toMatch(/\n {2}T-2: (best|density|age)/);
     expect(moved.out).not.toMatch(/\n {2}T-1: /);
   });

@@ -79,6 +79,12 @@ export const fitSection = z
      * tables only: a map reads its profiles between grid values instead.
      */
     refine: z.number().int().min(1).max(10).default(4),
+    /**
+     * Readings of the candidate table: the profile (chi^2 minimised over the other
+     * parameters) always; with `profile+posterior` also the posterior with priors
+     * uniform in log10 of each fitted parameter (docs/statistics.md section 8).
+     */
+    method: z.enum(['profile', 'profile+posterior']).default('profile+posterior'),
     /** Groups of sightlines fitted jointly with shared parameters. */
     joint: z.array(jointGroup).default([]),
   })

@@ -11,6 +11,7 @@ import type { ReportInput } from '../types.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
 import { chi2MapFigure } from './chi2-map.ts';
 import { fitVsAvFigure } from './fit-vs-av.ts';
+import { posteriorFigure } from './posterior.ts';
 import { profilesFigure } from './profiles.ts';
 import { skyMapFigure } from './sky-map.ts';
 import { tracksFigure } from './tracks.ts';
@@ -21,15 +22,16 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   fit_vs_av: fitVsAvFigure,
   profiles: profilesFigure,
   sky_map: skyMapFigure,
+  posterior: posteriorFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+  table: ['fit_vs_av', 'chi2_map', 'profiles', 'posterior', 'tracks'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
-const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'tracks'];
+const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'posterior', 'tracks'];
 
 export function figureContext(input: ReportInput, warnings: string[]): FigureContext {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
@@ -79,7 +81,10 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
   if (input.config.species) checkSpecies(input.config.species, 'report.species');
   const raw: { cfg: Exclude<FigureRequestConfig, string> | { kind: string }; field: string; explicit: boolean }[] = input.config.figures
     ? input.config.figures.map((f, i) => ({ cfg: typeof f === 'string' ? { kind: f } : f, field: `report.figures[${i}]`, explicit: true }))
-    : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])].map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
+    : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])]
+        // A fit read by its profile alone (fit.method: profile) chose no posterior: no note that its figure is missing.
+        .filter((kind) => kind !== 'posterior' || input.fit.fits.some((f) => f.posterior !== undefined))
+        .map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
   const requests: FigureRequest[] = [];
   const names = new Map<string, string>();
   for (const { cfg, field, explicit } of raw) {
