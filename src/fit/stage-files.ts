@@ -39,7 +39,9 @@ function bestFitsCsv(result: FitStageResult, table: CandidateTable): string {
     'density_lo', 'density_hi', 'age_lo_yr', 'age_hi_yr',
     ...others.flatMap((p) => (varied.has(p) ? [p, `${p}_lo`, `${p}_hi`] : [p])),
     'density_at_edge', 'age_at_edge', 'poor_fit', 'detections', 'upper_limits', 'lower_limits', 'model_id',
+    'density_unresolved', 'age_unresolved', 'density_disjoint', 'age_disjoint', 'delta_chi2', 'parameters_of_interest',
   ];
+  const tableLevel = result.levels.find((l) => l.level === TABLE_LEVEL);
   const rows = result.fits.map((f) => {
     const bounds = (p: string): [CsvCell, CsvCell] => {
       const iv = tableInterval(f, p);
@@ -55,6 +57,9 @@ function bestFitsCsv(result: FitStageResult, table: CandidateTable): string {
       ...bounds(DENSITY), ...bounds(AGE_PARAMETER),
       ...others.flatMap((p) => (varied.has(p) ? [f.best.parameters[p], ...bounds(p)] : [f.best.parameters[p]])),
       edge(DENSITY), edge(AGE_PARAMETER), f.pValue < result.poorFitP, f.counts.detections, f.counts.upperLimits, f.counts.lowerLimits, f.best.modelId,
+      tableInterval(f, DENSITY)?.unresolved ?? false, tableInterval(f, AGE_PARAMETER)?.unresolved ?? false,
+      tableInterval(f, DENSITY)?.disjoint ?? false, tableInterval(f, AGE_PARAMETER)?.disjoint ?? false,
+      tableLevel?.deltaChi2 ?? null, tableLevel?.parametersOfInterest ?? null,
     ];
   });
   return toCsv(header, rows);
@@ -63,7 +68,7 @@ function bestFitsCsv(result: FitStageResult, table: CandidateTable): string {
 function mapBestFitsCsv(map: MapFitImages, table: CandidateTable, observations: ObservationSet): string {
   const others = otherParameters(table);
   const np = table.parameterNames.length;
-  const header = ['sightline', 'x', 'y', 'density', 'age_yr', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'density_lo', 'density_hi', 'age_lo_yr', 'age_hi_yr', ...others, 'at_edge', 'model_id'];
+  const header = ['sightline', 'x', 'y', 'density', 'age_yr', 'chi2', 'dof', 'reduced_chi2', 'p_value', 'density_lo', 'density_hi', 'age_lo_yr', 'age_hi_yr', ...others, 'at_edge', 'model_id', 'unresolved', 'density_subgrid', 'age_subgrid_yr'];
   const rows: CsvCell[][] = [];
   const im = map.images;
   for (const s of observations.sightlines) {
@@ -76,15 +81,18 @@ function mapBestFitsCsv(map: MapFitImages, table: CandidateTable, observations: 
       s.id, s.pixel.x, s.pixel.y, im.best_density[i], im.best_age_yr[i], im.best_chi2[i], im.dof[i], im.reduced_chi2[i], im.p_value[i],
       im.density_lo[i], im.density_hi[i], im.age_lo_yr[i], im.age_hi_yr[i],
       ...others.map((p) => table.parameters[model * np + table.parameterNames.indexOf(p)]),
-      im.at_edge[i] === 1, table.modelIds[model],
+      im.at_edge[i] === 1, table.modelIds[model], im.unresolved[i] === 1, im.density_subgrid[i], im.age_subgrid_yr[i],
     ]);
   }
   return toCsv(header, rows);
 }
 
 function intervalsCsv(result: FitStageResult): string {
-  const header = ['fit', 'kind', 'parameter', 'level', 'delta_chi2', 'best', 'lo', 'hi', 'lo_at_edge', 'hi_at_edge', 'disjoint', 'unresolved'];
-  const row = (name: string, kind: string, iv: ParameterInterval): CsvCell[] => [name, kind, iv.parameter, iv.level, iv.deltaChi2Threshold, iv.best, iv.lo, iv.hi, iv.loAtEdge, iv.hiAtEdge, iv.disjoint, iv.unresolved];
+  const header = ['fit', 'kind', 'parameter', 'level', 'delta_chi2', 'best', 'lo', 'hi', 'lo_at_edge', 'hi_at_edge', 'disjoint', 'unresolved', 'parameters_of_interest', 'best_node', 'node_lo', 'node_hi'];
+  const row = (name: string, kind: string, iv: ParameterInterval): CsvCell[] => [
+    name, kind, iv.parameter, iv.level, iv.deltaChi2Threshold, iv.best, iv.lo, iv.hi, iv.loAtEdge, iv.hiAtEdge, iv.disjoint, iv.unresolved,
+    iv.parametersOfInterest ?? null, iv.bestNode ?? null, iv.nodeLo ?? null, iv.nodeHi ?? null,
+  ];
   const rows = [...result.fits.flatMap((f) => f.intervals.map((iv) => row(f.sightline, 'sightline', iv))), ...result.joint.flatMap((j) => j.intervals.map((iv) => row(j.name, 'joint', iv)))];
   return toCsv(header, rows);
 }

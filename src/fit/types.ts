@@ -39,10 +39,13 @@ export interface CandidateTable {
  *   density_hi, age_lo_yr, age_hi_yr`, then for every other grid parameter
  *   `<param>` (and `<param>_lo, <param>_hi` when the grid varies it), then
  *   `density_at_edge, age_at_edge, poor_fit, detections, upper_limits,
- *   lower_limits, model_id`; the bounds are the 68.3% level. For a map, one
+ *   lower_limits, model_id, density_unresolved, age_unresolved,
+ *   density_disjoint, age_disjoint, delta_chi2, parameters_of_interest`; the
+ *   bounds are the 68.3% level, read between grid values. For a map, one
  *   row per fitted pixel: `sightline, x, y, density, age_yr, chi2, dof,
  *   reduced_chi2, p_value, density_lo, density_hi, age_lo_yr, age_hi_yr`,
- *   every other grid parameter's best value, `at_edge, model_id`.
+ *   every other grid parameter's best value, `at_edge, model_id, unresolved,
+ *   density_subgrid, age_subgrid_yr`.
  * - intervals.csv: one row per sightline (or joint group) x parameter x level.
  * - residuals.csv: one row per sightline x quantity at the best fit.
  * - joint_fits.csv: one row per joint group member at the group's shared best values.
