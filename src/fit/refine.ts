@@ -139,6 +139,13 @@ export function refineTable(table: CandidateTable, axes: GridAxes, names: readon
         const isNode = sub.every((k) => k === 0);
         const params = new Array<number>(np);
         for (let p = 0; p < np; p++) {
+          // A parameter equal at every corner (a fixed one, or a held axis) is copied, not recomputed through its log.
+          let same = true;
+          for (let c = 0; c < corners; c++) if (cornerWeights[c] > 0 && table.parameters[cornerModels[c] * np + p] !== table.parameters[m * np + p]) same = false;
+          if (isNode || same) {
+            params[p] = table.parameters[m * np + p];
+            continue;
+          }
           let acc = 0;
           let log = true;
           for (let c = 0; c < corners; c++) if (cornerWeights[c] > 0 && !(table.parameters[cornerModels[c] * np + p] > 0)) log = false;
@@ -147,7 +154,7 @@ export function refineTable(table: CandidateTable, axes: GridAxes, names: readon
             const v = table.parameters[cornerModels[c] * np + p];
             acc += cornerWeights[c] * (log ? Math.log10(v) : v);
           }
-          params[p] = isNode ? table.parameters[m * np + p] : log ? Math.pow(10, acc) : acc;
+          params[p] = log ? Math.pow(10, acc) : acc;
         }
         const row = new Float64Array(nT * nS);
         for (let t = 0; t < nT; t++) {

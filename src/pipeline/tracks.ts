@@ -1,9 +1,12 @@
 /**
  * Model tracks for the report: the fitted quantities (abundances or ratios)
  * of each sightline's best-fit model, and of its runner-ups, against time,
- * read from the model store.
+ * read from the model store (and interpolated as the fit did for a model of
+ * its refined mesh).
  */
 import { loadCandidates } from '../grid/candidates.ts';
+import { buildAxes } from '../fit/axes.ts';
+import { refineTable } from '../fit/refine.ts';
 import type { FitStageResult, QuantityScore } from '../fit/types.ts';
 import type { ModelTrack } from '../report/types.ts';
 
@@ -33,7 +36,10 @@ export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: nu
     species.add(q.numerator);
     if (q.denominator) species.add(q.denominator);
   }
-  const table = loadCandidates(storeFile, [...species].sort());
+  const stored = loadCandidates(storeFile, [...species].sort());
+  // A best fit between grid values (id `~...`) is a model of the fit's refined mesh: the same refinement of the store gives its track.
+  const refined = fit.interpolation !== undefined && requests.some((r) => r.modelId.startsWith('~'));
+  const table = refined ? refineTable(stored, buildAxes(stored), fit.interpolation!.axes, fit.interpolation!.factor).table : stored;
   const rowOf = new Map(table.modelIds.map((id, i) => [id, i]));
   const column = new Map(table.species.map((s, i) => [s, i]));
   const timesYr = Array.from(table.timesYr);
