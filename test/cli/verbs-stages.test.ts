@@ -72,7 +72,7 @@ describe('stage state recorded by the verbs', () => {
 
     const fit = runCli(['fit', 'tiny-pipeline.yaml'], dir);
     expect(fit.code, fit.stderr).toBe(0);
-    expect(fit.stdout).toMatch(/Best fits, with 68\.3% intervals/);
+    expect(fit.stdout).toMatch(/Best fits, with 68\.3%, Delta chi2 <= 1\.00, one-parameter intervals/);
     expect(Object.keys(stageState(dir)).sort()).toEqual(['fit', 'grid', 'observe']);
 
     const report = runCli(['report', 'tiny-pipeline.yaml'], dir);
