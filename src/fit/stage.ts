@@ -173,11 +173,18 @@ export function fitOptions(section: FitSection): FitOptions {
 
 /** Candidates a refined mesh may hold: the refinement factor is lowered until the mesh fits (about 100 MB of model values for ten quantities). */
 const REFINED_CANDIDATES_BUDGET = 1_000_000;
+/**
+ * A map scores every candidate against every pixel: its mesh is refined only
+ * while pixels x refined candidates stays within this many pairs (about the
+ * benchmark map's 1.6e9 at the grid's own resolution, some 25 s on one core).
+ */
+const MAP_REFINED_PAIRS_BUDGET = 2e9;
 
 /**
  * The refined table of a sightline fit (refine.ts), with the interpolation
- * error per term folded into the term floors. A map, fit.refine: 1, or a grid
- * with nothing to refine keeps the grid's own table.
+ * error per term folded into the term floors. fit.refine: 1, a grid with
+ * nothing to refine, or one whose mesh would pass the budget (smaller for a
+ * map, whose cost grows with its pixels) keeps the grid's own table.
  */
 function refineForFit(
   table: CandidateTable,
@@ -186,14 +193,15 @@ function refineForFit(
   section: FitSection,
   held: FitStageInput['held'],
   warnings: string[],
+  budget = REFINED_CANDIDATES_BUDGET,
 ): { table: CandidateTable; axes: GridAxes; model: ModelQuantities; summary?: InterpolationSummary; errorDex?: Map<string, number> } {
   const heldNames = new Set(Object.values(held ?? {}).flatMap((h) => Object.keys(h)));
   const names = refinableAxes(axes, heldNames);
   if (section.refine <= 1 || names.length === 0) return { table, axes, model };
   let factor = section.refine;
-  while (factor > 1 && refinedSize(table, axes, names, factor) > REFINED_CANDIDATES_BUDGET) factor--;
+  while (factor > 1 && refinedSize(table, axes, names, factor) > budget) factor--;
   if (factor <= 1) {
-    warnings.push(`the grid (${table.nModels * table.nTimes} candidates) is too large to refine within ${REFINED_CANDIDATES_BUDGET} candidates: best fits and intervals are read between grid values from the profiles alone.`);
+    warnings.push(`the grid (${table.nModels * table.nTimes} candidates) is too large to refine within ${Math.round(budget)} candidates${budget < REFINED_CANDIDATES_BUDGET ? ' (for this map\'s pixels)' : ''}: best fits and intervals are read between grid values from the profiles alone.`);
     return { table, axes, model };
   }
   const error = interpolationError(table, axes, model, names);
@@ -248,8 +256,9 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   options.termModelSigmaDex = termFloors(section, quantities);
   const refineWarnings: string[] = [];
   let interpolation: InterpolationSummary | undefined;
-  if (observations.kind !== 'map') {
-    const refined = refineForFit(table, axes, model, section, input.held, refineWarnings);
+  {
+    const budget = observations.kind === 'map' ? Math.min(REFINED_CANDIDATES_BUDGET, MAP_REFINED_PAIRS_BUDGET / Math.max(1, observations.sightlines.length)) : REFINED_CANDIDATES_BUDGET;
+    const refined = refineForFit(table, axes, model, section, input.held, refineWarnings, budget);
     if (refined.summary && refined.errorDex) {
       ({ table, axes, model } = refined);
       interpolation = refined.summary;

@@ -65,3 +65,35 @@ describe('coverage on a coarse grid, truth between grid values', () => {
     }
   });
 });
+
+describe('coverage of a map on the same coarse grid', () => {
+  it('pixels (a map computes the 68.3% level): intervals hold the truth in 60-76 of 100 for density and for age', () => {
+    const table = syntheticTable({ densities: DENSITIES, times: TIMES });
+    const section = fitSection.parse({ quantities: [{ species: 'CO(s)' }], model_sigma_dex: 0, levels: [0.683] });
+    const random = seededRandom(13013);
+    const noise = () => gaussian(random);
+    const truth: { density: number; age: number }[] = [];
+    const quantities: ObservedQuantity[] = [];
+    for (let d = 0; d < DRAWS; d++) {
+      const density = 10 ** (3.5 + 2 * random());
+      const age = 10 ** (4.6 + 1.8 * random());
+      truth.push({ density, age });
+      quantities.push(...drawQuantities(`${d},0`, density, age, noise));
+    }
+    const sightlines = truth.map((_, d) => ({ id: `${d},0`, pixel: { x: d, y: 0 }, columns: {}, source: { file: 'invented-map.fits' } }));
+    const out = runFitStage({ table, section, observations: { file: 'invented-map.fits', kind: 'map', sightlines, map: { nx: DRAWS, ny: 1, wcs: {} }, warnings: [] }, quantities });
+    const im = out.map!.images;
+    let density = 0;
+    let age = 0;
+    truth.forEach((t, i) => {
+      if (t.density >= im.density_lo[i] && t.density <= im.density_hi[i]) density++;
+      if (t.age >= im.age_lo_yr[i] && t.age <= im.age_hi_yr[i]) age++;
+    });
+    console.log(`map coverage at 68.3% (of ${DRAWS}): density ${density}, age ${age}; refined mesh: ${out.result.interpolation?.factor ?? 'none'}`);
+    expect(out.result.interpolation?.factor).toBe(4);
+    expect(density).toBeGreaterThanOrEqual(60);
+    expect(density).toBeLessThanOrEqual(76);
+    expect(age).toBeGreaterThanOrEqual(60);
+    expect(age).toBeLessThanOrEqual(76);
+  });
+});

@@ -75,8 +75,9 @@ export const fitSection = z
      * Sub-grid resolution: every grid interval of density, age and the other
      * fitted conditions is cut into this many steps, the models interpolated
      * between grid values (log abundance multilinear in log parameter and log
-     * time; docs/statistics.md section 5); 1 switches it off. Sightline
-     * tables only: a map reads its profiles between grid values instead.
+     * time; docs/statistics.md section 5); 1 switches it off. A map is refined
+     * only while pixels x refined candidates stays within 2e9; a larger one
+     * reads its profiles between grid values alone.
      */
     refine: z.number().int().min(1).max(10).default(4),
     /**
