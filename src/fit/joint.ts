@@ -6,7 +6,8 @@
  * combination of least summed chi^2. A profile of each shared parameter is
  * that sum minimised over the other shared parameters.
  */
-import type { Axis } from './axes.ts';
+import type { Axis, GridAxes } from './axes.ts';
+import { posteriorFromChi2 } from './posterior.ts';
 import { candidateRef } from './candidate-ref.ts';
 import { chiSquarePValue } from './chi-square.ts';
 import type { FitContext } from './context.ts';
@@ -18,7 +19,7 @@ import { scoreCandidates } from './score.ts';
 import { censoredCost } from './censored.ts';
 import { choleskyLower } from './covariance.ts';
 import { detectionCovariance } from './observation-vector.ts';
-import type { JointFit, JointMember, ParameterInterval, Profile1D, SightlineProfiles } from './types.ts';
+import type { JointFit, JointMember, ParameterInterval, PosteriorSummary, Profile1D, SightlineProfiles } from './types.ts';
 
 export interface JointFitOutput {
   fit: JointFit;
@@ -120,6 +121,14 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
     for (const level of options.levels) intervals.push(intervalFromProfile(profile, axis.values[bestBin], level));
   });
 
+  // The posterior over the shared values (members' own parameters profiled, not marginalised: docs/statistics.md section 8).
+  let posterior: PosteriorSummary | undefined;
+  if (options.posterior) {
+    const keyAxes: Axis[] = sharedAxes.map((axis, i) => ({ name: axis.name, values: axis.values, varied: axis.values.length > 1, binOfCandidate: Int32Array.from({ length: nKeys }, (_, k) => Math.floor(k / strides[i]) % axis.values.length) }));
+    const keyGrid: GridAxes = { axes: keyAxes, byName: new Map(keyAxes.map((a) => [a.name, a])), independent: keyAxes.filter((a) => a.varied).map((a) => a.name) };
+    const sharedPairs = options.pairs.filter(([x, y]) => shared.includes(x) && shared.includes(y));
+    posterior = posteriorFromChi2(total, keyGrid, keyGrid.independent, options.levels, sharedPairs);
+  }
   const warnings: string[] = [];
   if (rawDof < 1) warnings.push(`joint group ${name}: ${counted} counted quantities for ${fittedParameters} fitted parameters: dof raised to 1, so the p-value does not test this fit.`);
   if (pValue < options.poorFitP) {
@@ -128,7 +137,7 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
   warnings.push(...edgeWarnings(`joint group ${name}`, intervals, options.levels[0].level));
 
   return {
-    fit: { name, members: members.map((m) => m.sightline), shared: [...shared], sharedBest, chi2: chi2Best, dof, reducedChi2: chi2Best / dof, pValue, fittedParameters, memberFits, profiles, intervals, warnings },
+    fit: { name, members: members.map((m) => m.sightline), shared: [...shared], sharedBest, chi2: chi2Best, dof, reducedChi2: chi2Best / dof, pValue, fittedParameters, memberFits, profiles, intervals, ...(posterior ? { posterior } : {}), warnings },
     profiles: { sightline: name, chi2Best, profiles, pairs: [] },
   };
 }

@@ -294,6 +294,8 @@ export interface JointFit {
   /** Profiles of each shared parameter: summed chi^2 minimised over the other shared parameters. */
   profiles: Profile1D[];
   intervals: ParameterInterval[];
+  /** The posterior over the shared values, each member's own parameters profiled (fit.method profile+posterior). */
+  posterior?: PosteriorSummary;
   warnings: string[];
 }
 

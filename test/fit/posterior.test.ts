@@ -78,4 +78,21 @@ describe('posterior of a linear-Gaussian model', () => {
     // The 2-D marginal sums to 1.
     expect(post.pairs[0].probability.reduce((s, v) => s + v, 0)).toBeCloseTo(1, 12);
   });
+
+  it('a joint group of two members with the same data: the posterior over the shared values is 1/sqrt(2) as wide', () => {
+    const f = [0, 0, 0];
+    J.forEach((row, j) => {
+      const w = 1 / SIGMA[j] ** 2;
+      f[0] += w * row[0] * row[0];
+      f[1] += w * row[0] * row[1];
+      f[2] += w * row[1] * row[1];
+    });
+    const sdDensity = Math.sqrt(f[2] / (f[0] * f[2] - f[1] * f[1]));
+    const q = ['a', 'b'].flatMap((id) => ['A', 'B', 'C'].map((s, j) => detection(id, s, A[j] + J[j][0] * TRUTH[0] + J[j][1] * TRUTH[1], SIGMA[j])));
+    const section = fitSection.parse({ quantities: [{ species: 'A', as: 'abundance' }], model_sigma_dex: 0, refine: 1, joint: [{ name: 'pair', sightlines: 'all', share: ['density', 'age_yr'] }] });
+    const { result } = runFitStage({ table: linearTable(), section, observations: observationSet(['a', 'b']), quantities: q });
+    const m = result.joint[0].posterior!.marginals.find((x) => x.parameter === 'density')!;
+    expect(m.meanLog!).toBeCloseTo(TRUTH[0], 3);
+    expect(Math.abs(m.sdLog! / (sdDensity / Math.SQRT2) - 1)).toBeLessThan(0.02);
+  });
 });
