@@ -359,7 +359,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     const poor = out.result.fits.filter((f) => f.warnings.length > 0).length;
     const n = out.map ? `${out.map.fittedPixels} pixels` : `${out.result.fits.length} sightlines`;
     return {
-      summary: `${n} fitted against ${out.result.nCandidates} candidates${poor ? `, ${poor} with warnings` : ''}`,
+      summary: `${n} fitted against ${out.result.interpolation ? `${out.result.interpolation.gridCandidates} candidates (mesh x${out.result.interpolation.factor}: ${out.result.nCandidates})` : `${out.result.nCandidates} candidates`}${poor ? `, ${poor} with warnings` : ''}`,
       outputs: outputs.sort(),
       data: { result: out.result, profiles: out.profiles, map },
       warnings,

@@ -48,7 +48,8 @@ export function formatFitSummary(result: FitStageResult, map: Pick<MapFitJson, '
   const fitted = result.fittedParameters.filter((p) => !heldEverywhere.includes(p));
   const levels = result.levels.map((l) => `${(l.level * 100).toFixed(1)}% (Delta chi2 ${l.deltaChi2.toFixed(2)})`).join(', ');
   const heldText = heldEverywhere.length > 0 ? `; held at each sightline's own value: ${heldEverywhere.join(', ')}` : '';
-  out.push(`${result.nCandidates} candidates; fitted parameters: ${fitted.join(', ')}${heldText}; intervals ${intervalReading(result.levels[0].parametersOfInterest)} at ${levels}; model floor ${result.modelSigmaDex} dex.`);
+  const mesh = result.interpolation ? ` (${result.interpolation.gridCandidates} of the grid, interpolated onto a mesh ${result.interpolation.factor} times finer)` : '';
+  out.push(`${result.nCandidates} candidates${mesh}; fitted parameters: ${fitted.join(', ')}${heldText}; intervals ${intervalReading(result.levels[0].parametersOfInterest)} at ${levels}; model floor ${result.modelSigmaDex} dex.`);
   if (map) {
     const m = map;
     out.push(`Map of ${m.nx} x ${m.ny} pixels: ${m.fittedPixels} fitted. Images of best density, best age, chi2, p-value and ${(m.level.level * 100).toFixed(1)}% interval widths are in fit/map_*.fits and fit/map.json.`);
