@@ -220,6 +220,8 @@ function sharedModelError(ctx: FitContext, members: readonly ObservationVector[]
   const maxNd = Math.max(0, ...blocks.map((b) => b.nd));
   const y = new Float64Array(maxNd);
   const r0 = new Float64Array(maxNd);
+  // Views of the scratch vector sized per member, made once (a subarray is an object).
+  const views = blocks.map((b) => y.subarray(0, b.nd));
   const w = new Float64Array(ns);
   for (let k = 0; k < total.length; k++) {
     if (!Number.isFinite(total[k])) continue;
@@ -230,7 +232,7 @@ function sharedModelError(ctx: FitContext, members: readonly ObservationVector[]
       const c = memberArg[mi][k];
       const base = c * nTerms;
       const { l, nd } = blocks[mi];
-      const ry = y.subarray(0, nd);
+      const ry = views[mi];
       for (let a = 0; a < nd; a++) {
         ry[a] = values[base + obs.detections[a]] - obs.log10[obs.detections[a]];
         r0[a] = ry[a];
