@@ -85,7 +85,10 @@ export function buildObservationVector(sightline: string, quantities: readonly O
     if (!Number.isFinite(q.log10)) continue;
     v.quantities[j] = q;
     v.log10[j] = q.log10;
-    const floor2 = (widths.termModelSigmaDex?.get(terms[j].key) ?? widths.modelSigmaDex) ** 2;
+    const mc = widths.modelCovariance;
+    const mcIndex = mc ? mc.keys.indexOf(terms[j].key) : -1;
+    // A model covariance names its terms' model variance itself (also when it has no off-diagonal part).
+    const floor2 = mc && mcIndex >= 0 ? mc.matrix[mcIndex * (mc.keys.length + 1)] : (widths.termModelSigmaDex?.get(terms[j].key) ?? widths.modelSigmaDex) ** 2;
     if (q.kind === 'detection') {
       const lo2 = q.sigmaLoDex ** 2 + floor2;
       const hi2 = q.sigmaHiDex ** 2 + floor2;

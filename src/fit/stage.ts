@@ -9,6 +9,7 @@ import type { FitSection } from '../config/sections/fit.ts';
 import { throwProblems, UserError } from '../config/errors.ts';
 import type { ObservationSet, ObservedQuantity } from '../obs/types.ts';
 import { buildAxes, type GridAxes } from './axes.ts';
+import type { ModelCovariance } from './covariance.ts';
 import { MODEL_CAUTIONS } from './cautions.ts';
 import type { FitContext, FitOptions } from './context.ts';
 import { fitSightline } from './fit-sightline.ts';
@@ -52,6 +53,13 @@ export interface FitStageInput {
   /** Per sightline id: grid parameters held at one value (model A_V tied to the sightline's A_V). */
   held?: Readonly<Record<string, Readonly<Record<string, number>>>>;
   source?: FitSource;
+  /**
+   * A model covariance between quantity terms (dex^2; covariance.ts), e.g.
+   * from a Monte Carlo over rate coefficients: it replaces the diagonal model
+   * floor of the terms it names and makes them covary in every sightline's
+   * chi^2 (and every pixel's).
+   */
+  modelCovariance?: ModelCovariance;
 }
 
 export interface FitStageOutput {
@@ -254,6 +262,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   let model = buildModelQuantities(table, terms, { file: source?.file });
   const options = fitOptions(section);
   options.termModelSigmaDex = termFloors(section, quantities);
+  if (input.modelCovariance) options.modelCovariance = input.modelCovariance;
   const refineWarnings: string[] = [];
   let interpolation: InterpolationSummary | undefined;
   {

@@ -111,6 +111,22 @@ describe('generalised chi-square', () => {
     expect(fr.result.fits[0].residuals.reduce((s, r) => s + r.chi2, 0)).toBeCloseTo(fr.result.fits[0].best.chi2, 10);
   });
 
+  it('a model covariance given to the stage (the hook for a Monte Carlo over rates) enters every sightline: here a perfect correlation of two terms is a dense check', () => {
+    const table = syntheticTable({ densities: logSpaced(1e3, 1e6, 4), times: logSpaced(1e4, 1e7, 5) });
+    const q = [detection('s', 'H2O(s)', -4.2, 0.1), detection('s', 'CO(s)', -0.9, 0.1, 'H2O(s)')];
+    const section = fitSection.parse({ quantities: [{ species: 'CO(s)' }], model_sigma_dex: 0.3, refine: 1 });
+    const modelCovariance = { keys: ['H2O(s)', 'CO(s)/H2O(s)'], matrix: Float64Array.from([0.04, 0.03, 0.03, 0.09]) };
+    const out = runFitStage({ table, section, observations: observationSet(['s']), quantities: q, modelCovariance });
+    const f = out.result.fits[0];
+    const r = f.residuals.map((x) => x.residualDex);
+    // C = observational diag (0.01) + model covariance.
+    expect(f.best.chi2).toBeCloseTo(denseChiSquare([[0.05, 0.03], [0.03, 0.1]], r), 10);
+    // A diagonal model covariance still sets the terms' model variance (the plain sum, with 0.04 and 0.09).
+    const diagonal = runFitStage({ table, section, observations: observationSet(['s']), quantities: q, modelCovariance: { ...modelCovariance, matrix: Float64Array.from([0.04, 0, 0, 0.09]) } }).result.fits[0];
+    const rd = diagonal.residuals.map((x) => x.residualDex);
+    expect(diagonal.best.chi2).toBeCloseTo(rd[0] ** 2 / 0.05 + rd[1] ** 2 / 0.1, 10);
+  });
+
   it("a joint group's shared model error: chi^2 of the group equals the dense r^T C^-1 r with sigma_shared^2 between members' same quantity", () => {
     const densities = logSpaced(1e3, 1e6, 4);
     const times = logSpaced(1e4, 1e7, 5);
