@@ -49,8 +49,8 @@ export function findShardStores(storeDir: string): string[] {
     .map((x) => join(storeDir, x.n));
 }
 
-export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStores(plan.storeDir)): MergeReport {
-  const storeFile = mainStoreFile(plan);
+/** Merge shard stores into the plan's store (the grid's own, or `storeFile`: the realizations keep theirs). */
+export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStores(plan.storeDir), storeFile: string = mainStoreFile(plan)): MergeReport {
   if (shardFiles.length === 0) {
     throw new UserError(`no shard stores (shard-K-of-N.sqlite) to merge in ${plan.storeDir}. Run \`hoarfrost grid PIPELINE --shard K/N\` (or the Slurm script) first.`);
   }

@@ -6,6 +6,7 @@
 import { join } from 'node:path';
 import { outputSpeciesNames } from '../chem/mantle.ts';
 import type { Network } from '../chem/network-types.ts';
+import type { RateDraw } from '../chem/uncertainty.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { buildModelSetup, type ModelSetup } from '../model/setup.ts';
@@ -16,6 +17,8 @@ import type { WorkerInit } from './worker-protocol.ts';
 
 export interface PlannedPoint extends GridPoint {
   hash: string;
+  /** A Monte Carlo realization of the rate coefficients (src/grid/realizations.ts). */
+  rateDraw?: RateDraw;
 }
 
 export interface GridPlan {

@@ -57,6 +57,8 @@ export interface RunGridOptions {
   workerUrl?: URL;
   /** A precomputed plan (the CLI shares one between commands). */
   plan?: GridPlan;
+  /** The store to write instead of the grid's own (the Monte Carlo realizations keep theirs, src/grid/realizations.ts). */
+  storeFile?: string;
 }
 
 export interface GridRunResult {
@@ -85,7 +87,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
   const started = performance.now();
   const plan = options.plan ?? planGrid(pipeline, options.sightlineAv);
   const share = shardPoints(plan.points, options.shard);
-  const storeFile = options.shard ? shardStoreFile(plan, options.shard) : mainStoreFile(plan);
+  const storeFile = options.storeFile ?? (options.shard ? shardStoreFile(plan, options.shard) : mainStoreFile(plan));
   const release = options.shard ? () => undefined : (mkdirSync(dirname(storeFile), { recursive: true }), acquireRunLock(storeFile));
   let store: ModelStore;
   try {
@@ -164,7 +166,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       if (options.drainSignal?.aborted) pool.drain();
       if (options.abortSignal?.aborted) pool.abort();
       outcome = await pool.run(
-        todo.map((p) => ({ id: p.id, conditions: p.conditions })),
+        todo.map((p) => ({ id: p.id, conditions: p.conditions, ...(p.rateDraw ? { rateDraw: p.rateDraw } : {}) })),
         (o) => {
           const point = byId.get(o.task.id)!;
           const stored = toStored(point, o, plan.species, expectedLength);
