@@ -9,6 +9,7 @@
  * Pure computation: eps[r][i] of reaction i in realization r, and the
  * value's log10 in each realization.
  */
+import { lowerNormalQuantile } from './normal.ts';
 
 export type CorrelationMethod = 'pearson' | 'spearman';
 
@@ -82,4 +83,19 @@ export function rankReactions(epsilon: readonly Float64Array[], value: ArrayLike
   }
   out.sort((a, b) => Math.abs(b.coefficient) - Math.abs(a.coefficient) || a.reaction - b.reaction);
   return out;
+}
+
+/**
+ * The largest |coefficient| that N realizations give by chance alone when
+ * M reactions are tested at once: under no dependence, Fisher's
+ * z = atanh(r) is normal with variance 1/(N - 3) (Fisher 1915; any
+ * statistics text), and a Bonferroni bound over the M tests at level
+ * `alpha` gives r = tanh(Phi^-1(1 - alpha/(2M)) / sqrt(N - 3)). A ranking
+ * whose leading coefficients are below it says nothing yet: run more
+ * realizations. (For Spearman's coefficient the same bound holds
+ * approximately.) NaN below 4 realizations.
+ */
+export function chanceCoefficient(realizations: number, reactions: number, alpha = 0.05): number {
+  if (realizations < 4 || reactions < 1) return Number.NaN;
+  return Math.tanh(-lowerNormalQuantile(alpha / (2 * reactions)) / Math.sqrt(realizations - 3));
 }

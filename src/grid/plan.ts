@@ -34,6 +34,22 @@ export interface GridPlan {
   storeDir: string;
 }
 
+/** What running and merging a batch of models needs of a plan: the grid's, or the realizations' (src/grid/realizations.ts). */
+export type ModelBatchPlan = Pick<GridPlan, 'points' | 'gridHash' | 'species' | 'shared' | 'workerInit' | 'storeDir'>;
+
+/** The batch plan of a model setup with no points yet: what the grid's plan holds besides its grid. */
+export function setupBatchPlan(pipeline: Pipeline, setup: ModelSetup): ModelBatchPlan {
+  const { network, options } = setup;
+  return {
+    points: [],
+    gridHash: gridHash([]),
+    species: outputSpeciesNames(network, options.grain),
+    shared: { networkHash: network.contentHash, options, toolVersion: TOOL_VERSION },
+    workerInit: { networkFile: setup.networkFile, networkHash: network.contentHash, options },
+    storeDir: join(pipeline.resolvePath(pipeline.config.output), 'store'),
+  };
+}
+
 export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): GridPlan {
   const grid = expandGrid(gridSpecFromPipeline(pipeline, sightlineAv));
   const setup = buildModelSetup(pipeline);

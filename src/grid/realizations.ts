@@ -17,7 +17,7 @@ import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import type { RateDraw } from '../chem/uncertainty.ts';
 import { gridHash, modelHash, sharedInputsHash } from './hash.ts';
-import type { GridPlan, PlannedPoint } from './plan.ts';
+import type { ModelBatchPlan, PlannedPoint } from './plan.ts';
 import { runGrid, type GridRunResult, type RunGridOptions } from './run.ts';
 import type { Shard } from './shard.ts';
 import { decodeAbundances, ModelStore } from './store.ts';
@@ -42,7 +42,7 @@ export function realizationId(baseId: string, realization: number): string {
  * The plan of the realizations: a grid plan whose points are (base model,
  * realization) pairs, base-major, each with its draw and its own hash.
  */
-export function planRealizations(plan: GridPlan, bases: readonly RealizationBase[], settings: RealizationSettings): GridPlan {
+export function planRealizations(plan: ModelBatchPlan, bases: readonly RealizationBase[], settings: RealizationSettings): ModelBatchPlan {
   checkSettings(settings);
   const points: PlannedPoint[] = [];
   for (const base of bases) {
@@ -65,18 +65,18 @@ function checkSettings(s: RealizationSettings): void {
 }
 
 /** The realizations' store of a plan's output: OUT/store/realizations.sqlite, or one per shard. */
-export function realizationStoreFile(plan: Pick<GridPlan, 'storeDir'>, shard?: Shard): string {
+export function realizationStoreFile(plan: Pick<ModelBatchPlan, 'storeDir'>, shard?: Shard): string {
   return join(plan.storeDir, shard ? `realizations-shard-${shard.index}-of-${shard.count}.sqlite` : 'realizations.sqlite');
 }
 
 /** Run (or resume) the realizations on the worker pool; a shard runs its share into its own store. */
 export async function runRealizations(
   pipeline: Pipeline,
-  plan: GridPlan,
+  plan: ModelBatchPlan,
   bases: readonly RealizationBase[],
   settings: RealizationSettings,
   options: Omit<RunGridOptions, 'plan' | 'storeFile' | 'sightlineAv'> & { storeFile?: string } = {},
-): Promise<GridRunResult & { plan: GridPlan }> {
+): Promise<GridRunResult & { plan: ModelBatchPlan }> {
   const realizations = planRealizations(plan, bases, settings);
   const storeFile = options.storeFile ?? realizationStoreFile(plan, options.shard);
   const result = await runGrid(pipeline, { ...options, plan: realizations, storeFile });
@@ -98,7 +98,7 @@ export interface RealizationSet {
   missing: number[];
 }
 
-export function readRealizations(storeFile: string, plan: GridPlan, bases: readonly RealizationBase[], settings: RealizationSettings): RealizationSet[] {
+export function readRealizations(storeFile: string, plan: ModelBatchPlan, bases: readonly RealizationBase[], settings: RealizationSettings): RealizationSet[] {
   const store = ModelStore.open(storeFile, { readonly: true });
   try {
     const meta = store.meta();

@@ -12,7 +12,7 @@ import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
 import { writeRefusal } from '../config/write.ts';
 import type { ModelResult } from '../model/types.ts';
-import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type GridPlan, type PlannedPoint } from './plan.ts';
+import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type ModelBatchPlan, type PlannedPoint } from './plan.ts';
 import { defaultWorkerCount, ModelPool, type PoolOutcome } from './pool.ts';
 import { shardLabel, type Shard } from './shard.ts';
 import { ModelStore, type StoredModel } from './store.ts';
@@ -56,7 +56,7 @@ export interface RunGridOptions {
   /** The model worker module (tests give one with a fake model). */
   workerUrl?: URL;
   /** A precomputed plan (the CLI shares one between commands). */
-  plan?: GridPlan;
+  plan?: ModelBatchPlan;
   /** The store to write instead of the grid's own (the Monte Carlo realizations keep theirs, src/grid/realizations.ts). */
   storeFile?: string;
 }

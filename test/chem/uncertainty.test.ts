@@ -211,3 +211,18 @@ columns: {reactants: [r1], products: [p1], parameters: {alpha: a}, uncertainty_f
     expect(() => loadNetwork(join(dir, 't.csv'))).toThrow(/expected a number for the uncertainty factor F.*'two'/);
   });
 });
+
+describe('the chance level of a correlation coefficient', () => {
+  it('is tanh(z / sqrt(N - 3)) with the Bonferroni quantile (Fisher 1915; z(0.975) = 1.959964 from any normal table)', async () => {
+    const { chanceCoefficient } = await import('../../src/fit/sensitivity.ts');
+    expect(chanceCoefficient(103, 1)).toBeCloseTo(Math.tanh(1.959964 / 10), 4);
+    // Ten tests: z(1 - 0.0025) = 2.807034 (normal table).
+    expect(chanceCoefficient(103, 10)).toBeCloseTo(Math.tanh(2.807034 / 10), 4);
+    expect(chanceCoefficient(3, 10)).toBeNaN();
+    // Deep tail: Phi^-1(1e-6) = -4.753424 (normal table; what the Bonferroni bound of many reactions reaches).
+    const { lowerNormalQuantile } = await import('../../src/fit/normal.ts');
+    expect(lowerNormalQuantile(1e-6)).toBeCloseTo(-4.753424, 5);
+    expect(lowerNormalQuantile(0.5)).toBeCloseTo(0, 6);
+    expect(chanceCoefficient(1000, 894)).toBeLessThan(chanceCoefficient(100, 894));
+  });
+});
