@@ -14,6 +14,7 @@ import { fitVsAvFigure } from './fit-vs-av.ts';
 import { profilesFigure } from './profiles.ts';
 import { skyMapFigure } from './sky-map.ts';
 import { tracksFigure } from './tracks.ts';
+import { sensitivityFigure } from './sensitivity.ts';
 
 export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   chi2_map: chi2MapFigure,
@@ -21,15 +22,16 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   fit_vs_av: fitVsAvFigure,
   profiles: profilesFigure,
   sky_map: skyMapFigure,
+  sensitivity: sensitivityFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+  table: ['fit_vs_av', 'chi2_map', 'profiles', 'tracks', 'sensitivity'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
-const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'tracks'];
+const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'tracks', 'sensitivity'];
 
 export function figureContext(input: ReportInput, warnings: string[]): FigureContext {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
@@ -79,7 +81,10 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
   if (input.config.species) checkSpecies(input.config.species, 'report.species');
   const raw: { cfg: Exclude<FigureRequestConfig, string> | { kind: string }; field: string; explicit: boolean }[] = input.config.figures
     ? input.config.figures.map((f, i) => ({ cfg: typeof f === 'string' ? { kind: f } : f, field: `report.figures[${i}]`, explicit: true }))
-    : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])].map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
+    : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])]
+        // The sensitivity figure is a default only of a run with realizations; without them it is not missed.
+        .filter((kind) => kind !== 'sensitivity' || input.sensitivity !== undefined)
+        .map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
   const requests: FigureRequest[] = [];
   const names = new Map<string, string>();
   for (const { cfg, field, explicit } of raw) {
