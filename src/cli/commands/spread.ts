@@ -185,7 +185,9 @@ async function runSpreadCommand(file: string, opts: SpreadOptions, ctx: CommandC
   const bars = sensitivityBarsSpec(
     top[first].map((t) => ({ reaction: `${t.reaction}: ${t.equation}`, coefficient: t.coefficient })),
     `What ${first} hangs on at ${times[at].toPrecision(3)} yr`,
-    `${opts.method === 'pearson' ? 'Pearson' : 'Spearman'} coefficient over ${set.realizations.length} realizations; top ${top[first].length}${Number.isFinite(chance) ? `; |r| < ${chance.toFixed(2)} can be chance` : ''}`,
+    `${opts.method === 'pearson' ? 'Pearson' : 'Spearman'} coefficient over ${set.realizations.length} realizations; top ${top[first].length}${Number.isFinite(chance) ? `; dashed: the chance level ${chance.toFixed(2)}` : ''}`,
+    `log ${first}`,
+    Number.isFinite(chance) ? chance : null,
   );
   writeOutput(join(outDir, 'sensitivity.vl.json'), JSON.stringify(bars, null, 1) + '\n');
   writeOutput(join(outDir, 'sensitivity.svg'), (await renderSvg(bars)).svg);

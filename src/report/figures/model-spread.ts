@@ -59,20 +59,34 @@ export interface SensitivityBar {
   coefficient: number;
 }
 
-/** The top reactions of one value, strongest first, as horizontal bars of the correlation coefficient (-1 to 1). */
-export function sensitivityBarsSpec(bars: readonly SensitivityBar[], title: string, subtitle: string): TopLevelSpec {
+/**
+ * The top reactions of one value, strongest first, as horizontal bars of the
+ * correlation coefficient (-1 to 1), with dashed lines at the coefficient
+ * chance alone reaches when it is known.
+ */
+export function sensitivityBarsSpec(bars: readonly SensitivityBar[], title: string, subtitle: string, valueName: string, chance?: number | null): TopLevelSpec {
+  const x = { field: 'coefficient', type: 'quantitative' as const, title: `Correlation of log k with ${valueName}`, scale: { domain: [-1, 1] } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
     title: { text: title, subtitle },
     width: 240,
     height: { step: 14 },
-    data: { values: bars.map((b) => ({ ...b, sign: b.coefficient >= 0 ? 'raises it' : 'lowers it' })) },
-    mark: { type: 'bar' },
-    encoding: {
-      y: { field: 'reaction', type: 'nominal', sort: null, title: null, axis: { labelLimit: 260 } },
-      x: { field: 'coefficient', type: 'quantitative', title: 'Correlation of log k with log X', scale: { domain: [-1, 1] } },
-      color: { field: 'sign', type: 'nominal', title: 'A larger k', scale: { domain: ['raises it', 'lowers it'], range: [CATEGORY_COLOURS[5], CATEGORY_COLOURS[4]] } },
-    },
+    layer: [
+      {
+        data: { values: bars.map((b) => ({ ...b, sign: b.coefficient >= 0 ? 'raises it' : 'lowers it' })) },
+        mark: { type: 'bar' },
+        encoding: {
+          y: { field: 'reaction', type: 'nominal', sort: null, title: null, axis: { labelLimit: 260 } },
+          x,
+          color: { field: 'sign', type: 'nominal', title: 'A larger k', scale: { domain: ['raises it', 'lowers it'], range: [CATEGORY_COLOURS[5], CATEGORY_COLOURS[4]] } },
+        },
+      },
+      {
+        data: { values: chance === undefined || chance === null ? [] : [{ coefficient: -chance }, { coefficient: chance }] },
+        mark: { type: 'rule', color: '#555555', strokeDash: [3, 3], strokeWidth: 0.8 },
+        encoding: { x },
+      },
+    ],
     config: figureConfig(),
   };
 }

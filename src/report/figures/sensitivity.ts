@@ -28,7 +28,7 @@ export const sensitivityFigure: FigureBuilder = {
         title: `What the fit of ${id} hangs on`,
         caption: `The ${s.top.length} reactions whose rate coefficient correlates most with the chi² of the best fit of ${id} (at ${numberText(s.ageYr)} yr) over ${s.realizations} Monte Carlo realizations of the rate coefficients (${method} coefficient${chance}); a positive coefficient means a larger rate coefficient worsens the fit. All coefficients, and those of every fitted quantity, are in fit/sensitivity.csv.`,
         sightline: id,
-        spec: sensitivityBarsSpec(s.top, `What the fit of ${id} hangs on`, `${method} coefficient of log k with χ² over ${s.realizations} realizations${chance}`),
+        spec: sensitivityBarsSpec(s.top, `What the fit of ${id} hangs on`, `${method} coefficient over ${s.realizations} realizations${chance ? ` (dashed: chance level ${s.chanceCoefficient!.toFixed(2)})` : ''}`, 'χ²', s.chanceCoefficient),
       });
     }
     return out;
