@@ -60,6 +60,7 @@ const REPORT_DIR = 'report';
 /** Outputs of the realizations at the best fits (src/pipeline/realizations.ts). */
 const SPREAD_JSON = 'fit/spread.json';
 const SENSITIVITY_CSV = 'fit/sensitivity.csv';
+const SENSITIVITY_TOP_CSV = 'fit/sensitivity_top10.csv';
 /** Progress lines of a grid that is not on a terminal: at most one per this many ms. */
 const GRID_PROGRESS_INTERVAL_MS = 5000;
 
@@ -355,18 +356,20 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     let spread: SpreadReport | undefined;
     const realizations = pipeline.config.realizations;
     if (realizations && out.result.fits.length > 0) {
-      const { spreadAtBestFits, modelSpreadOf, SENSITIVITY_CSV_HEADER } = await import('./realizations.ts');
+      const { spreadAtBestFits, modelSpreadOf, SENSITIVITY_CSV_HEADER, TOP_REACTIONS } = await import('./realizations.ts');
       const plan = await pipelineGridPlan(pipeline, async () => observations);
       const r = await spreadAtBestFits(pipeline, plan, out.result, realizations, { workers: ctx.workers, progress: ctx.progress });
       spread = r.report;
       writeOutput(outDir, SPREAD_JSON, `${JSON.stringify(spread, null, 1)}\n`);
       writeOutput(outDir, SENSITIVITY_CSV, toCsv(SENSITIVITY_CSV_HEADER, r.csvRows));
-      outputs.push(SPREAD_JSON, SENSITIVITY_CSV);
+      // The rank is the fourth column: the top ten of every quantity and of chi^2, per sightline.
+      writeOutput(outDir, SENSITIVITY_TOP_CSV, toCsv(SENSITIVITY_CSV_HEADER, r.csvRows.filter((row) => (row[3] as number) <= TOP_REACTIONS)));
+      outputs.push(SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV);
       // One pass: the spread at the floor fit's best fits widens each quantity, and the fit is made again with it.
       if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread) });
     } else {
       // A spread of an earlier run without realizations now would be read back as this run's.
-      for (const rel of [SPREAD_JSON, SENSITIVITY_CSV]) rmSync(join(outDir, rel), { force: true });
+      for (const rel of [SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV]) rmSync(join(outDir, rel), { force: true });
     }
     for (const [rel, text] of Object.entries(out.files)) {
       writeOutput(outDir, rel, text);

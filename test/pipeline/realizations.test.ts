@@ -60,6 +60,9 @@ describe('realizations at the best fits in a pipeline run', () => {
     const csv = readFileSync(join(out, 'fit/sensitivity.csv'), 'utf8').trim().split('\n');
     expect(csv[0]).toBe('sightline,quantity,age_yr,rank,reaction,equation,law,uncertainty_factor,coefficient');
     expect(csv.some((l) => l.split(',')[1] === 'chi2')).toBe(true);
+    const top = readFileSync(join(out, 'fit/sensitivity_top10.csv'), 'utf8').trim().split('\n').slice(1);
+    expect(top.length).toBeGreaterThan(0);
+    expect(top.every((l) => Number(l.split(',')[3]) <= 10)).toBe(true);
     const html = readFileSync(join(out, 'report/index.html'), 'utf8');
     expect(html).toMatch(/Monte Carlo realizations of the rate coefficients/);
     expect(html).toMatch(/What the fit of/);
