@@ -11,6 +11,7 @@
  * draw of reaction i in realization r depends on (seed, r, i) alone
  * (src/chem/uncertainty.ts), never on the worker or shard that runs it.
  */
+import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import type { PhysicalConditions } from '../config/conditions.ts';
 import { UserError } from '../config/errors.ts';
@@ -67,6 +68,23 @@ function checkSettings(s: RealizationSettings): void {
 /** The realizations' store of a plan's output: OUT/store/realizations.sqlite, or one per shard. */
 export function realizationStoreFile(plan: Pick<ModelBatchPlan, 'storeDir'>, shard?: Shard): string {
   return join(plan.storeDir, shard ? `realizations-shard-${shard.index}-of-${shard.count}.sqlite` : 'realizations.sqlite');
+}
+
+const SHARD_STORE_PATTERN = /^realizations-shard-(\d+)-of-(\d+)\.sqlite$/;
+
+/** The realizations' shard stores in the plan's store folder, ordered by shard count then index. */
+export function realizationShardStores(plan: Pick<ModelBatchPlan, 'storeDir'>): string[] {
+  let names: string[];
+  try {
+    names = readdirSync(plan.storeDir);
+  } catch {
+    return [];
+  }
+  return names
+    .map((n) => ({ n, m: SHARD_STORE_PATTERN.exec(n) }))
+    .filter((x): x is { n: string; m: RegExpExecArray } => x.m !== null)
+    .sort((a, b) => Number(a.m[2]) - Number(b.m[2]) || Number(a.m[1]) - Number(b.m[1]))
+    .map((x) => join(plan.storeDir, x.n));
 }
 
 /** Run (or resume) the realizations on the worker pool; a shard runs its share into its own store. */

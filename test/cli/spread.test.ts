@@ -33,6 +33,24 @@ describe('hoarfrost spread', () => {
     expect(again.stdout).toMatch(/0 computed now, 6 from the store/);
   });
 
+  it('in two shards merged gives the same spread, bit for bit, as on one worker', () => {
+    const whole = scratch('hoarfrost-spread-');
+    const sharded = scratch('hoarfrost-spread-');
+    const args = (dir: string) => ['spread', writePipeline(dir, 'conditions: { density: 3.0e4 }\n'), '--realizations', '4', '--seed', '9', '--workers', '1', '--out', join(dir, 'spread')];
+    expect(runCli(args(whole)).code).toBe(0);
+    for (const k of ['1/2', '2/2']) {
+      const r = runCli([...args(sharded), '--shard', k]);
+      expect(r.code, r.stderr).toBe(0);
+      expect(r.stdout).toMatch(new RegExp(`shard ${k}: 2 realizations \\(2 computed`));
+    }
+    const merged = runCli([...args(sharded), '--merge-shards']);
+    expect(merged.code, merged.stderr).toBe(0);
+    expect(merged.stderr).toMatch(/merged 2 shard stores: 4 realizations copied/);
+    expect(merged.stdout).toMatch(/0 computed now, 4 from the store/);
+    expect(readFileSync(join(sharded, 'spread/spread.csv'), 'utf8')).toBe(readFileSync(join(whole, 'spread/spread.csv'), 'utf8'));
+    expect(readFileSync(join(sharded, 'spread/sensitivity.csv'), 'utf8')).toBe(readFileSync(join(whole, 'spread/sensitivity.csv'), 'utf8'));
+  });
+
   it('refuses a bad number of realizations and an unknown method, with no stack', () => {
     const dir = scratch('hoarfrost-spread-');
     const pipeline = writePipeline(dir, '');

@@ -1,7 +1,7 @@
 /**
  * `hoarfrost spread PIPELINE.yaml [--set key=value ...] [--realizations N]
  * [--seed S] [--workers N] [--species LIST] [--at-yr T] [--method pearson|spearman]
- * [--out DIR]`: error bars on the abundances of one model from its rate
+ * [--out DIR] [--shard K/N | --merge-shards]`: error bars on the abundances of one model from its rate
  * coefficients' uncertainties, with no fit (docs/uncertainty.md). Runs N
  * Monte Carlo realizations of the model on the worker pool (stored and
  * resumable in OUT/store/realizations.sqlite), then writes the spread of
@@ -33,6 +33,8 @@ interface SpreadOptions {
   atYr?: number;
   method: 'pearson' | 'spearman';
   out?: string;
+  shard?: string;
+  mergeShards?: boolean;
 }
 
 function wholeNumber(option: string, min: number) {
@@ -69,6 +71,8 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--at-yr <t>', 'time of the sensitivity table, yr (the nearest output time; default the last)', positiveNumber('--at-yr'))
     .option('--method <name>', 'correlation coefficient: pearson (Wakelam et al. 2010) or spearman (ranks)', method, 'pearson')
     .option('--out <dir>', 'output folder (default: <output of the pipeline>/spread)')
+    .option('--shard <K/N>', 'run only shard K of N of the realizations into its own store and stop (a batch system runs one per array task); then run again with --merge-shards')
+    .option('--merge-shards', "merge the shards' stores of these realizations first, then write the spread from the merged store")
     .action(async (file: string, opts: SpreadOptions) => {
       await runSpreadCommand(file, opts, ctx);
     });
@@ -98,6 +102,23 @@ async function runSpreadCommand(file: string, opts: SpreadOptions, ctx: CommandC
   const settings = { count: opts.realizations, seed: opts.seed };
 
   const started = performance.now();
+  if (opts.shard !== undefined && opts.mergeShards) throw new UserError('give --shard (run one shard) or --merge-shards (combine them), not both.', { field: '--shard' });
+  if (opts.shard !== undefined) {
+    const { parseShard, shardLabel } = await import('../../grid/shard.ts');
+    const shard = parseShard(opts.shard);
+    const r = await runRealizations(pipeline, plan, [base], settings, { workers: opts.workers, shard });
+    ctx.stdout.write(`shard ${shardLabel(shard)}: ${r.share} realizations (${r.computed} computed, ${r.upToDate} already there${r.failed ? `, ${r.failed} failed` : ''}) in ${r.storeFile}\n`);
+    ctx.setExitCode(r.failed > 0 || r.remaining > 0 ? 1 : 0);
+    return;
+  }
+  if (opts.mergeShards) {
+    const { mergeShards } = await import('../../grid/merge.ts');
+    const { planRealizations, realizationShardStores } = await import('../../grid/realizations.ts');
+    const shardFiles = realizationShardStores(plan);
+    if (shardFiles.length === 0) throw new UserError(`no shard stores of realizations (realizations-shard-K-of-N.sqlite) in ${plan.storeDir}; run 'hoarfrost spread PIPELINE --shard K/N' for each shard first (with the same --set, --realizations and --seed).`);
+    const m = mergeShards(planRealizations(plan, [base], settings), shardFiles, realizationStoreFile(plan));
+    ctx.stderr.write(`merged ${m.shardFiles.length} shard stores: ${m.copied} realizations copied, ${m.alreadyPresent} already there, ${m.missing} missing\n`);
+  }
   const run = await runRealizations(pipeline, plan, [base], settings, {
     workers: opts.workers,
     onStart: (i) => ctx.stderr.write(`realizations: ${i.todo} to run on ${i.workers} worker${i.workers > 1 ? 's' : ''}, ${i.upToDate} already in ${i.storeFile}\n`),
