@@ -354,6 +354,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     let out = runFitStage(fitInput);
     const outputs: string[] = [];
     let spread: SpreadReport | undefined;
+    const stageNotes: string[] = [];
     const realizations = pipeline.config.realizations;
     if (realizations && out.result.fits.length > 0) {
       const { spreadAtBestFits, modelSpreadOf, SENSITIVITY_CSV_HEADER, TOP_REACTIONS } = await import('./realizations.ts');
@@ -368,6 +369,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       // One pass: the spread at the floor fit's best fits widens each quantity, and the fit is made again with it.
       if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread) });
     } else {
+      if (realizations) stageNotes.push('realizations: not run: they run at the best fits of sightlines, and this fit has none (a map is fitted pixel by pixel; see docs/uncertainty.md section 8).');
       // A spread of an earlier run without realizations now would be read back as this run's.
       for (const rel of [SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV]) rmSync(join(outDir, rel), { force: true });
     }
@@ -376,7 +378,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       outputs.push(rel);
     }
     const map = out.map ? mapJson(out.map) : undefined;
-    const warnings = [...out.result.warnings];
+    const warnings = [...out.result.warnings, ...stageNotes];
     if (map) {
       const { writeMapImages } = await import('../report/maps.ts');
       const files = writeMapImages(map, observations.map, warnings, MAP_IMAGE_NAMES, (name) => join(outDir, `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`));
