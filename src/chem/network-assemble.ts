@@ -48,6 +48,8 @@ export interface RawReaction {
   params: Record<string, number>;
   temperature?: readonly [number, number];
   origin?: string;
+  /** Uncertainty factor F as given (checked here: finite, at least 1). */
+  uncertaintyFactor?: number;
   source: SourceLocation;
   locate: Locate;
 }
@@ -202,6 +204,10 @@ function assembleReaction(entry: RawReaction, raw: RawNetwork, index: number, pr
       }
     }
   }
+  const f = entry.uncertaintyFactor;
+  if (f !== undefined && !(Number.isFinite(f) && f >= 1)) {
+    fail(`the uncertainty factor must be a number of at least 1 (F = 1: the coefficient is exact; 1.25 a well-measured ion-molecule reaction, 2-10 estimated ones, docs/physics.md section 13); found ${f}.`, 'uncertainty_factor');
+  }
   if (problems.length > before || !params) return undefined;
   return {
     index,
@@ -212,6 +218,7 @@ function assembleReaction(entry: RawReaction, raw: RawNetwork, index: number, pr
     tmin,
     tmax,
     origin: entry.origin ?? raw.origin ?? '',
+    ...(f !== undefined ? { uncertaintyFactor: f } : {}),
     source: entry.source,
   };
 }

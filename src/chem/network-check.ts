@@ -13,6 +13,7 @@ import { RATE_LAW_NAMES, RATE_LAWS, type RateLawName } from './laws.ts';
 import { rateBoundProblem } from './rate-bounds.ts';
 import type { Network, Reaction, SourceLocation } from './network-types.ts';
 import { iceName, parseSpecies, type Species } from './species.ts';
+import { DEFAULT_UNCERTAINTY_FACTORS, reactionsAtDefaultFactor } from './uncertainty.ts';
 
 export type Severity = 'error' | 'warning';
 
@@ -57,6 +58,13 @@ export interface DerivedReport {
   notes: string[];
 }
 
+/** Which reactions give their own uncertainty factor F, and which are left at their law's default. */
+export interface UncertaintyReport {
+  given: number;
+  /** Reactions left at a default, by law, with the default and its origin. */
+  atDefault: { law: RateLawName; count: number; factor: number; origin: string; reactions: number[] }[];
+}
+
 export interface NetworkReport {
   name: string;
   file: string;
@@ -65,6 +73,7 @@ export interface NetworkReport {
   errors: number;
   warnings: number;
   problems: NetworkProblem[];
+  uncertainty: UncertaintyReport;
   derived?: DerivedReport;
 }
 
@@ -114,7 +123,17 @@ export function checkNetwork(network: Network, derive?: { options: string[]; rea
     errors: problems.filter((p) => p.severity === 'error').length,
     warnings: problems.filter((p) => p.severity === 'warning').length,
     problems,
+    uncertainty: uncertaintyReport(network),
     ...(derive ? { derived: derivedReport(derive) } : {}),
+  };
+}
+
+function uncertaintyReport(network: Network): UncertaintyReport {
+  const byLaw = new Map<RateLawName, number[]>();
+  for (const r of reactionsAtDefaultFactor(network)) byLaw.set(r.law, [...(byLaw.get(r.law) ?? []), r.index]);
+  return {
+    given: network.reactions.filter((r) => r.uncertaintyFactor !== undefined).length,
+    atDefault: [...byLaw].map(([law, reactions]) => ({ law, count: reactions.length, ...DEFAULT_UNCERTAINTY_FACTORS[law], reactions })),
   };
 }
 
@@ -316,6 +335,10 @@ export function formatReport(report: NetworkReport): string {
     for (const [mechanism, n] of Object.entries(d.byMechanism)) lines.push(`  ${mechanism.padEnd(width)}  ${pad(String(n), 6)}`);
     for (const note of d.notes) lines.push(`  note: ${note}`);
   }
+  const u = report.uncertainty;
+  const defaulted = u.atDefault.reduce((n, d) => n + d.count, 0);
+  lines.push(`uncertainty factors: ${u.given} given, ${defaulted} left at their law's default (docs/uncertainty.md)`);
+  for (const d of u.atDefault) lines.push(`  ${d.law.padEnd(width)}  ${pad(String(d.count), 6)}  F = ${d.factor} (${d.origin})`);
   lines.push('');
   for (const severity of ['error', 'warning'] as const) {
     const list = report.problems.filter((p) => p.severity === severity);

@@ -16,6 +16,9 @@
  *     parameters: {alpha: a, beta: b, gamma: c}
  *     temperature: [tmin, tmax]  (optional; both cells empty = the default range)
  *     origin: ref                (optional)
+ *     uncertainty_factor: F      (optional: the factor F of each coefficient, log-normal at
+ *                                 one standard deviation; an empty cell leaves the law's
+ *                                 default of src/chem/uncertainty.ts)
  *   law_codes: {"1": cosmic-ray} (optional: the law column holds codes of the user's own)
  *   law_parameters:              (optional: another column for a parameter of one law)
  *     cosmic-ray-uv: {alpha: c}
@@ -68,6 +71,7 @@ const mappingSchema = z.strictObject({
     parameters: z.record(z.string(), column).optional(),
     temperature: z.tuple([column, column]).optional(),
     origin: column.optional(),
+    uncertainty_factor: column.optional(),
   }),
   law: z.string().optional(),
   law_codes: z.record(z.string(), z.string()).optional(),
@@ -158,6 +162,7 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
   const lawCol = m.columns.law === undefined ? undefined : resolveColumn(m.columns.law, ['columns', 'law']);
   const tempCols = m.columns.temperature?.map((c, i) => resolveColumn(c, ['columns', 'temperature', i]));
   const originCol = m.columns.origin === undefined ? undefined : resolveColumn(m.columns.origin, ['columns', 'origin']);
+  const factorCol = m.columns.uncertainty_factor === undefined ? undefined : resolveColumn(m.columns.uncertainty_factor, ['columns', 'uncertainty_factor']);
   const baseParams = resolveParams(m.columns.parameters ?? {}, ['columns', 'parameters'], resolveColumn);
   const lawParams = new Map<string, Map<string, number>>();
   for (const [law, params] of Object.entries(m.law_parameters ?? {})) lawParams.set(law, resolveParams(params, ['law_parameters', law], resolveColumn));
@@ -239,6 +244,12 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
         } else if (isRateLawName(law) && GAS_TEMPERATURE_LAWS.has(law)) temperature = [a, b];
       }
     }
+    let uncertaintyFactor: number | undefined;
+    if (factorCol !== undefined && cell(factorCol) !== '') {
+      uncertaintyFactor = parseNumber(cell(factorCol));
+      if (uncertaintyFactor === undefined) problems.push(new UserError(`expected a number for the uncertainty factor F (at least 1); found '${cell(factorCol)}'.`, locate(colName(factorCol))));
+      else fieldColumns.set('uncertainty_factor', colName(factorCol));
+    }
     if (problems.length > rowProblems) continue;
     if (lawCol !== undefined) fieldColumns.set('law', colName(lawCol));
     if (tempCols?.[0] !== undefined) fieldColumns.set('temperature', colName(tempCols[0]));
@@ -250,6 +261,7 @@ function readTable(loaded: LoadedYaml, mappingBytes: Buffer, givenTable: string 
       params,
       temperature,
       origin: origin === '' ? undefined : origin,
+      uncertaintyFactor,
       source: { file: tableFile, line, row },
       locate: (field?: string) => locate(field === undefined ? undefined : (fieldColumns.get(field) ?? field)),
     });

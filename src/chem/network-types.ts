@@ -41,6 +41,12 @@ export interface Reaction {
   tmin: number;
   tmax: number;
   origin: string;
+  /**
+   * Uncertainty factor F of the coefficient as the network gives it
+   * (log-normal, one standard deviation: docs/physics.md section 13);
+   * undefined leaves the law's default (src/chem/uncertainty.ts).
+   */
+  uncertaintyFactor?: number;
   source: SourceLocation;
   /** Set on reactions the model derived rather than read from the file. */
   derived?: DerivedFrom;

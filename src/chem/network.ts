@@ -53,6 +53,7 @@ const reactionSchema = z.strictObject({
   law: z.string(),
   temperature: z.tuple([z.number(), z.number()]).optional(),
   origin: z.string().optional(),
+  uncertainty_factor: z.number().optional(),
   ...Object.fromEntries(PARAM_NAMES.map((name) => [name, z.number().optional()])),
 });
 
@@ -138,6 +139,7 @@ function readYamlNetwork(loaded: LoadedYaml, contentHash: string): Network {
       params,
       temperature: r.temperature,
       origin: r.origin,
+      uncertaintyFactor: r.uncertainty_factor,
       source: { file, line: loaded.lineOf(base) },
       locate: locateAt(base),
     });

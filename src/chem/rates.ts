@@ -76,6 +76,13 @@ export interface RateSet {
 export interface RateOptions {
   /** Shield the external-UV photodissociation of H2 by its own column (default true; Draine & Bertoldi 1996). */
   selfShielding?: boolean;
+  /**
+   * One Monte Carlo realization of the coefficients (src/chem/uncertainty.ts):
+   * k of network reaction i is multiplied by multipliers[i]. Ice photolysis
+   * takes its gas-phase parent's multiplier; the non-diffusive reactions take
+   * their parent's multiplied coefficient; other derived reactions keep k.
+   */
+  multipliers?: Float64Array;
 }
 
 /** Gas species that do not stay on a grain: helium binds at about 100 K (docs/physics.md section 3). */
@@ -93,6 +100,13 @@ const TUNNELLING_SPECIES = new Set(['H', 'H2']);
 
 function where(r: Reaction): { file: string; line?: number; row?: number } {
   return { file: r.source.file, line: r.source.line, row: r.source.row };
+}
+
+/** The multiplier of a reaction in a realization: its own by index, its parent's for ice photolysis, 1 for what derives its rate otherwise. */
+function drawnMultiplier(r: Reaction, multipliers: Float64Array): number {
+  const owner = r.derived ? (r.derived.mechanism === 'ice-photolysis' ? r.derived.parents[0] : undefined) : r;
+  if (!owner || owner.derived || owner.index >= multipliers.length) return 1;
+  return multipliers[owner.index];
 }
 
 /** Modified Arrhenius (Kooij) k = alpha (T/300)^beta exp(-gamma/T); computeRates passes T already clamped to the reaction's [tmin, tmax] (common practice). */
@@ -349,7 +363,10 @@ export function computeRates(network: Network, c: PhysicalConditions, grain: Gra
         throw new Error(`no rate for law ${String(never)}`);
       }
     }
-    if (rates.length > before) coefficient.set(r, rates[before].k);
+    if (rates.length > before) {
+      if (options.multipliers) rates[before].k *= drawnMultiplier(r, options.multipliers);
+      coefficient.set(r, rates[before].k);
+    }
   }
   clampNotes.push(...h2RangeNotes(grain, c.dust_temperature));
   // A coefficient that overflows at these conditions would stop the solver at t = 0 without a name.

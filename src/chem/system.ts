@@ -74,6 +74,8 @@ export interface CompileOptions {
   massActionOnly?: boolean;
   /** H2 self-shielding (default true; Draine & Bertoldi 1996). */
   selfShielding?: boolean;
+  /** Multipliers of one Monte Carlo realization of the coefficients, by network reaction index (src/chem/uncertainty.ts). */
+  rateMultipliers?: Float64Array;
 }
 
 export interface CompiledSystem {
@@ -281,7 +283,7 @@ class H2SelfShielding extends OneSpeciesTerm {
 export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions, grain: GrainOptions, options: CompileOptions = {}): CompiledSystem {
   // With the mantle on, every ice species has its mantle twin (appended when the file lists none).
   const network = modelNetwork(twoPhaseNetwork, grain);
-  const rateSet = computeRates(network, conditions, grain, { selfShielding: options.selfShielding });
+  const rateSet = computeRates(network, conditions, grain, { selfShielding: options.selfShielding, multipliers: options.rateMultipliers });
   const n = network.species.length;
   const species = network.species.map((s) => s.name);
   const index = (name: string): number => {

@@ -16,6 +16,7 @@ import { observationsSection } from './sections/observations.ts';
 import { conditionsSection, excludeSection } from './sections/conditions.ts';
 import { fitSection } from './sections/fit.ts';
 import { reportSection } from './sections/report.ts';
+import { realizationsSection } from './sections/realizations.ts';
 
 export const timesSection = z
   .object({
@@ -85,6 +86,8 @@ export const pipelineSchema = z
     times: timesSection.prefault({}),
     solver: solverSection.prefault({}),
     fit: fitSection.optional(),
+    /** Monte Carlo realizations of the rate coefficients at the best fits (docs/uncertainty.md). */
+    realizations: realizationsSection.optional(),
     report: reportSection.optional(),
   })
   .strict();

@@ -25,3 +25,25 @@ export function logNormalCdf(z: number): number {
   // erfc(x) = 2 - erfc(-x) for x < 0; erfc(-x) <= 1 here so the subtraction keeps its precision.
   return Math.log1p(-0.5 * Math.exp(logErfcNonNegative(-x)));
 }
+
+/**
+ * The lower-tail quantile of the standard normal, z with Phi(z) = q, for
+ * 0 < q <= 0.5: Newton's method on ln Phi(z) = ln q (so it keeps its
+ * precision far into the tail), from the tail estimate
+ * z = -sqrt(-2 ln q) (common practice). Accurate to the 1.2e-7 of
+ * logNormalCdf.
+ */
+export function lowerNormalQuantile(q: number): number {
+  if (!(q > 0 && q <= 0.5)) throw new Error(`lowerNormalQuantile takes 0 < q <= 0.5, got ${q}`);
+  const target = Math.log(q);
+  let z = q > 0.3 ? 0 : -Math.sqrt(-2 * target);
+  for (let i = 0; i < 50; i++) {
+    const logPhi = logNormalCdf(z);
+    // d ln Phi / dz = phi(z) / Phi(z)
+    const slope = Math.exp(-0.5 * z * z - 0.5 * Math.log(2 * Math.PI) - logPhi);
+    const step = (logPhi - target) / slope;
+    z -= step;
+    if (Math.abs(step) < 1e-12) break;
+  }
+  return z;
+}

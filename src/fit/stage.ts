@@ -16,8 +16,9 @@ import { fitSightline } from './fit-sightline.ts';
 import { holdParameters } from './held.ts';
 import { fitJoint } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
-import { buildModelQuantities, collectTerms, termKey, type ModelQuantities } from './model-quantities.ts';
+import { buildModelQuantities, collectTerms, termKey, type ModelQuantities, type QuantityTerm } from './model-quantities.ts';
 import { interpolationError, refinableAxes, refinedSize, refineTable } from './refine.ts';
+import { modelSigmaDex, type ModelUncertaintyMode } from './model-spread.ts';
 import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
 import { PAIR_PARAMETERS, regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
@@ -52,6 +53,13 @@ export interface FitStageInput {
   quantities: readonly ObservedQuantity[];
   /** Per sightline id: grid parameters held at one value (model A_V tied to the sightline's A_V). */
   held?: Readonly<Record<string, Readonly<Record<string, number>>>>;
+  /**
+   * Per sightline id: the spread (dex) of each quantity term's log10 over the
+   * Monte Carlo realizations of the rate coefficients, by term key
+   * (src/fit/model-spread.ts). Used as fit.model_uncertainty says; a term
+   * without a spread keeps its floor.
+   */
+  modelSpread?: ReadonlyMap<string, ReadonlyMap<string, number>>;
   source?: FitSource;
   /**
    * A model covariance between quantity terms (dex^2; covariance.ts), e.g.
@@ -161,6 +169,17 @@ function termFloors(section: FitSection, quantities: readonly ObservedQuantity[]
     }
   }
   return floors;
+}
+
+/** The scoring widths of one sightline with its realizations' spread folded in as fit.model_uncertainty says. */
+function withModelSpread(options: FitOptions, terms: readonly QuantityTerm[], mode: ModelUncertaintyMode, spread: ReadonlyMap<string, number> | undefined): FitOptions {
+  if (mode === 'floor' || spread === undefined) return options;
+  const perTerm = new Map(options.termModelSigmaDex ?? []);
+  for (const t of terms) {
+    const s = spread.get(t.key);
+    if (s !== undefined) perTerm.set(t.key, modelSigmaDex(mode, options.termModelSigmaDex?.get(t.key) ?? options.modelSigmaDex, s));
+  }
+  return { ...options, termModelSigmaDex: perTerm };
 }
 
 export function fitOptions(section: FitSection): FitOptions {
@@ -303,7 +322,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     throw located(source, ['fit', 'joint'], 'joint groups combine sightlines of a table; this observation set is a map. Remove fit.joint, or fit a table of the positions to group.');
   }
   for (const s of isMap ? [] : observations.sightlines) {
-    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, options);
+    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, withModelSpread(options, terms, section.model_uncertainty, input.modelSpread?.get(s.id)));
     if (usedCount(v) === 0) {
       unfitted.push(s.id);
       continue;

@@ -7,7 +7,7 @@
 import { mkdirSync, readdirSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { throwProblems, UserError } from '../config/errors.ts';
-import { mainStoreFile, type GridPlan } from './plan.ts';
+import { mainStoreFile, type ModelBatchPlan } from './plan.ts';
 import { acquireRunLock } from './run-lock.ts';
 import { ModelStore } from './store.ts';
 
@@ -49,8 +49,8 @@ export function findShardStores(storeDir: string): string[] {
     .map((x) => join(storeDir, x.n));
 }
 
-export function mergeShards(plan: GridPlan, shardFiles: string[] = findShardStores(plan.storeDir)): MergeReport {
-  const storeFile = mainStoreFile(plan);
+/** Merge shard stores into the plan's store (the grid's own, or `storeFile`: the realizations keep theirs). */
+export function mergeShards(plan: ModelBatchPlan, shardFiles: string[] = findShardStores(plan.storeDir), storeFile: string = mainStoreFile(plan)): MergeReport {
   if (shardFiles.length === 0) {
     throw new UserError(`no shard stores (shard-K-of-N.sqlite) to merge in ${plan.storeDir}. Run \`hoarfrost grid PIPELINE --shard K/N\` (or the Slurm script) first.`);
   }

@@ -6,6 +6,7 @@
 import { join } from 'node:path';
 import { outputSpeciesNames } from '../chem/mantle.ts';
 import type { Network } from '../chem/network-types.ts';
+import type { RateDraw } from '../chem/uncertainty.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { buildModelSetup, type ModelSetup } from '../model/setup.ts';
@@ -16,6 +17,8 @@ import type { WorkerInit } from './worker-protocol.ts';
 
 export interface PlannedPoint extends GridPoint {
   hash: string;
+  /** A Monte Carlo realization of the rate coefficients (src/grid/realizations.ts). */
+  rateDraw?: RateDraw;
 }
 
 export interface GridPlan {
@@ -29,6 +32,22 @@ export interface GridPlan {
   shared: SharedModelInputs;
   workerInit: WorkerInit;
   storeDir: string;
+}
+
+/** What running and merging a batch of models needs of a plan: the grid's, or the realizations' (src/grid/realizations.ts). */
+export type ModelBatchPlan = Pick<GridPlan, 'points' | 'gridHash' | 'species' | 'shared' | 'workerInit' | 'storeDir'>;
+
+/** The batch plan of a model setup with no points yet: what the grid's plan holds besides its grid. */
+export function setupBatchPlan(pipeline: Pipeline, setup: ModelSetup): ModelBatchPlan {
+  const { network, options } = setup;
+  return {
+    points: [],
+    gridHash: gridHash([]),
+    species: outputSpeciesNames(network, options.grain),
+    shared: { networkHash: network.contentHash, options, toolVersion: TOOL_VERSION },
+    workerInit: { networkFile: setup.networkFile, networkHash: network.contentHash, options },
+    storeDir: join(pipeline.resolvePath(pipeline.config.output), 'store'),
+  };
 }
 
 export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): GridPlan {

@@ -16,6 +16,7 @@ import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { PhysicalConditions } from '../config/conditions.ts';
+import type { RateDraw } from '../chem/uncertainty.ts';
 import { UserError } from '../config/errors.ts';
 import type { ModelResult } from '../model/types.ts';
 import type { FromWorker, ToWorker, WorkerInit } from './worker-protocol.ts';
@@ -50,6 +51,8 @@ export function defaultWorkerCount(): number {
 export interface PoolTask {
   id: string;
   conditions: PhysicalConditions;
+  /** A Monte Carlo realization of the rate coefficients (src/grid/realizations.ts); absent for a grid model. */
+  rateDraw?: RateDraw;
 }
 
 export type PoolOutcome =
@@ -202,7 +205,7 @@ export class ModelPool {
     }
     const task = this.queue[this.next++];
     slot.task = task;
-    slot.worker.postMessage({ type: 'run', id: task.id, conditions: task.conditions } satisfies ToWorker);
+    slot.worker.postMessage({ type: 'run', id: task.id, conditions: task.conditions, rateDraw: task.rateDraw } satisfies ToWorker);
   }
 
   private checkFinished(): void {

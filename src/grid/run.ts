@@ -12,7 +12,7 @@ import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
 import { writeRefusal } from '../config/write.ts';
 import type { ModelResult } from '../model/types.ts';
-import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type GridPlan, type PlannedPoint } from './plan.ts';
+import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type ModelBatchPlan, type PlannedPoint } from './plan.ts';
 import { defaultWorkerCount, ModelPool, type PoolOutcome } from './pool.ts';
 import { shardLabel, type Shard } from './shard.ts';
 import { ModelStore, type StoredModel } from './store.ts';
@@ -56,7 +56,9 @@ export interface RunGridOptions {
   /** The model worker module (tests give one with a fake model). */
   workerUrl?: URL;
   /** A precomputed plan (the CLI shares one between commands). */
-  plan?: GridPlan;
+  plan?: ModelBatchPlan;
+  /** The store to write instead of the grid's own (the Monte Carlo realizations keep theirs, src/grid/realizations.ts). */
+  storeFile?: string;
 }
 
 export interface GridRunResult {
@@ -85,7 +87,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
   const started = performance.now();
   const plan = options.plan ?? planGrid(pipeline, options.sightlineAv);
   const share = shardPoints(plan.points, options.shard);
-  const storeFile = options.shard ? shardStoreFile(plan, options.shard) : mainStoreFile(plan);
+  const storeFile = options.storeFile ?? (options.shard ? shardStoreFile(plan, options.shard) : mainStoreFile(plan));
   const release = options.shard ? () => undefined : (mkdirSync(dirname(storeFile), { recursive: true }), acquireRunLock(storeFile));
   let store: ModelStore;
   try {
@@ -164,7 +166,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       if (options.drainSignal?.aborted) pool.drain();
       if (options.abortSignal?.aborted) pool.abort();
       outcome = await pool.run(
-        todo.map((p) => ({ id: p.id, conditions: p.conditions })),
+        todo.map((p) => ({ id: p.id, conditions: p.conditions, ...(p.rateDraw ? { rateDraw: p.rateDraw } : {}) })),
         (o) => {
           const point = byId.get(o.task.id)!;
           const stored = toStored(point, o, plan.species, expectedLength);

@@ -6,6 +6,7 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import type { PhysicalConditions } from '../config/conditions.ts';
+import type { RateDraw } from '../chem/uncertainty.ts';
 import type { ModelOptions, ModelResult } from '../model/types.ts';
 
 /** The model setup as it crosses to a worker: the network by file (loaded again there) and the options as they are. */
@@ -16,7 +17,7 @@ export interface WorkerInit {
   options: ModelOptions;
 }
 
-export type ToWorker = { type: 'run'; id: string; conditions: PhysicalConditions };
+export type ToWorker = { type: 'run'; id: string; conditions: PhysicalConditions; rateDraw?: RateDraw };
 
 export type FromWorker =
   | { type: 'ready'; species: string[] }
@@ -26,7 +27,8 @@ export type FromWorker =
 
 export interface ModelRunner {
   species: string[];
-  run(conditions: PhysicalConditions): ModelResult;
+  /** One model; with a draw, one Monte Carlo realization of its rate coefficients. */
+  run(conditions: PhysicalConditions, rateDraw?: RateDraw): ModelResult;
 }
 
 /** Build the runner from the shared inputs; may throw (a bad network), which ends the grid. */
@@ -53,7 +55,7 @@ export function serveModelTasks(factory: ModelRunnerFactory): void {
     if (msg.type !== 'run') return;
     let result: ModelResult;
     try {
-      result = runner.run(msg.conditions);
+      result = runner.run(msg.conditions, msg.rateDraw);
     } catch (e) {
       const err = e as Error;
       port.postMessage({ type: 'threw', id: msg.id, message: err?.message ?? String(e), userError: isUserErrorName(err) } satisfies FromWorker);

@@ -12,6 +12,6 @@ serveModelTasks((init) => {
   }
   return {
     species: outputSpeciesNames(network, init.options.grain),
-    run: (conditions) => runModel(modelInput({ network, options: init.options }, conditions)),
+    run: (conditions, rateDraw) => runModel(modelInput({ network, options: rateDraw ? { ...init.options, rateDraw } : init.options }, conditions)),
   };
 });

@@ -7,6 +7,7 @@
 import { fillOutputs, modelNetwork, outputColumns } from '../chem/mantle.ts';
 import { reactionLabel } from '../chem/reaction-text.ts';
 import { compile, type CompiledSystem } from '../chem/system.ts';
+import { drawRateFactors } from '../chem/uncertainty.ts';
 import { evaporatedHydrogenShare, hydrogenGrainTerms, PHYSISORBED_H2_MAX_EVAPORATED_SHARE } from '../chem/grain-h2.ts';
 import { UserError } from '../config/errors.ts';
 import { integrate } from '../solve/index.ts';
@@ -73,7 +74,8 @@ export function runModel(input: ModelInput): ModelResult {
   const started = performance.now();
   checkTimes(input.timesYr);
   const network = modelNetwork(input.network, input.grain);
-  const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding });
+  const rateMultipliers = input.rateDraw ? drawRateFactors(input.network, input.rateDraw).multipliers : undefined;
+  const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding, rateMultipliers });
   const y0 = initialState({ network, initial: input.initial });
   // With the mantle on, the outputs add the whole ice X(s) = X(surface) + X(mantle) (src/chem/mantle.ts).
   const columns = outputColumns(network.species, input.grain);

@@ -1,6 +1,7 @@
 /** One model run: conditions in, abundance time series out. */
 import type { GrainOptions, PhotochemistryOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network } from '../chem/network-types.ts';
+import type { RateDraw } from '../chem/uncertainty.ts';
 import type { SolverStats } from '../solve/index.ts';
 
 export interface SolverSettings {
@@ -30,6 +31,12 @@ export interface ModelOptions {
    * self-shielded H2 photodissociation and the parametric H2 formation rate.
    */
   massActionOnly: boolean;
+  /**
+   * One Monte Carlo realization of the rate coefficients (docs/uncertainty.md):
+   * every reaction's k drawn once from its log-normal factor. Absent: the
+   * nominal coefficients (and the model hash of before).
+   */
+  rateDraw?: RateDraw;
 }
 
 /** One model's input: a setup's network and options with one point's conditions (the switches default to off / shielded). */

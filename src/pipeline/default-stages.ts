@@ -6,7 +6,7 @@
  * skipped, and writes its results under the output folder so a later run can
  * reload them instead of recomputing.
  */
-import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { writeOutput as writeOutputFile } from '../config/write.ts';
 import { basename, dirname, extname, join, relative, sep } from 'node:path';
 import { isTableFile } from '../chem/network-table.ts';
@@ -23,6 +23,7 @@ import type { ReportProvenance } from '../report/types.ts';
 import { hashFile } from './hash.ts';
 import { heldParameters } from './held.ts';
 import type { StageContext, StageImpl, StageSet } from './stages.ts';
+import type { SpreadReport } from './realizations.ts';
 import { loadTracks } from './tracks.ts';
 
 export interface ObserveData {
@@ -38,6 +39,8 @@ export interface FitData {
   result: FitStageResult;
   profiles?: ProfilesJson;
   map?: MapFitJson;
+  /** Monte Carlo realizations at the best fits (the pipeline's `realizations:` section). */
+  spread?: SpreadReport;
 }
 export interface ReportData {
   html: string;
@@ -54,6 +57,10 @@ const QUANTITIES_CSV = 'observations/quantities.csv';
 /** The grid's store of a whole grid (src/grid/plan.ts names it). */
 const STORE_DIR = 'store';
 const REPORT_DIR = 'report';
+/** Outputs of the realizations at the best fits (src/pipeline/realizations.ts). */
+const SPREAD_JSON = 'fit/spread.json';
+const SENSITIVITY_CSV = 'fit/sensitivity.csv';
+const SENSITIVITY_TOP_CSV = 'fit/sensitivity_top10.csv';
 /** Progress lines of a grid that is not on a terminal: at most one per this many ms. */
 const GRID_PROGRESS_INTERVAL_MS = 5000;
 
@@ -318,7 +325,7 @@ function needsSightlineTie(pipeline: Pipeline): boolean {
 
 const fit: StageImpl<PipelineData, 'fit'> = {
   inputs: ({ pipeline }) => ({
-    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction },
+    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction, realizations: pipeline.config.realizations },
     files: {},
     after: ['observe', 'grid'],
   }),
@@ -336,21 +343,42 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       if (q.denominator) species.add(q.denominator);
     }
     const table = loadCandidates(storeFile, [...species].sort());
-    const out = runFitStage({
+    const fitInput = {
       table,
       section: fitSection(pipeline),
       observations,
       quantities,
       held: heldParameters(pipeline, observations),
       source: { file: pipeline.file, lineOf: pipeline.yaml.lineOf },
-    });
+    };
+    let out = runFitStage(fitInput);
     const outputs: string[] = [];
+    let spread: SpreadReport | undefined;
+    const stageNotes: string[] = [];
+    const realizations = pipeline.config.realizations;
+    if (realizations && out.result.fits.length > 0) {
+      const { spreadAtBestFits, modelSpreadOf, SENSITIVITY_CSV_HEADER, TOP_REACTIONS } = await import('./realizations.ts');
+      const plan = await pipelineGridPlan(pipeline, async () => observations);
+      const r = await spreadAtBestFits(pipeline, plan, out.result, realizations, { workers: ctx.workers, progress: ctx.progress });
+      spread = r.report;
+      writeOutput(outDir, SPREAD_JSON, `${JSON.stringify(spread, null, 1)}\n`);
+      writeOutput(outDir, SENSITIVITY_CSV, toCsv(SENSITIVITY_CSV_HEADER, r.csvRows));
+      // The rank is the fourth column: the top ten of every quantity and of chi^2, per sightline.
+      writeOutput(outDir, SENSITIVITY_TOP_CSV, toCsv(SENSITIVITY_CSV_HEADER, r.csvRows.filter((row) => (row[3] as number) <= TOP_REACTIONS)));
+      outputs.push(SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV);
+      // One pass: the spread at the floor fit's best fits widens each quantity, and the fit is made again with it.
+      if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread) });
+    } else {
+      if (realizations) stageNotes.push('realizations: not run: they run at the best fits of sightlines, and this fit has none (a map is fitted pixel by pixel; see docs/uncertainty.md section 8).');
+      // A spread of an earlier run without realizations now would be read back as this run's.
+      for (const rel of [SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV]) rmSync(join(outDir, rel), { force: true });
+    }
     for (const [rel, text] of Object.entries(out.files)) {
       writeOutput(outDir, rel, text);
       outputs.push(rel);
     }
     const map = out.map ? mapJson(out.map) : undefined;
-    const warnings = [...out.result.warnings];
+    const warnings = [...out.result.warnings, ...stageNotes];
     if (map) {
       const { writeMapImages } = await import('../report/maps.ts');
       const files = writeMapImages(map, observations.map, warnings, MAP_IMAGE_NAMES, (name) => join(outDir, `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`));
@@ -361,7 +389,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     return {
       summary: `${n} fitted against ${out.result.interpolation ? `${out.result.interpolation.gridCandidates} candidates (mesh x${out.result.interpolation.factor}: ${out.result.nCandidates})` : `${out.result.nCandidates} candidates`}${poor ? `, ${poor} with warnings` : ''}`,
       outputs: outputs.sort(),
-      data: { result: out.result, profiles: out.profiles, map },
+      data: { result: out.result, profiles: out.profiles, map, spread },
       warnings,
     };
   },
@@ -369,6 +397,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     result: readJson<FitStageResult>(outDir, FIT_OUTPUT_FILES.fitJson, 'fit'),
     profiles: existsSync(join(outDir, FIT_OUTPUT_FILES.profilesJson)) ? readJson<ProfilesJson>(outDir, FIT_OUTPUT_FILES.profilesJson, 'fit') : undefined,
     map: existsSync(join(outDir, FIT_OUTPUT_FILES.mapJson)) ? readJson<MapFitJson>(outDir, FIT_OUTPUT_FILES.mapJson, 'fit') : undefined,
+    spread: existsSync(join(outDir, SPREAD_JSON)) ? readJson<SpreadReport>(outDir, SPREAD_JSON, 'fit') : undefined,
   }),
 };
 
@@ -381,8 +410,10 @@ const report: StageImpl<PipelineData, 'report'> = {
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
     await checkStore(ctx, storeFile);
-    const { result, profiles, map } = await ctx.upstream('fit');
+    const { result, profiles, map, spread } = await ctx.upstream('fit');
     const config = pipeline.config.report ?? reportSection.parse({});
+    const { spreadForReport } = await import('./realizations.ts');
+    const withSpread = spreadForReport(loadTracks(storeFile, result, config.runner_up_tracks), spread);
     const files = await writeReport(
       {
         title: config.title ?? pipeline.config.name,
@@ -393,7 +424,8 @@ const report: StageImpl<PipelineData, 'report'> = {
         map,
         observations,
         quantities,
-        tracks: loadTracks(storeFile, result, config.runner_up_tracks),
+        tracks: withSpread.tracks,
+        ...(withSpread.sensitivity ? { sensitivity: withSpread.sensitivity } : {}),
         provenance: reportProvenance(ctx),
       },
       join(outDir, REPORT_DIR),

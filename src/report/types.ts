@@ -23,6 +23,20 @@ export interface ModelTrack {
   timesYr: number[];
   /** log10 of the abundance or ratio at each time; null where the model has none (zero abundance). */
   log10: (number | null)[];
+  /** The 68 % band of the rate-coefficient realizations at each time, log10 (docs/uncertainty.md); best fits only. */
+  band?: { lo: number[]; hi: number[]; realizations: number };
+}
+
+/** The reactions a sightline's fit hangs on (docs/uncertainty.md): correlation of log k with chi^2 over the realizations. */
+export interface SightlineSensitivity {
+  sightline: string;
+  method: 'pearson' | 'spearman';
+  realizations: number;
+  /** |coefficient| that chance alone reaches (null when too few realizations). */
+  chanceCoefficient: number | null;
+  ageYr: number;
+  /** Strongest first: reaction number and equation, coefficient. */
+  top: { reaction: string; coefficient: number }[];
 }
 
 /** How the run was made, shown in the HTML report so a figure can be reproduced. */
@@ -54,6 +68,8 @@ export interface ReportInput {
   /** Tracks of the best-fit models (and any runner-ups), per sightline and quantity. */
   tracks: ModelTrack[];
   provenance: ReportProvenance;
+  /** Sensitivity of each sightline's chi^2 to the rate coefficients, when realizations were run. */
+  sensitivity?: SightlineSensitivity[];
   /** Model cautions to print; defaults to the fit stage's cautions, else the report's own. */
   cautions?: string[];
 }

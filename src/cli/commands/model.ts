@@ -122,7 +122,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
  * conditions, then --set (which may also stand in for a grid axis of the
  * pipeline); every value checked.
  */
-function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditions {
+export function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditions {
   const conditions = defaultConditions();
   const problems: UserError[] = [];
   const known = `Known conditions: ${CONDITION_NAMES.join(', ')}.`;
@@ -192,7 +192,7 @@ function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditio
   return conditions;
 }
 
-function chooseSpecies(list: string | undefined, names: string[]): string[] {
+export function chooseSpecies(list: string | undefined, names: string[]): string[] {
   if (list === undefined) {
     const present = DEFAULT_FIGURE_SPECIES.filter((s) => names.includes(s));
     return present.length > 0 ? present : names.slice(0, SUMMARY_COUNT);

@@ -46,6 +46,13 @@ export const fitSection = z
     model_sigma_shared_dex: z.number().min(0).optional(),
     /** Score detections that share a measurement (ratios to one reference, the reference beside them) with their covariance. */
     correlated_errors: z.boolean().default(true),
+    /**
+     * The model's own uncertainty of each quantity (docs/uncertainty.md): `floor`, the fixed
+     * model_sigma_dex; `spread`, the spread of log X over the Monte Carlo realizations of the
+     * rate coefficients at the sightline's best fit (section realizations), instead of the floor;
+     * `spread-and-floor`, both in quadrature.
+     */
+    model_uncertainty: z.enum(['floor', 'spread', 'spread-and-floor']).default('floor'),
     /** Width of a limit in dex, added in quadrature to the model floor in the censored likelihood (0: the floor alone). */
     limit_sigma_dex: z.number().min(0).default(0),
     /** Confidence levels of the Delta chi^2 regions (68.3% and 95.4%: the 1 and 2 sigma of a Gaussian, common practice); the same as DEFAULT_LEVELS of the fit room's table, src/fit/regions.ts. */

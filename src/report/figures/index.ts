@@ -15,6 +15,7 @@ import { posteriorFigure } from './posterior.ts';
 import { profilesFigure } from './profiles.ts';
 import { skyMapFigure } from './sky-map.ts';
 import { tracksFigure } from './tracks.ts';
+import { sensitivityFigure } from './sensitivity.ts';
 
 export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   chi2_map: chi2MapFigure,
@@ -23,15 +24,16 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   profiles: profilesFigure,
   sky_map: skyMapFigure,
   posterior: posteriorFigure,
+  sensitivity: sensitivityFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['fit_vs_av', 'chi2_map', 'profiles', 'posterior', 'tracks'],
+  table: ['fit_vs_av', 'chi2_map', 'profiles', 'posterior', 'tracks', 'sensitivity'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
-const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'posterior', 'tracks'];
+const PER_SIGHTLINE_KINDS: FigureKind[] = ['chi2_map', 'profiles', 'posterior', 'tracks', 'sensitivity'];
 
 export function figureContext(input: ReportInput, warnings: string[]): FigureContext {
   const levels = [...new Set(input.fit.levels.map((l) => l.level))].sort((a, b) => a - b);
@@ -84,6 +86,8 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
     : [...DEFAULT_KINDS[input.observations.kind], ...(input.observations.kind === 'map' && input.config.sightlines ? PER_SIGHTLINE_KINDS : [])]
         // A fit read by its profile alone (fit.method: profile) chose no posterior: no note that its figure is missing.
         .filter((kind) => kind !== 'posterior' || input.fit.fits.some((f) => f.posterior !== undefined))
+        // The sensitivity figure is a default only of a run with realizations; without them it is not missed.
+        .filter((kind) => kind !== 'sensitivity' || input.sensitivity !== undefined)
         .map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
   const requests: FigureRequest[] = [];
   const names = new Map<string, string>();

@@ -82,6 +82,14 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
       if (l !== null && Number.isFinite(l) && t > 0) lineRows.push({ t, value: 10 ** l, quantity: tr.label, model: tr.modelId, role: tr.role });
     });
   }
+  // The 68 % band of the rate-coefficient realizations around a best-fit track (docs/uncertainty.md).
+  const bandRows: { t: number; lo: number; hi: number; quantity: string }[] = [];
+  for (const tr of tracks) {
+    if (!tr.band) continue;
+    tr.timesYr.forEach((t, i) => {
+      if (t > 0 && Number.isFinite(tr.band!.lo[i]) && Number.isFinite(tr.band!.hi[i])) bandRows.push({ t, lo: 10 ** tr.band!.lo[i], hi: 10 ** tr.band!.hi[i], quantity: tr.label });
+    });
+  }
   const obsRows = observed.map((q) => {
     const k = labels.indexOf(q.label);
     const shift = labels.length > 1 ? OBSERVATION_SPREAD_DEX * (k / (labels.length - 1) - 0.5) : 0;
@@ -131,6 +139,15 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
           mark: { type: 'rule' as const, color: '#777777', strokeWidth: 0.7, strokeDash: [2, 2] },
           encoding: { x: { field: 't', type: 'quantitative' as const } },
         },
+        ...(bandRows.length > 0
+          ? [
+              {
+                data: { values: bandRows.filter((r) => inGroup.has(r.quantity)) },
+                mark: { type: 'area' as const, opacity: 0.18, clip: true },
+                encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend } },
+              },
+            ]
+          : []),
         ...(['runner-up', 'best'] as const).map((role) => ({
           data: { values: lines.filter((r) => r.role === role) },
           mark: { type: 'line' as const, strokeWidth: role === 'best' ? 1.2 : 0.8, opacity: role === 'best' ? 1 : RUNNER_UP_OPACITY, clip: true },
@@ -172,6 +189,11 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
   return panels.length === 1 ? { ...head, ...panels[0] } : { ...head, spacing: PANEL_SPACING, vconcat: panels };
 }
 
+function bandCaption(tracks: readonly ModelTrack[]): string {
+  const n = tracks.find((t) => t.band)?.band?.realizations;
+  return n === undefined ? '' : ` Coloured bands around the best-fit tracks: the 68 % range of ${n} Monte Carlo realizations of the rate coefficients (docs/uncertainty.md).`;
+}
+
 export const tracksFigure: FigureBuilder = {
   kind: 'tracks',
   description: 'abundance or ratio tracks of the best-fit models against time with the observed values',
@@ -200,7 +222,7 @@ export const tracksFigure: FigureBuilder = {
         name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
         kind: 'tracks',
         title: `Model tracks for ${id}`,
-        caption: `Abundances or ratios of the best-fit model for ${id} against time (lines), with the observed values at the best-fit age: detections with 1σ error bars, limits as triangles; the shaded band is the ${levelStatement(statedLevel(ctx.levels[0], ctx.input.fit.levels, 1), 'Δχ²')} age interval.`,
+        caption: `Abundances or ratios of the best-fit model for ${id} against time (lines), with the observed values at the best-fit age: detections with 1σ error bars, limits as triangles; the shaded band is the ${levelStatement(statedLevel(ctx.levels[0], ctx.input.fit.levels, 1), 'Δχ²')} age interval.${bandCaption(tracks)}`,
         sightline: id,
         spec: buildTracksSpec(ctx, fit, tracks, observed, labels),
       });
