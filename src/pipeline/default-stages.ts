@@ -193,6 +193,8 @@ function sightlineAvs(observations: ObservationSet, pipeline: Pipeline): number[
  */
 export async function pipelineGridPlan(pipeline: Pipeline, observations: () => Promise<ObservationSet>): Promise<GridPlan> {
   const { planGrid } = await import('../grid/plan.ts');
+  const { checkLayeredObservations } = await import('./columns.ts');
+  checkLayeredObservations(pipeline);
   return planGrid(pipeline, needsSightlineTie(pipeline) ? sightlineAvs(await observations(), pipeline) : undefined);
 }
 
@@ -313,7 +315,7 @@ async function checkStore(ctx: StageContext<PipelineData>, storeFile: string): P
 }
 
 function needsSightlineTie(pipeline: Pipeline): boolean {
-  return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && 'tie' in a && a.tie === 'sightlines');
+  return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && (('tie' in a && a.tie === 'sightlines') || 'layers' in a));
 }
 
 const fit: StageImpl<PipelineData, 'fit'> = {
@@ -326,7 +328,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     const { pipeline, outDir } = ctx;
     const { runFitStage } = await import('../fit/stage.ts');
     const { mapJson } = await import('../fit/stage-files.ts');
-    const { loadCandidates } = await import('../grid/candidates.ts');
+    const { fitCandidates } = await import('./columns.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
     await checkStore(ctx, storeFile);
@@ -335,7 +337,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       species.add(q.numerator);
       if (q.denominator) species.add(q.denominator);
     }
-    const table = loadCandidates(storeFile, [...species].sort());
+    const { table, warnings: columnWarnings } = fitCandidates(pipeline, storeFile, [...species].sort(), observations);
     const out = runFitStage({
       table,
       section: fitSection(pipeline),
@@ -350,7 +352,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       outputs.push(rel);
     }
     const map = out.map ? mapJson(out.map) : undefined;
-    const warnings = [...out.result.warnings];
+    const warnings = [...columnWarnings, ...out.result.warnings];
     if (map) {
       const { writeMapImages } = await import('../report/maps.ts');
       const files = writeMapImages(map, observations.map, warnings, MAP_IMAGE_NAMES, (name) => join(outDir, `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`));
@@ -377,6 +379,7 @@ const report: StageImpl<PipelineData, 'report'> = {
   run: async (ctx) => {
     const { pipeline, outDir } = ctx;
     const { writeReport } = await import('../report/index.ts');
+    const { fitCandidates } = await import('./columns.ts');
     const { reportSection } = await import('../config/sections/report.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
@@ -393,7 +396,7 @@ const report: StageImpl<PipelineData, 'report'> = {
         map,
         observations,
         quantities,
-        tracks: loadTracks(storeFile, result, config.runner_up_tracks),
+        tracks: loadTracks(storeFile, result, config.runner_up_tracks, (species) => fitCandidates(pipeline, storeFile, species, observations).table),
         provenance: reportProvenance(ctx),
       },
       join(outDir, REPORT_DIR),

@@ -4,7 +4,7 @@
  * read from the model store.
  */
 import { loadCandidates } from '../grid/candidates.ts';
-import type { FitStageResult, QuantityScore } from '../fit/types.ts';
+import type { CandidateTable, FitStageResult, QuantityScore } from '../fit/types.ts';
 import type { ModelTrack } from '../report/types.ts';
 
 interface TrackRequest {
@@ -14,7 +14,8 @@ interface TrackRequest {
   residuals: readonly QuantityScore[];
 }
 
-export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: number): ModelTrack[] {
+/** `candidates` reads the table the fit read (the store's models, or layered columns); by default the store's models. */
+export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: number, candidates: (species: string[]) => CandidateTable = (species) => loadCandidates(storeFile, species)): ModelTrack[] {
   const requests: TrackRequest[] = [];
   for (const f of fit.fits) {
     requests.push({ sightline: f.sightline, modelId: f.best.modelId, role: 'best', residuals: f.residuals });
@@ -33,7 +34,7 @@ export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: nu
     species.add(q.numerator);
     if (q.denominator) species.add(q.denominator);
   }
-  const table = loadCandidates(storeFile, [...species].sort());
+  const table = candidates([...species].sort());
   const rowOf = new Map(table.modelIds.map((id, i) => [id, i]));
   const column = new Map(table.species.map((s, i) => [s, i]));
   const timesYr = Array.from(table.timesYr);

@@ -165,7 +165,7 @@ function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalConditio
       ties.push({ name, target: value.tie, factor: value.factor ?? 1, where });
       continue;
     }
-    const what = Array.isArray(value) ? 'a list' : 'tie' in value ? `a tie to ${value.tie}` : 'a range';
+    const what = Array.isArray(value) ? 'a list' : 'tie' in value ? `a tie to ${value.tie}` : 'layers' in value ? `layers through a ${value.layers}` : 'a range';
     problems.push(
       new UserError(
         `'hoarfrost model' runs one model, so each condition must be a single number (or a tie to another condition); found ${what}. Give one value here or with --set ${name}=VALUE, or run the grid with 'hoarfrost grid'.`,
