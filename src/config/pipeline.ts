@@ -16,6 +16,7 @@ import { observationsSection } from './sections/observations.ts';
 import { conditionsSection, excludeSection } from './sections/conditions.ts';
 import { fitSection } from './sections/fit.ts';
 import { reportSection } from './sections/report.ts';
+import { initialSection } from './sections/initial.ts';
 
 export const timesSection = z
   .object({
@@ -63,10 +64,6 @@ export const photochemistrySection = z
   })
   .strict();
 
-/** Initial composition: a named preset from config/initial/, a file, or explicit abundances. */
-export const initialSection = z.union([z.string(), z.record(z.string(), z.number().min(0))], {
-  error: 'expected a preset name (low-metal), a path to a composition file, or a mapping of species to fractional abundances',
-});
 
 export const pipelineSchema = z
   .object({

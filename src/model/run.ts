@@ -118,10 +118,12 @@ export function runModel(input: ModelInput): ModelResult {
   }
   const notes = [...system.clampNotes];
   if (input.grain.h2Formation === 'surface') notes.push(...physisorbedH2Notes(input, system, states));
+  const last = states[states.length - 1];
   return {
     species: columns.names,
     timesYr: input.timesYr,
     abundances,
+    finalState: last ? { species: network.species.map((s) => s.name), values: Float64Array.from(last) } : undefined,
     status,
     failure,
     conservation: conservation.report(),

@@ -70,6 +70,12 @@ export interface ModelResult {
    * reactions, and an H2 formation treatment beyond the dust temperatures where it holds.
    */
   clampNotes: string[];
+  /**
+   * The solver's state at the last output time reached, by the model
+   * network's species (with the mantle twins when the three-phase ice is
+   * on): what a second stage starts from.
+   */
+  finalState?: { species: string[]; values: Float64Array };
   /** Reactions of the network left out for these options (the other H2 route, helium accretion), each with why. */
   skippedNotes?: string[];
   wallMs: number;
