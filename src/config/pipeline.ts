@@ -17,6 +17,7 @@ import { conditionsSection, excludeSection } from './sections/conditions.ts';
 import { fitSection } from './sections/fit.ts';
 import { reportSection } from './sections/report.ts';
 import { initialSection } from './sections/initial.ts';
+import { physicalTrackSection } from './sections/track.ts';
 
 export const timesSection = z
   .object({
@@ -79,6 +80,8 @@ export const pipelineSchema = z
     grain: grainSection.prefault({}),
     photochemistry: photochemistrySection.prefault({}),
     initial: initialSection.default('low-metal'),
+    /** Conditions that change with time (sections/track.ts); absent: static conditions. */
+    physical_track: physicalTrackSection.optional(),
     times: timesSection.prefault({}),
     solver: solverSection.prefault({}),
     fit: fitSection.optional(),

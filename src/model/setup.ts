@@ -12,7 +12,9 @@ import { modelNetwork } from '../chem/mantle.ts';
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import type { FirstStageSpec } from '../config/sections/initial.ts';
+import type { PhysicalTrackSection } from '../config/sections/track.ts';
 import { runFirstStage, type FirstStageResult } from './first-stage.ts';
+import type { PhysicalTrack } from './physical-track.ts';
 import { loadInitialComposition } from './initial.ts';
 import { outputTimesYr } from './times.ts';
 import type { ModelInput, ModelOptions } from './types.ts';
@@ -47,6 +49,13 @@ function camelised<T extends Record<string, unknown>>(section: T): Camelised<T> 
 /** A pipeline's grain section (snake_case, defaults applied) as the model's grain options. */
 export function grainOptionsOf(section: Pipeline['config']['grain']): GrainOptions {
   return camelised(section);
+}
+
+/** The pipeline's physical_track section as the model's track. */
+export function physicalTrackOf(section: PhysicalTrackSection | undefined): PhysicalTrack | undefined {
+  if (!section) return undefined;
+  if (section.kind === 'free-fall') return { kind: 'free-fall', finalDensity: section.final_density, retardation: section.retardation, avGrowth: section.av_growth };
+  return { kind: 'warm-up', finalTemperature: section.final_temperature, durationYr: section.duration_yr, exponent: section.shape === 'linear' ? 1 : section.exponent! };
 }
 
 export interface SetupOverrides {
@@ -84,6 +93,7 @@ export function buildModelSetup(pipeline: Pipeline, overrides: SetupOverrides = 
     ...shared,
     initial,
     timesYr: outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count),
+    track: physicalTrackOf(c.physical_track),
   };
   return { network, networkFile, options, notes, firstStage };
 }

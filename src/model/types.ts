@@ -2,6 +2,7 @@
 import type { GrainOptions, PhotochemistryOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Network } from '../chem/network-types.ts';
 import type { SolverStats } from '../solve/index.ts';
+import type { PhysicalTrack } from './physical-track.ts';
 
 export interface SolverSettings {
   rtol: number;
@@ -30,6 +31,8 @@ export interface ModelOptions {
    * self-shielded H2 photodissociation and the parametric H2 formation rate.
    */
   massActionOnly: boolean;
+  /** Conditions that change with time, from the point's conditions at age 0 (src/model/physical-track.ts); absent for static conditions. */
+  track?: PhysicalTrack;
 }
 
 /** One model's input: a setup's network and options with one point's conditions (the switches default to off / shielded). */
@@ -76,6 +79,8 @@ export interface ModelResult {
    * on): what a second stage starts from.
    */
   finalState?: { species: string[]; values: Float64Array };
+  /** With a physical track: the conditions it changes (density, visual_extinction or the temperatures) at each output time. */
+  trackConditions?: Partial<Record<keyof PhysicalConditions, number[]>>;
   /** Reactions of the network left out for these options (the other H2 route, helium accretion), each with why. */
   skippedNotes?: string[];
   wallMs: number;

@@ -102,6 +102,8 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     conservation: result.conservation,
     solver: result.stats,
     initial: Object.fromEntries(Object.entries(input.initial)),
+    physical_track: cfg.physical_track ?? null,
+    track_conditions: result.trackConditions ?? null,
     notes: [...initialNotes, ...result.clampNotes, ...(result.skippedNotes ?? [])],
     wall_ms: result.wallMs,
   };
