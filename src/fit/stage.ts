@@ -50,6 +50,8 @@ export interface FitStageInput {
   /** Per sightline id: grid parameters held at one value (model A_V tied to the sightline's A_V). */
   held?: Readonly<Record<string, Readonly<Record<string, number>>>>;
   source?: FitSource;
+  /** Cautions of the model setup beyond the general ones (layered columns, a first stage, a physical track), each a sentence. */
+  modelCautions?: readonly string[];
 }
 
 export interface FitStageOutput {
@@ -302,7 +304,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     fits,
     joint,
     warnings,
-    cautions: [...MODEL_CAUTIONS],
+    cautions: [...MODEL_CAUTIONS, ...(input.modelCautions ?? [])],
   };
   const profilesJson: ProfilesJson = { format: 'hoarfrost-fit-profiles/1', levels: options.levels, sightlines: profiles, joint: jointProfiles };
   return { result, profiles: profilesJson, map, files: stageFiles(result, profilesJson, map, table, observations) };

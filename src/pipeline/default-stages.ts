@@ -24,6 +24,7 @@ import { hashFile } from './hash.ts';
 import { heldParameters } from './held.ts';
 import type { StageContext, StageImpl, StageSet } from './stages.ts';
 import { loadTracks } from './tracks.ts';
+import { modelCautions } from './model-cautions.ts';
 
 export interface ObserveData {
   observations: ObservationSet;
@@ -320,7 +321,7 @@ function needsSightlineTie(pipeline: Pipeline): boolean {
 
 const fit: StageImpl<PipelineData, 'fit'> = {
   inputs: ({ pipeline }) => ({
-    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction },
+    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction, cautions: modelCautions(pipeline) },
     files: {},
     after: ['observe', 'grid'],
   }),
@@ -345,6 +346,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       quantities,
       held: heldParameters(pipeline, observations),
       source: { file: pipeline.file, lineOf: pipeline.yaml.lineOf },
+      modelCautions: modelCautions(pipeline),
     });
     const outputs: string[] = [];
     for (const [rel, text] of Object.entries(out.files)) {
