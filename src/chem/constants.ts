@@ -51,3 +51,6 @@ export const CR_PEAK_DUST_TEMPERATURE = 70;
 
 /** Width of the rectangular barrier for quantum tunnelling on the surface, cm (1 angstrom; HHL92). */
 export const TUNNELLING_BARRIER_WIDTH = 1 * ANGSTROM;
+
+/** Newtonian constant of gravitation G, cm^3 g^-1 s^-2 (CODATA 2018). */
+export const GRAVITATIONAL_CONSTANT = 6.6743e-8;

@@ -23,7 +23,7 @@ import type { Network, Reaction } from './network-types.ts';
 import { IceTransfer, mantlePairs, modelNetwork } from './mantle.ts';
 import { CoverageTerms, type FreshGroup } from './nondiffusive.ts';
 import { describeReaction } from './reaction-text.ts';
-import { computeRates, type RateForm, type RateSet, type SkippedReaction } from './rates.ts';
+import { computeRates, type RateForm, type RateSet, type ReactionRate, type SkippedReaction } from './rates.ts';
 import { h2ShieldingDerivative, h2ShieldingFactor } from './shielding.ts';
 
 export interface CsrPattern {
@@ -104,6 +104,14 @@ export interface CompiledSystem {
   beginStep(t: number, y: Float64Array): boolean;
   /** The mass-action part as JSON (the --emit-system contract of issue 4). */
   emitSystem(y0: Float64Array, timesS: Float64Array): EmittedSystem;
+  /**
+   * Re-evaluate every rate coefficient for new conditions, keeping the
+   * species, terms and Jacobian pattern: conditions that change with time
+   * (a physical track, src/model/physical-track.ts). The grain options and
+   * the network are those of the compile; the first clamp note of each kind
+   * met along the way is added to clampNotes.
+   */
+  retarget(conditions: PhysicalConditions): void;
 }
 
 /** Why each rate form is not mass action: the reason --emit-system gives beside every term it leaves out. */
@@ -313,18 +321,30 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     const r = rate.reaction;
     r.reactants.forEach((name, q) => (reactants[reactantStart[t] + q] = index(name)));
     r.products.forEach((name, q) => (products[productStart[t] + q] = index(name)));
-    k[t] = r.reactants.length >= 2 ? rate.k * nH ** (r.reactants.length - 1) : rate.k;
     reaction[t] = r.index;
   });
+  /** The mass-action coefficients of a rate set: k_eff = k n_H^(reactants - 1). */
+  const fillCoefficients = (rates: readonly ReactionRate[], density: number): void => {
+    let t = 0;
+    for (const rate of rates) {
+      if (rate.form !== 'mass-action') continue;
+      const order = rate.reaction.reactants.length;
+      k[t++] = order >= 2 ? rate.k * density ** (order - 1) : rate.k;
+    }
+  };
+  fillCoefficients(rateSet.rates, nH);
 
-  const nonMassAction: NonMassActionTerm[] = [];
-  if (!options.massActionOnly) {
-    const photo = special.filter((r) => r.form === 'monolayer-photodesorption');
+  /** The non-mass-action terms of a rate set (all but the surface-mantle transfer), in a fixed order. */
+  const specialTerms = (set: RateSet, density: number): NonMassActionTerm[] => {
+    const terms: NonMassActionTerm[] = [];
+    if (options.massActionOnly) return terms;
+    const specialRates = set.rates.filter((r) => r.form !== 'mass-action');
+    const photo = specialRates.filter((r) => r.form === 'monolayer-photodesorption');
     if (photo.length > 0) {
       const channels = photo.map((rate) => ({ ice: index(rate.reaction.reactants[0]), products: Int32Array.from(rate.reaction.products.map(index)), k: rate.k }));
-      nonMassAction.push(new MonolayerPhotodesorption(`photodesorption with the monolayer treatment (${photo.length} reactions)`, channels, rateSet.grain.monolayerAbundance, iceSpecies));
+      terms.push(new MonolayerPhotodesorption(`photodesorption with the monolayer treatment (${photo.length} reactions)`, channels, set.grain.monolayerAbundance, iceSpecies));
     }
-    const coverage = special.filter((r) => r.form === 'coverage');
+    const coverage = specialRates.filter((r) => r.form === 'coverage');
     if (coverage.length > 0) {
       // Group by fresh species: each parent (source) combines with each follow-on (follower).
       const groups = new Map<string, { sources: Map<string, FreshGroup['sources'][number]>; followers: Map<string, FreshGroup['followers'][number]>; count: number }>();
@@ -335,7 +355,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
         groups.set(d.fresh!, group);
         group.count += 1;
         const [parent, follow] = d.parents;
-        group.sources.set(`${parent.index}`, { k: rate.parts!.appear * nH ** (r.reactants.length - 2), precursors: Int32Array.from(r.reactants.slice(0, -1).map(index)) });
+        group.sources.set(`${parent.index}`, { k: rate.parts!.appear * density ** (r.reactants.length - 2), precursors: Int32Array.from(r.reactants.slice(0, -1).map(index)) });
         const net = new Map<number, number>();
         for (const name of [d.fresh!, d.partner!]) net.set(index(name), (net.get(index(name)) ?? 0) - 1);
         for (const name of d.produces!) net.set(index(name), (net.get(index(name)) ?? 0) + 1);
@@ -352,15 +372,17 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
         if (g.sources.size * g.followers.size !== g.count) throw new Error('non-diffusive reactions do not factorise by fresh species');
         return { sources: [...g.sources.values()], followers: [...g.followers.values()] };
       });
-      nonMassAction.push(new CoverageTerms(`non-diffusive reactions at the partner's surface coverage (${coverage.length} reactions)`, compiled, rateSet.grain.monolayerAbundance, iceSpecies));
+      terms.push(new CoverageTerms(`non-diffusive reactions at the partner's surface coverage (${coverage.length} reactions)`, compiled, set.grain.monolayerAbundance, iceSpecies));
     }
-    special.forEach((rate, q) => {
+    specialRates.forEach((rate, q) => {
       const r = rate.reaction;
       const products = Int32Array.from(r.products.map(index));
-      if (rate.form === 'parametric-h2') nonMassAction.push(new ParametricH2(omitted[q], index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), products, rate.k * nH));
-      else if (rate.form === 'h2-self-shielding') nonMassAction.push(new H2SelfShielding(omitted[q], index(r.reactants[0]), products, rate.k, rateSet.columnToEdge));
+      if (rate.form === 'parametric-h2') terms.push(new ParametricH2(omitted[q], index(r.reactants[0]), Int32Array.from(r.reactants.map(index)), products, rate.k * density));
+      else if (rate.form === 'h2-self-shielding') terms.push(new H2SelfShielding(omitted[q], index(r.reactants[0]), products, rate.k, set.columnToEdge));
     });
-  }
+    return terms;
+  };
+  const nonMassAction: NonMassActionTerm[] = specialTerms(rateSet, nH);
 
   // Sparsity: a term's rate depends on each reactant and changes every reactant and product.
   const rowsCols: Set<number>[] = Array.from({ length: n }, (_, i) => new Set([i]));
@@ -419,7 +441,8 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   }
   const jacPos = Int32Array.from(slotPos);
   const jacCoef = Float64Array.from(slotCoef);
-  for (const term of nonMassAction) term.bind(Int32Array.from(term.entries.map(([row, col]) => at(row, col))));
+  const boundPositions = nonMassAction.map((term) => Int32Array.from(term.entries.map(([row, col]) => at(row, col))));
+  nonMassAction.forEach((term, q) => term.bind(boundPositions[q]));
   transfer?.readPattern(rowPtr, colIdx);
 
   // Net stoichiometry of each term for the rhs, cancelling species that appear on both sides.
@@ -480,6 +503,27 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     return changed;
   };
 
+  const clampNotes = [...rateSet.clampNotes];
+  const clampKinds = new Set(clampNotes.map((note) => note.split(':')[0]));
+  const retarget = (next: PhysicalConditions): void => {
+    const set = computeRates(network, next, grain, { selfShielding: options.selfShielding });
+    const before = rateSet.rates;
+    if (set.rates.length !== before.length || set.rates.some((r, i) => r.reaction.index !== before[i].reaction.index || r.form !== before[i].form)) {
+      throw new Error('the reactions of the network changed form with the conditions; a model cannot follow them in one system');
+    }
+    fillCoefficients(set.rates, next.density);
+    specialTerms(set, next.density).forEach((term, q) => {
+      term.bind(boundPositions[q]);
+      nonMassAction[q] = term;
+    });
+    for (const note of set.clampNotes) {
+      const kind = note.split(':')[0];
+      if (clampKinds.has(kind)) continue;
+      clampKinds.add(kind);
+      clampNotes.push(note);
+    }
+  };
+
   const terms: MassActionTerms = { reactantStart, reactants, productStart, products, k, reaction };
   const emitSystem = (y0: Float64Array, timesS: Float64Array): EmittedSystem => ({
     species,
@@ -500,7 +544,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     nonMassAction,
     omitted,
     skipped: rateSet.skipped,
-    clampNotes: rateSet.clampNotes,
+    clampNotes,
     notes: rateSet.notes,
     rateSet,
     pattern: { rowPtr, colIdx },
@@ -509,5 +553,6 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     jacobian,
     beginStep,
     emitSystem,
+    retarget,
   };
 }

@@ -17,6 +17,8 @@ import { conditionsSection, excludeSection } from './sections/conditions.ts';
 import { fitSection } from './sections/fit.ts';
 import { reportSection } from './sections/report.ts';
 import { realizationsSection } from './sections/realizations.ts';
+import { initialSection } from './sections/initial.ts';
+import { physicalTrackSection } from './sections/track.ts';
 
 export const timesSection = z
   .object({
@@ -64,10 +66,6 @@ export const photochemistrySection = z
   })
   .strict();
 
-/** Initial composition: a named preset from config/initial/, a file, or explicit abundances. */
-export const initialSection = z.union([z.string(), z.record(z.string(), z.number().min(0))], {
-  error: 'expected a preset name (low-metal), a path to a composition file, or a mapping of species to fractional abundances',
-});
 
 export const pipelineSchema = z
   .object({
@@ -83,6 +81,8 @@ export const pipelineSchema = z
     grain: grainSection.prefault({}),
     photochemistry: photochemistrySection.prefault({}),
     initial: initialSection.default('low-metal'),
+    /** Conditions that change with time (sections/track.ts); absent: static conditions. */
+    physical_track: physicalTrackSection.optional(),
     times: timesSection.prefault({}),
     solver: solverSection.prefault({}),
     fit: fitSection.optional(),

@@ -68,6 +68,8 @@ export interface FitStageInput {
    * chi^2 (and every pixel's).
    */
   modelCovariance?: ModelCovariance;
+  /** Cautions of the model setup beyond the general ones (layered columns, a first stage, a physical track), each a sentence. */
+  modelCautions?: readonly string[];
 }
 
 export interface FitStageOutput {
@@ -430,7 +432,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     fits,
     joint,
     warnings,
-    cautions: [...MODEL_CAUTIONS],
+    cautions: [...MODEL_CAUTIONS, ...(input.modelCautions ?? [])],
   };
   const profilesJson: ProfilesJson = { format: 'hoarfrost-fit-profiles/1', levels: options.levels, sightlines: profiles, joint: jointProfiles };
   return { result, profiles: profilesJson, map, files: stageFiles(result, profilesJson, map, table, observations) };

@@ -8,6 +8,7 @@ import { outputSpeciesNames } from '../chem/mantle.ts';
 import type { Network } from '../chem/network-types.ts';
 import type { RateDraw } from '../chem/uncertainty.ts';
 import type { Pipeline } from '../config/pipeline.ts';
+import { UserError } from '../config/errors.ts';
 import { TOOL_VERSION } from '../config/version.ts';
 import { buildModelSetup, type ModelSetup } from '../model/setup.ts';
 import { expandGrid, gridSpecFromPipeline, type ExpandedGrid, type GridPoint } from './expand.ts';
@@ -56,6 +57,7 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
   const { network, options } = setup;
   const shared: SharedModelInputs = { networkHash: network.contentHash, options, toolVersion: TOOL_VERSION };
   const sharedHash = sharedInputsHash(shared);
+  checkTrack(pipeline, setup, grid);
   const points = grid.points.map((p) => ({ ...p, hash: modelHash(sharedHash, p.conditions) }));
   return {
     pipeline,
@@ -69,6 +71,19 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
     workerInit: { networkFile: setup.networkFile, networkHash: network.contentHash, options },
     storeDir: join(pipeline.resolvePath(pipeline.config.output), 'store'),
   };
+}
+
+/** A collapse must end above where it starts: every grid point's density (its start density) below the final density. */
+function checkTrack(pipeline: Pipeline, setup: ModelSetup, grid: ExpandedGrid): void {
+  const track = setup.options.track;
+  if (track?.kind !== 'free-fall') return;
+  const highest = Math.max(...grid.points.map((p) => p.conditions.density));
+  if (highest >= track.finalDensity) {
+    throw new UserError(
+      `the collapse ends at final_density ${track.finalDensity} cm^-3, but the grid starts models at densities up to ${highest} cm^-3: the density of a grid point is where its collapse starts. Raise final_density above every start density, or narrow the density axis.`,
+      { file: pipeline.file, line: pipeline.yaml.lineOf(['physical_track', 'final_density']), field: 'physical_track.final_density' },
+    );
+  }
 }
 
 /** The store of a whole grid: OUT/store/models.sqlite. */

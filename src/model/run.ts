@@ -10,7 +10,9 @@ import { compile, type CompiledSystem } from '../chem/system.ts';
 import { drawRateFactors } from '../chem/uncertainty.ts';
 import { evaporatedHydrogenShare, hydrogenGrainTerms, PHYSISORBED_H2_MAX_EVAPORATED_SHARE } from '../chem/grain-h2.ts';
 import { UserError } from '../config/errors.ts';
-import { integrate } from '../solve/index.ts';
+import { integrate, type OdeProblem } from '../solve/index.ts';
+import type { PhysicalConditions } from '../config/conditions.ts';
+import { conditionsAt, type PhysicalTrack } from './physical-track.ts';
 import { ConservationCheck } from './conservation.ts';
 import { yearsToSeconds } from './times.ts';
 import type { ModelInput, ModelResult } from './types.ts';
@@ -70,9 +72,59 @@ function physisorbedH2Notes(input: ModelInput, system: CompiledSystem, states: r
   ];
 }
 
+/**
+ * The solver's problem for conditions that change with time: before each
+ * right-hand side or Jacobian at a new time, the rate coefficients are
+ * re-evaluated for the track's conditions at that time (the system is
+ * non-autonomous; the solver calls both at the time of the state it asks for).
+ */
+function trackProblem(system: CompiledSystem, track: PhysicalTrack, start: PhysicalConditions): OdeProblem {
+  const current = { ...start };
+  let at = Number.NaN;
+  const moveTo = (t: number): void => {
+    if (t === at) return;
+    conditionsAt(track, start, t, YEAR_SECONDS, current);
+    system.retarget(current);
+    at = t;
+  };
+  return {
+    n: system.n,
+    pattern: system.pattern,
+    rankOne: system.rankOne,
+    rhs(t, y, dydt) {
+      moveTo(t);
+      system.rhs(t, y, dydt);
+    },
+    jacobian(t, y, values) {
+      moveTo(t);
+      system.jacobian(t, y, values);
+    },
+    beginStep(t, y) {
+      moveTo(t);
+      return system.beginStep(t, y);
+    },
+  };
+}
+
+/** The conditions a track changes, at each output time. */
+function trackConditions(track: PhysicalTrack, start: PhysicalConditions, timesYr: Float64Array): ModelResult['trackConditions'] {
+  const names: (keyof PhysicalConditions)[] = track.kind === 'free-fall' ? ['density', 'visual_extinction'] : ['gas_temperature', 'dust_temperature'];
+  const out: ModelResult['trackConditions'] = {};
+  const c = { ...start };
+  for (const name of names) out[name] = [];
+  for (const t of timesYr) {
+    conditionsAt(track, start, t * YEAR_SECONDS, YEAR_SECONDS, c);
+    for (const name of names) out[name]!.push(c[name]);
+  }
+  return out;
+}
+
 export function runModel(input: ModelInput): ModelResult {
   const started = performance.now();
   checkTimes(input.timesYr);
+  if (input.track?.kind === 'free-fall' && !(input.track.finalDensity > input.conditions.density)) {
+    throw new UserError(`the collapse ends at final_density ${input.track.finalDensity} cm^-3, at or below its start density ${input.conditions.density} cm^-3. Raise final_density above the density condition.`, { field: 'physical_track.final_density' });
+  }
   const network = modelNetwork(input.network, input.grain);
   const rateMultipliers = input.rateDraw ? drawRateFactors(input.network, input.rateDraw).multipliers : undefined;
   const system = compile(network, input.conditions, input.grain, { massActionOnly: input.massActionOnly, selfShielding: input.photochemistry?.h2SelfShielding, rateMultipliers });
@@ -89,7 +141,8 @@ export function runModel(input: ModelInput): ModelResult {
   // The solver's states at the output times (the output columns may add the whole ice of the three-phase model).
   let states: Float64Array[] = [];
   try {
-    const result = integrate(system, y0, yearsToSeconds(input.timesYr), {
+    const problem = input.track ? trackProblem(system, input.track, input.conditions) : system;
+    const result = integrate(problem, y0, yearsToSeconds(input.timesYr), {
       rtol: input.solver.rtol,
       atol: input.solver.atol,
       maxSteps: input.solver.maxSteps,
@@ -120,10 +173,13 @@ export function runModel(input: ModelInput): ModelResult {
   }
   const notes = [...system.clampNotes];
   if (input.grain.h2Formation === 'surface') notes.push(...physisorbedH2Notes(input, system, states));
+  const last = states[states.length - 1];
   return {
     species: columns.names,
     timesYr: input.timesYr,
     abundances,
+    finalState: last ? { species: network.species.map((s) => s.name), values: Float64Array.from(last) } : undefined,
+    trackConditions: input.track ? trackConditions(input.track, input.conditions, input.timesYr) : undefined,
     status,
     failure,
     conservation: conservation.report(),

@@ -11,6 +11,10 @@ import type { Network } from '../chem/network-types.ts';
 import { modelNetwork } from '../chem/mantle.ts';
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Pipeline } from '../config/pipeline.ts';
+import type { FirstStageSpec } from '../config/sections/initial.ts';
+import type { PhysicalTrackSection } from '../config/sections/track.ts';
+import { runFirstStage, type FirstStageResult } from './first-stage.ts';
+import type { PhysicalTrack } from './physical-track.ts';
 import { loadInitialComposition } from './initial.ts';
 import { outputTimesYr } from './times.ts';
 import type { ModelInput, ModelOptions } from './types.ts';
@@ -22,6 +26,8 @@ export interface ModelSetup {
   options: ModelOptions;
   /** Notes from building it, for the terminal (optional trace species the network lacks, dropped). */
   notes: string[];
+  /** The first stage whose final composition is `options.initial`, when the pipeline has one. */
+  firstStage?: FirstStageResult;
 }
 
 /** snake_case to camelCase, as a type: the pipeline's section keys become the options' field names. */
@@ -45,6 +51,13 @@ export function grainOptionsOf(section: Pipeline['config']['grain']): GrainOptio
   return camelised(section);
 }
 
+/** The pipeline's physical_track section as the model's track. */
+export function physicalTrackOf(section: PhysicalTrackSection | undefined): PhysicalTrack | undefined {
+  if (!section) return undefined;
+  if (section.kind === 'free-fall') return { kind: 'free-fall', finalDensity: section.final_density, retardation: section.retardation, avGrowth: section.av_growth };
+  return { kind: 'warm-up', finalTemperature: section.final_temperature, durationYr: section.duration_yr, exponent: section.shape === 'linear' ? 1 : section.exponent! };
+}
+
 export interface SetupOverrides {
   massActionOnly?: boolean;
   /** Turn H2 self-shielding off whatever the pipeline says (`hoarfrost model --no-self-shielding`). */
@@ -57,18 +70,32 @@ export function buildModelSetup(pipeline: Pipeline, overrides: SetupOverrides = 
   const network = loadNetwork(networkFile);
   const notes: string[] = [];
   const grain = grainOptionsOf(c.grain);
-  // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
-  const initial = loadInitialComposition(c.initial, pipeline.dir, modelNetwork(network, grain), notes, { file: pipeline.file, lineOf: pipeline.yaml.lineOf });
   const photochemistry = camelised(c.photochemistry);
-  const options: ModelOptions = {
+  const shared = {
     grain,
     photochemistry: { ...photochemistry, h2SelfShielding: photochemistry.h2SelfShielding && !overrides.noSelfShielding },
-    initial,
-    timesYr: outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count),
     solver: camelised(c.solver),
     massActionOnly: overrides.massActionOnly ?? false,
   };
-  return { network, networkFile, options, notes };
+  const at = { file: pipeline.file, lineOf: pipeline.yaml.lineOf };
+  let initial: Record<string, number>;
+  let firstStage: FirstStageResult | undefined;
+  if (typeof c.initial === 'object' && 'first_stage' in c.initial) {
+    // The first stage's final composition starts every model (docs/cloud-structure.md section 2).
+    firstStage = runFirstStage(c.initial.first_stage as FirstStageSpec, { network, options: shared, baseDir: pipeline.dir, outputDir: pipeline.resolvePath(c.output), notes, at });
+    initial = firstStage.composition;
+    notes.push(`first stage: ${firstStage.ageYr} yr at n_H = ${firstStage.conditions.density} cm^-3, A_V = ${firstStage.conditions.visual_extinction} mag, T = ${firstStage.conditions.gas_temperature} K (${firstStage.cached ? 'read from' : 'computed into'} ${firstStage.file}); ages count from its end`);
+  } else {
+    // With the mantle on, the initial composition may give mantle abundances (X(mantle)).
+    initial = loadInitialComposition(c.initial as string | Record<string, number>, pipeline.dir, modelNetwork(network, grain), notes, at);
+  }
+  const options: ModelOptions = {
+    ...shared,
+    initial,
+    timesYr: outputTimesYr(c.times.start_yr, c.times.end_yr, c.times.count),
+    track: physicalTrackOf(c.physical_track),
+  };
+  return { network, networkFile, options, notes, firstStage };
 }
 
 /** The input of one model of the setup. */

@@ -3,6 +3,7 @@ import type { GrainOptions, PhotochemistryOptions, PhysicalConditions } from '..
 import type { Network } from '../chem/network-types.ts';
 import type { RateDraw } from '../chem/uncertainty.ts';
 import type { SolverStats } from '../solve/index.ts';
+import type { PhysicalTrack } from './physical-track.ts';
 
 export interface SolverSettings {
   rtol: number;
@@ -37,6 +38,8 @@ export interface ModelOptions {
    * nominal coefficients (and the model hash of before).
    */
   rateDraw?: RateDraw;
+  /** Conditions that change with time, from the point's conditions at age 0 (src/model/physical-track.ts); absent for static conditions. */
+  track?: PhysicalTrack;
 }
 
 /** One model's input: a setup's network and options with one point's conditions (the switches default to off / shielded). */
@@ -77,6 +80,14 @@ export interface ModelResult {
    * reactions, and an H2 formation treatment beyond the dust temperatures where it holds.
    */
   clampNotes: string[];
+  /**
+   * The solver's state at the last output time reached, by the model
+   * network's species (with the mantle twins when the three-phase ice is
+   * on): what a second stage starts from.
+   */
+  finalState?: { species: string[]; values: Float64Array };
+  /** With a physical track: the conditions it changes (density, visual_extinction or the temperatures) at each output time. */
+  trackConditions?: Partial<Record<keyof PhysicalConditions, number[]>>;
   /** Reactions of the network left out for these options (the other H2 route, helium accretion), each with why. */
   skippedNotes?: string[];
   wallMs: number;

@@ -25,6 +25,7 @@ import { heldParameters } from './held.ts';
 import type { StageContext, StageImpl, StageSet } from './stages.ts';
 import type { SpreadReport } from './realizations.ts';
 import { loadTracks } from './tracks.ts';
+import { modelCautions } from './model-cautions.ts';
 
 export interface ObserveData {
   observations: ObservationSet;
@@ -200,6 +201,8 @@ function sightlineAvs(observations: ObservationSet, pipeline: Pipeline): number[
  */
 export async function pipelineGridPlan(pipeline: Pipeline, observations: () => Promise<ObservationSet>): Promise<GridPlan> {
   const { planGrid } = await import('../grid/plan.ts');
+  const { checkLayeredObservations } = await import('./columns.ts');
+  checkLayeredObservations(pipeline);
   return planGrid(pipeline, needsSightlineTie(pipeline) ? sightlineAvs(await observations(), pipeline) : undefined);
 }
 
@@ -320,12 +323,12 @@ async function checkStore(ctx: StageContext<PipelineData>, storeFile: string): P
 }
 
 function needsSightlineTie(pipeline: Pipeline): boolean {
-  return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && 'tie' in a && a.tie === 'sightlines');
+  return Object.values(pipeline.config.conditions).some((a) => typeof a === 'object' && !Array.isArray(a) && (('tie' in a && a.tie === 'sightlines') || 'layers' in a));
 }
 
 const fit: StageImpl<PipelineData, 'fit'> = {
   inputs: ({ pipeline }) => ({
-    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction, realizations: pipeline.config.realizations },
+    config: { fit: fitSection(pipeline), conditions: pipeline.config.conditions, modelAvFraction: pipeline.config.observations?.model_av_fraction, realizations: pipeline.config.realizations, cautions: modelCautions(pipeline) },
     files: {},
     after: ['observe', 'grid'],
   }),
@@ -333,7 +336,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     const { pipeline, outDir } = ctx;
     const { runFitStage } = await import('../fit/stage.ts');
     const { mapJson } = await import('../fit/stage-files.ts');
-    const { loadCandidates } = await import('../grid/candidates.ts');
+    const { fitCandidates } = await import('./columns.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
     await checkStore(ctx, storeFile);
@@ -342,7 +345,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       species.add(q.numerator);
       if (q.denominator) species.add(q.denominator);
     }
-    const table = loadCandidates(storeFile, [...species].sort());
+    const { table, warnings: columnWarnings } = fitCandidates(pipeline, storeFile, [...species].sort(), observations);
     const fitInput = {
       table,
       section: fitSection(pipeline),
@@ -350,6 +353,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       quantities,
       held: heldParameters(pipeline, observations),
       source: { file: pipeline.file, lineOf: pipeline.yaml.lineOf },
+      modelCautions: modelCautions(pipeline),
     };
     let out = runFitStage(fitInput);
     const outputs: string[] = [];
@@ -378,7 +382,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       outputs.push(rel);
     }
     const map = out.map ? mapJson(out.map) : undefined;
-    const warnings = [...out.result.warnings, ...stageNotes];
+    const warnings = [...columnWarnings, ...out.result.warnings, ...stageNotes];
     if (map) {
       const { writeMapImages } = await import('../report/maps.ts');
       const files = writeMapImages(map, observations.map, warnings, MAP_IMAGE_NAMES, (name) => join(outDir, `${FIT_OUTPUT_FILES.mapImagePrefix}${name}.fits`));
@@ -406,6 +410,7 @@ const report: StageImpl<PipelineData, 'report'> = {
   run: async (ctx) => {
     const { pipeline, outDir } = ctx;
     const { writeReport } = await import('../report/index.ts');
+    const { fitCandidates } = await import('./columns.ts');
     const { reportSection } = await import('../config/sections/report.ts');
     const { observations, quantities } = await ctx.upstream('observe');
     const { storeFile } = await ctx.upstream('grid');
@@ -413,7 +418,7 @@ const report: StageImpl<PipelineData, 'report'> = {
     const { result, profiles, map, spread } = await ctx.upstream('fit');
     const config = pipeline.config.report ?? reportSection.parse({});
     const { spreadForReport } = await import('./realizations.ts');
-    const withSpread = spreadForReport(loadTracks(storeFile, result, config.runner_up_tracks), spread);
+    const withSpread = spreadForReport(loadTracks(storeFile, result, config.runner_up_tracks, (species) => fitCandidates(pipeline, storeFile, species, observations).table), spread);
     const files = await writeReport(
       {
         title: config.title ?? pipeline.config.name,

@@ -7,7 +7,7 @@
 import { loadCandidates } from '../grid/candidates.ts';
 import { buildAxes } from '../fit/axes.ts';
 import { refineTable } from '../fit/refine.ts';
-import type { FitStageResult, QuantityScore } from '../fit/types.ts';
+import type { CandidateTable, FitStageResult, QuantityScore } from '../fit/types.ts';
 import type { ModelTrack } from '../report/types.ts';
 
 interface TrackRequest {
@@ -17,7 +17,8 @@ interface TrackRequest {
   residuals: readonly QuantityScore[];
 }
 
-export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: number): ModelTrack[] {
+/** `candidates` reads the table the fit read (the store's models, or layered columns); by default the store's models. */
+export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: number, candidates: (species: string[]) => CandidateTable = (species) => loadCandidates(storeFile, species)): ModelTrack[] {
   const requests: TrackRequest[] = [];
   for (const f of fit.fits) {
     requests.push({ sightline: f.sightline, modelId: f.best.modelId, role: 'best', residuals: f.residuals });
@@ -36,8 +37,8 @@ export function loadTracks(storeFile: string, fit: FitStageResult, runnerUps: nu
     species.add(q.numerator);
     if (q.denominator) species.add(q.denominator);
   }
-  const stored = loadCandidates(storeFile, [...species].sort());
-  // A best fit between grid values (id `~...`) is a model of the fit's refined mesh: the same refinement of the store gives its track.
+  const stored = candidates([...species].sort());
+  // A best fit between grid values (id `~...`) is a model of the fit's refined mesh: the same refinement of the table gives its track.
   const refined = fit.interpolation !== undefined && requests.some((r) => r.modelId.startsWith('~'));
   const table = refined ? refineTable(stored, buildAxes(stored), fit.interpolation!.axes, fit.interpolation!.factor).table : stored;
   const rowOf = new Map(table.modelIds.map((id, i) => [id, i]));

@@ -112,7 +112,7 @@ describe('pipeline values of the wrong kind', () => {
 
   it('a condition that is a word says which forms a condition takes', () => {
     const r = refused(['grid', pipeline('word', 'gas_temperature: 10', 'gas_temperature: warm'), '--status']);
-    expect(r.stderr).toContain("word.yaml:6, field 'conditions.gas_temperature': expected a finite number, a list of numbers, a range { from, to, count } or a tie { tie: NAME } (found the text 'warm')");
+    expect(r.stderr).toContain("word.yaml:6, field 'conditions.gas_temperature': expected a finite number, a list of numbers, a range { from, to, count }, a tie { tie: NAME } or, for visual_extinction, layers { layers: slab } (found the text 'warm')");
   });
 
   it('a range with a fractional count names the count, not the whole condition', () => {
@@ -127,7 +127,7 @@ describe('pipeline values of the wrong kind', () => {
 
   it('an initial composition that is a number says which forms it takes', () => {
     const r = refused(['grid', pipeline('initial-number', 'times:', 'initial: 5\ntimes:'), '--status']);
-    expect(r.stderr).toContain("initial-number.yaml:8, field 'initial': expected a preset name (low-metal), a path to a composition file, or a mapping of species to fractional abundances (found number 5).");
+    expect(r.stderr).toContain("initial-number.yaml:8, field 'initial': expected a preset name (low-metal), a path to a composition file, a mapping of species to fractional abundances, or { first_stage: { from, age_yr, conditions } } (found number 5).");
   });
 
   it('an unknown initial composition preset names the file and line', () => {

@@ -17,7 +17,7 @@ import { scratch, writePipeline } from './helpers.ts';
 /** The shared inputs of a real grid plan, from a pipeline that sets an option of every section. */
 function planned() {
   const dir = scratch();
-  const file = writePipeline(dir, 'conditions: { density: 1.0e4 }\ngrain: { tunnelling: true }\nsolver: { rtol: 1.0e-7 }\n');
+  const file = writePipeline(dir, 'conditions: { density: 1.0e4 }\ngrain: { tunnelling: true }\nsolver: { rtol: 1.0e-7 }\nphysical_track: { kind: free-fall, final_density: 1.0e6, retardation: 0.5 }\n');
   const plan = planGrid(loadPipeline(file));
   rmSync(dir, { recursive: true, force: true });
   return plan;
@@ -62,7 +62,7 @@ describe('model content hash', () => {
     const paths = leaves(plan.shared);
     const names = paths.map((p) => p.filter((k) => typeof k === 'string').join('.'));
     // The walk reaches each section of the setup (a check that the walk itself works).
-    for (const section of ['networkHash', 'toolVersion', 'options.grain.tunnelling', 'options.photochemistry.h2SelfShielding', 'options.initial.H2', 'options.timesYr', 'options.solver.rtol', 'options.solver.maxSteps', 'options.massActionOnly']) {
+    for (const section of ['networkHash', 'toolVersion', 'options.grain.tunnelling', 'options.photochemistry.h2SelfShielding', 'options.initial.H2', 'options.timesYr', 'options.solver.rtol', 'options.solver.maxSteps', 'options.massActionOnly', 'options.track.finalDensity']) {
       expect(names).toContain(section);
     }
     for (const path of paths) expect(hashOf(changed(plan.shared, path)), path.join('.')).not.toBe(base);

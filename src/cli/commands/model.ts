@@ -102,6 +102,8 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
     conservation: result.conservation,
     solver: result.stats,
     initial: Object.fromEntries(Object.entries(input.initial)),
+    physical_track: cfg.physical_track ?? null,
+    track_conditions: result.trackConditions ?? null,
     notes: [...initialNotes, ...result.clampNotes, ...(result.skippedNotes ?? [])],
     wall_ms: result.wallMs,
   };
@@ -165,7 +167,7 @@ export function resolveConditions(pipeline: Pipeline, sets: string[]): PhysicalC
       ties.push({ name, target: value.tie, factor: value.factor ?? 1, where });
       continue;
     }
-    const what = Array.isArray(value) ? 'a list' : 'tie' in value ? `a tie to ${value.tie}` : 'a range';
+    const what = Array.isArray(value) ? 'a list' : 'tie' in value ? `a tie to ${value.tie}` : 'layers' in value ? `layers through a ${value.layers}` : 'a range';
     problems.push(
       new UserError(
         `'hoarfrost model' runs one model, so each condition must be a single number (or a tie to another condition); found ${what}. Give one value here or with --set ${name}=VALUE, or run the grid with 'hoarfrost grid'.`,

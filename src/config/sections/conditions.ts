@@ -7,6 +7,7 @@
  *     gas_temperature: [10, 15, 20]                     # a list
  *     dust_temperature: { tie: gas_temperature }        # equal to another condition (times `factor`)
  *     visual_extinction: { tie: sightlines, step: 0.5 } # model A_V from the observed sightlines
+ *     # or: visual_extinction: { layers: slab, step: 0.5 }  # each sightline a column through layers
  *     uv_field: 1                                       # a fixed value
  *   exclude:
  *     - dust_temperature: { above: gas_temperature }
@@ -38,8 +39,23 @@ const tie = z
   })
   .strict();
 
-export const conditionAxis = z.union([z.number(), z.array(z.number()), range, tie], {
-  error: 'expected a finite number, a list of numbers, a range { from, to, count } or a tie { tie: NAME }',
+/**
+ * visual_extinction only: each sightline's column is a sum over layers from
+ * the cloud surface to its deepest point, each layer a model at its own
+ * depth A_V (docs/cloud-structure.md section 1).
+ */
+const layers = z
+  .object({
+    layers: z.enum(['slab', 'sphere']),
+    /** Cell width of the layers in A_V, mag. */
+    step: z.number().positive().optional(),
+    /** Sphere only: the sightline's impact parameter as a fraction of the radius (0 = through the centre). */
+    impact_parameter: z.number().min(0).optional(),
+  })
+  .strict();
+
+export const conditionAxis = z.union([z.number(), z.array(z.number()), range, tie, layers], {
+  error: 'expected a finite number, a list of numbers, a range { from, to, count }, a tie { tie: NAME } or, for visual_extinction, layers { layers: slab }',
 });
 export const conditionsSection = z.record(z.string(), conditionAxis);
 export type ConditionsSection = z.infer<typeof conditionsSection>;
