@@ -6,7 +6,8 @@
  * are not snapped to the grid's values. The refined table is a candidate
  * table like the store's (every later step reads it unchanged); a refined
  * point that is not a grid value gets the model id of its lower corner with
- * a leading `~`.
+ * a leading `~` and its sub-steps along the refined axes after a `+`
+ * (`~p0a1b2+1.3`), so that every point of the mesh has an id of its own.
  *
  * Only a full cell is interpolated: a refined point whose 2^d corner models
  * are not all in the store (grid exclusions, failed models) is left out. A
@@ -165,7 +166,7 @@ export function refineTable(table: CandidateTable, axes: GridAxes, names: readon
           }
         }
         parameters.push(...params);
-        modelIds.push(isNode ? table.modelIds[m] : `~${table.modelIds[m]}`);
+        modelIds.push(isNode ? table.modelIds[m] : `~${table.modelIds[m]}+${sub.join('.')}`);
         rows.push(row);
       }
       // Next combination of sub-steps.

@@ -173,13 +173,26 @@ function termFloors(section: FitSection, quantities: readonly ObservedQuantity[]
   return floors;
 }
 
-/** The scoring widths of one sightline with its realizations' spread folded in as fit.model_uncertainty says. */
-function withModelSpread(options: FitOptions, terms: readonly QuantityTerm[], mode: ModelUncertaintyMode, spread: ReadonlyMap<string, number> | undefined): FitOptions {
+/**
+ * The scoring widths of one sightline with its realizations' spread folded in
+ * as fit.model_uncertainty says. `floors` are the model floors before the
+ * sub-grid mesh, `interpolationDex` the mesh's own error per term: the spread
+ * replaces (or joins) the floor, never the interpolation error, which is a
+ * different error and stays in quadrature.
+ */
+function withModelSpread(
+  options: FitOptions,
+  floors: ReadonlyMap<string, number> | undefined,
+  interpolationDex: ReadonlyMap<string, number> | undefined,
+  terms: readonly QuantityTerm[],
+  mode: ModelUncertaintyMode,
+  spread: ReadonlyMap<string, number> | undefined,
+): FitOptions {
   if (mode === 'floor' || spread === undefined) return options;
   const perTerm = new Map(options.termModelSigmaDex ?? []);
   for (const t of terms) {
     const s = spread.get(t.key);
-    if (s !== undefined) perTerm.set(t.key, modelSigmaDex(mode, options.termModelSigmaDex?.get(t.key) ?? options.modelSigmaDex, s));
+    if (s !== undefined) perTerm.set(t.key, Math.hypot(modelSigmaDex(mode, floors?.get(t.key) ?? options.modelSigmaDex, s), interpolationDex?.get(t.key) ?? 0));
   }
   return { ...options, termModelSigmaDex: perTerm };
 }
@@ -286,6 +299,8 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   if (input.modelCovariance) options.modelCovariance = input.modelCovariance;
   const refineWarnings: string[] = [];
   let interpolation: InterpolationSummary | undefined;
+  let floorsBeforeMesh: ReadonlyMap<string, number> | undefined;
+  let meshErrorDex: ReadonlyMap<string, number> | undefined;
   {
     const budget = observations.kind === 'map' ? Math.min(REFINED_CANDIDATES_BUDGET, MAP_REFINED_PAIRS_BUDGET / Math.max(1, observations.sightlines.length)) : REFINED_CANDIDATES_BUDGET;
     const refined = refineForFit(table, axes, model, section, input.held, refineWarnings, budget);
@@ -295,6 +310,8 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
       // The interpolation error joins each quantity's model floor in quadrature.
       const floors = new Map<string, number>();
       for (const t of model.terms) floors.set(t.key, Math.hypot(options.termModelSigmaDex.get(t.key) ?? options.modelSigmaDex, refined.errorDex.get(t.key) ?? 0));
+      floorsBeforeMesh = options.termModelSigmaDex;
+      meshErrorDex = refined.errorDex;
       options.termModelSigmaDex = floors;
     }
   }
@@ -324,7 +341,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     throw located(source, ['fit', 'joint'], 'joint groups combine sightlines of a table; this observation set is a map. Remove fit.joint, or fit a table of the positions to group.');
   }
   for (const s of isMap ? [] : observations.sightlines) {
-    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, withModelSpread(options, terms, section.model_uncertainty, input.modelSpread?.get(s.id)));
+    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, withModelSpread(options, floorsBeforeMesh ?? options.termModelSigmaDex, meshErrorDex, terms, section.model_uncertainty, input.modelSpread?.get(s.id)));
     if (usedCount(v) === 0) {
       unfitted.push(s.id);
       continue;

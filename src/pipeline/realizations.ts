@@ -16,7 +16,8 @@ import { censoredCost } from '../fit/censored.ts';
 import { termKey } from '../fit/model-quantities.ts';
 import { log10Abundance, logCovariance, logSpread } from '../fit/model-spread.ts';
 import { chanceCoefficient, rankReactions } from '../fit/sensitivity.ts';
-import type { FitStageResult, QuantityScore } from '../fit/types.ts';
+import type { FitStageResult, QuantityScore, SightlineFit } from '../fit/types.ts';
+import { isConditionName, type PhysicalConditions } from '../config/conditions.ts';
 import type { GridPlan } from '../grid/plan.ts';
 import { readRealizations, realizationStoreFile, runRealizations } from '../grid/realizations.ts';
 import type { ModelTrack, SightlineSensitivity } from '../report/types.ts';
@@ -92,6 +93,27 @@ function chi2Of(rows: readonly QuantityScore[], model: readonly number[]): numbe
   return chi2;
 }
 
+/**
+ * The conditions of a sightline's best-fit model: a grid model's own, or, for
+ * a best fit between grid values (fit.refine; id `~CORNER+...`), its corner's
+ * with the interpolated parameters of the fit, so that the realizations are
+ * models at the best-fit conditions themselves.
+ */
+function bestFitConditions(f: SightlineFit, conditionsOf: ReadonlyMap<string, PhysicalConditions>, pipeline: Pipeline): PhysicalConditions {
+  const own = conditionsOf.get(f.best.modelId);
+  if (own) return own;
+  const corner = f.best.modelId.startsWith('~') ? conditionsOf.get(f.best.modelId.slice(1).replace(/\+[\d.]*$/, '')) : undefined;
+  if (!corner) {
+    throw new UserError(
+      `realizations: the best fit of ${f.sightline} (${f.best.modelId}) is not one model of the grid (a column summed over layers has one model per layer); realizations run at single models. Remove the realizations section, or fit single-point sightlines.`,
+      { file: pipeline.file, line: pipeline.yaml.lineOf(['realizations']), field: 'realizations' },
+    );
+  }
+  const conditions = { ...corner };
+  for (const [name, value] of Object.entries(f.best.parameters)) if (isConditionName(name)) conditions[name] = value;
+  return conditions;
+}
+
 export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: FitStageResult, section: RealizationsSection, options: { workers?: number; progress(line: string): void }): Promise<SpreadAtBestFits> {
   const wanted = section.sightlines ?? fit.fits.map((f) => f.sightline);
   const fits = wanted.map((id) => {
@@ -100,7 +122,7 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     return f;
   });
   const conditionsOf = new Map(plan.points.map((p) => [p.id, p.conditions]));
-  const bases = [...new Set(fits.map((f) => f.best.modelId))].map((id) => ({ id, conditions: conditionsOf.get(id)! }));
+  const bases = [...new Map(fits.map((f) => [f.best.modelId, bestFitConditions(f, conditionsOf, pipeline)])).entries()].map(([id, conditions]) => ({ id, conditions }));
   const settings = { count: section.count, seed: section.seed };
   const run = await runRealizations(pipeline, plan, bases, settings, {
     workers: options.workers,
@@ -130,7 +152,10 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     const nSpecies = set.species.length;
     const nTimes = set.timesYr.length;
     const column = new Map(set.species.map((s, i) => [s, i]));
-    const t = f.best.timeIndex;
+    // The realizations' output time nearest the best-fit age in log: the grid's own times (a best fit
+    // on the fit's refined mesh, fit.refine, may lie between them; the spread changes slowly in time).
+    let t = 0;
+    for (let k = 1; k < nTimes; k++) if (Math.abs(Math.log(set.timesYr[k] / f.best.ageYr)) < Math.abs(Math.log(set.timesYr[t] / f.best.ageYr))) t = k;
     const quantityLogs = f.residuals.map((q) => {
       const num = column.get(q.numerator)!;
       const den = q.denominator === undefined ? undefined : column.get(q.denominator)!;

@@ -51,8 +51,11 @@ describe('sub-grid mesh', () => {
     expect(r.table.nModels).toBe(6 * 4 + 1);
     expect(r.table.nTimes).toBe(15 * 4 + 1);
     expect(r.table.modelIds[0]).toBe('m0');
-    expect(r.table.modelIds[1]).toBe('~m0');
+    expect(r.table.modelIds[1]).toBe('~m0+1');
+    expect(r.table.modelIds[3]).toBe('~m0+3');
     expect(r.table.modelIds[4]).toBe('m1');
+    // Every refined point has an id of its own: the report finds a best fit's track by it.
+    expect(new Set(r.table.modelIds).size).toBe(r.table.nModels);
     // A power law is linear in the logs: the mesh reproduces it exactly between grid values.
     const n = r.table.parameters[2 * 2];
     const t = r.table.timesYr[3];

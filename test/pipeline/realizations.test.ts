@@ -44,6 +44,9 @@ describe('realizations at the best fits in a pipeline run', () => {
     const fit = JSON.parse(readFileSync(join(out, 'fit/fit.json'), 'utf8')) as FitStageResult;
     expect(spread).toMatchObject({ format: 'hoarfrost-spread/1', count: 5, seed: 3, method: 'pearson' });
     expect(spread.sightlines.map((s) => s.sightline)).toEqual(fit.fits.map((f) => f.sightline));
+    // Best fits on the fit's refined mesh (fit.refine, ids `~CORNER+...`) run their realizations at their own, interpolated conditions.
+    expect(fit.interpolation).toBeDefined();
+    expect(spread.sightlines.some((s) => s.modelId.startsWith('~'))).toBe(true);
     for (const s of spread.sightlines) {
       const f = fit.fits.find((x) => x.sightline === s.sightline)!;
       expect(s.modelId).toBe(f.best.modelId);
@@ -82,8 +85,13 @@ describe('realizations at the best fits in a pipeline run', () => {
     const r0 = refit.fits.find((f) => f.sightline === s0.sightline)!;
     const d0 = r0.residuals.find((r) => r.kind === 'detection' && r.label === s0.quantities[0].label);
     if (d0) {
-      const obsSigma = d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex;
-      expect(d0.sigmaDex).toBeCloseTo(Math.hypot(obsSigma, s0.quantities[0].sdDexAtBest), 9);
+      // The observed part: one side of an asymmetric error, or, for a measurement shared with a
+      // ratio (X(H2O(s)) beside CO(s)/H2O(s), fit.correlated_errors), the mean of both sides'
+      // variances (docs/statistics.md section 2). The mesh's interpolation error stays in quadrature.
+      const shared = r0.residuals.some((r) => r.denominator === d0.numerator);
+      const obsVar = shared ? 0.5 * (d0.sigmaLoDex ** 2 + d0.sigmaHiDex ** 2) : (d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex) ** 2;
+      const meshDex = refit.interpolation?.errorDex[d0.label] ?? 0;
+      expect(d0.sigmaDex).toBeCloseTo(Math.sqrt(obsVar + s0.quantities[0].sdDexAtBest ** 2 + meshDex ** 2), 9);
     }
     expect(d0).toBeDefined();
   }, 240_000);
