@@ -20,6 +20,10 @@
  *   docs/ice-mantle.md) stopped at 9.665e6 yr until the transfer held the
  *   branch chosen at each step's prediction through that step's iteration
  *   (OdeProblem.beginStep).
+ * - n_H 31600, A_V 2.5 (the cheapest of the 3 of 42 scan models that still
+ *   stopped with the branch held) stopped at 6.904e6 yr ("repeated error
+ *   test failure at t = 2.17884e+14", 1,445 steps, 94 failed) while the sign
+ *   of F below its own round-off still chose the transfer's form at every step.
  */
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -37,6 +41,7 @@ describe('default network with every recommended ice switch on, through the end 
   for (const [density, av] of [
     [32300, 9.15],
     [1000, 1.5],
+    [31600, 2.5],
   ]) {
     it(`runs to 1e7 yr at n_H = ${density}, A_V = ${av} and conserves every element and the charge`, () => {
       const result = runModel({
