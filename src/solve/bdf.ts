@@ -89,8 +89,6 @@ const MAX_NEWTON_FAILURES_PER_STEP = 10;
 const MAX_ERROR_FAILURES_PER_STEP = 20;
 /** After this many error-test failures on one step, drop to order 1 (as CVODE does). */
 const ERROR_FAILURES_BEFORE_ORDER_ONE = 3;
-/** Step factor of each such restart (CVODE's ETAMIN). */
-const RESTART_FACTOR = 0.1;
 /** The smallest step is this many units in the last place of t (SciPy's 10 * nextafter). */
 const MIN_STEP_ULPS = 10;
 /** Starting step when the state or its derivative is negligible (Hairer, Norsett & Wanner). */
@@ -247,18 +245,6 @@ class BdfIntegrator {
     this.hAbs = h;
     for (let i = 0; i < n; i++) D[n + i] = f[i] * h;
     return this.evaluateJacobian(0, y0);
-  }
-
-  /** Order 1 from the accepted point t_n: D[1] = h f(t_n, y_n), higher differences cleared. False if f is not finite. */
-  private restartAtCurrent(h: number): boolean {
-    const { n, D, f } = this;
-    this.problem.rhs(this.t, this.current, f);
-    this.stats.rhsEvals++;
-    if (!allFinite(f)) return false;
-    for (let i = 0; i < n; i++) D[n + i] = f[i] * h;
-    D.fill(0, 2 * n);
-    this.order = 1;
-    return true;
   }
 
   /** Hairer, Norsett & Wanner, Solving ODEs I, sec. II.4, as in SciPy's select_initial_step (order 1). */
@@ -480,18 +466,12 @@ class BdfIntegrator {
       let factor = Number.isFinite(errorNorm)
         ? Math.max(MIN_FACTOR, safety * errorNorm ** (-1 / (order + 1)))
         : MIN_FACTOR;
-      if (errorFailures >= ERROR_FAILURES_BEFORE_ORDER_ONE) {
-        // CVODE's treatment after MXNEF1 = 3 error-test failures in one step
-        // (cvode.c, cvDoErrorTest; Hindmarsh et al. 2005): order 1, the step
-        // cut by ETAMIN = 0.1, and the history reloaded from a fresh f(t_n, y_n).
-        // Where the right-hand side has changed under the step (a switched form,
-        // src/chem/mantle.ts) the old differences carry the other form's
-        // derivative, and the error estimate then stays flat as h falls.
-        if (!this.restartAtCurrent(hAbs * RESTART_FACTOR)) return Outcome.ErrorTestFailure;
-        hAbs *= RESTART_FACTOR;
+      if (errorFailures >= ERROR_FAILURES_BEFORE_ORDER_ONE && order > 1) {
+        this.changeD(order, factor);
+        hAbs *= factor;
+        factor = 1;
         order = 1;
-        this.nEqualSteps = 0;
-        continue;
+        this.order = 1;
       }
       hAbs *= factor;
       this.changeD(order, factor);

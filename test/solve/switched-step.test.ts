@@ -110,11 +110,9 @@ describe('switched right-hand side held through each step (OdeProblem.beginStep)
     const held = integrate(exchange(true).problem, Y0, TIMES, OPTIONS);
     expect(free.status).toBe('ok');
     expect(held.status).toBe('ok');
-    // Measured on this problem: 10 Newton failures with the branch picked at
+    // Measured on this problem: 58 Newton failures with the branch picked at
     // every evaluation (the iterates straddle F = 0), 5 with it held per step.
-    // (58 against 5 before the solver restarted at order 1 after 3 error-test
-    // failures, as CVODE does: the free form's failed steps no longer cascade.)
-    expect(held.stats.newtonFailures).toBeLessThan(free.stats.newtonFailures);
+    expect(held.stats.newtonFailures * 4).toBeLessThan(free.stats.newtonFailures);
     // Both forms move matter between pairs only: the sum is conserved to round-off.
     for (const y of held.y) expect(Math.abs(y.reduce((s, v) => s + v, 0) - 1)).toBeLessThan(1e-12);
     // The equilibrium of the reservoir: a G = b X with G + X = 1 - (M + m + s).
