@@ -174,6 +174,7 @@ export class IceTransfer implements NonMassActionTerm {
     private readonly layersAbundance: number,
     n: number,
     private readonly othersRhs: (y: Float64Array, dydt: Float64Array) => void,
+    private readonly roundOff: (y: Float64Array) => number = () => 0,
   ) {
     this.k = surface.length;
     this.name = `surface-mantle transfer (${this.k} ice species, ${layersAbundance.toPrecision(3)} per H for the surface layers)`;
@@ -218,10 +219,22 @@ export class IceTransfer implements NonMassActionTerm {
    * is sound: the error test still judges each step on the rhs it used, and
    * the transfer is proportional to F, so where the held branch can disagree
    * with the sign of F inside a step, F and the transfer are both near 0.
+   *
+   * The branch changes only when F leaves the band |F| <= roundOff(y), the
+   * bound on the floating-point error of F as computed (docs/ice-mantle.md,
+   * "The band"). Inside it the sign of F is not known, and choosing by it
+   * switched the form at most steps of a steady ice: the erosion form feeds
+   * a trace surface species from its mantle at |F| x_m/max(x_surf, x_mant),
+   * the growth form does not, so the noise in F's sign moved such species
+   * by more than the error test allows.
    */
   beginStep(y: Float64Array): boolean {
     this.othersRhs(y, this.scratch);
-    const branch = this.surfaceRate(this.scratch) >= 0 ? 'growth' : 'erosion';
+    const f = this.surfaceRate(this.scratch);
+    const band = this.roundOff(y);
+    // Within the round-off of F its sign carries no information: the form in hand stays.
+    if (this.branch !== 'free' && Math.abs(f) <= band) return false;
+    const branch = f >= 0 ? 'growth' : 'erosion';
     const changed = branch !== this.branch;
     this.branch = branch;
     return changed;

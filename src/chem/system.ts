@@ -400,7 +400,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   let transfer: IceTransfer | undefined;
   if (pairs && pairs.surface.length > 0) {
     const layers = grain.surfaceLayers * rateSet.grain.monolayerAbundance;
-    transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y, dydt) => othersRhs(y, dydt));
+    transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y, dydt) => othersRhs(y, dydt), (y) => surfaceRoundOff(y));
     omitted.push(`${transfer.name}: the transfer rate is the net surface growth of every other process times a share of the surface or mantle, a ratio of sums of abundances (docs/ice-mantle.md)`);
     if (options.massActionOnly) transfer = undefined;
     else {
@@ -475,6 +475,59 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
       for (const end = netStart[t + 1]; q < end; q++) dydt[rhsSpecies[q]] += rhsCoef[q] * rate;
     }
     for (let g = 0; g < othersCount; g++) nonMassAction[g].addRhs(y, dydt);
+  };
+
+  // The round-off bound of F, the sum the transfer reads from the surface rows
+  // (docs/ice-mantle.md, "The band"). othersRhs adds every contribution
+  // c to its row in turn and the transfer then adds the rows, so the computed
+  // F is a recursive sum of the contributions, each a product of a few
+  // factors, and |F_computed - F| <= gamma_N sum |c| with
+  // gamma_N = N u / (1 - N u), u = 2^-53 and N the longest chain of roundings
+  // a contribution passes through (Higham, Accuracy and Stability of
+  // Numerical Algorithms, 2nd ed., 2002, section 4.2 and lemma 3.1).
+  const surfaceRow = new Uint8Array(n);
+  if (pairs) for (const row of pairs.surface) surfaceRow[row] = 1;
+  const grossTerms: number[] = [];
+  const grossWeight: number[] = [];
+  const rowCount = new Int32Array(n);
+  let maxOrder = 0;
+  for (let t = 0; t < m; t++) {
+    let weight = 0;
+    for (let q = netStart[t]; q < netStart[t + 1]; q++) {
+      if (!surfaceRow[rhsSpecies[q]]) continue;
+      weight += Math.abs(rhsCoef[q]);
+      rowCount[rhsSpecies[q]]++;
+    }
+    if (weight === 0) continue;
+    grossTerms.push(t);
+    grossWeight.push(weight);
+    maxOrder = Math.max(maxOrder, reactantStart[t + 1] - reactantStart[t]);
+  }
+  let longestRow = 0;
+  for (let i = 0; i < n; i++) if (surfaceRow[i]) longestRow = Math.max(longestRow, rowCount[i] + othersCount);
+  const surfaceCount = pairs ? pairs.surface.length : 0;
+  // Additions within the longest row and across the rows, the product k x_1 .. x_order, and the stoichiometric factor.
+  const chain = longestRow + surfaceCount + maxOrder + 1;
+  const unitRoundOff = 2 ** -53;
+  const gammaChain = (chain * unitRoundOff) / (1 - chain * unitRoundOff);
+  const grossTerm = Int32Array.from(grossTerms);
+  const grossCoef = Float64Array.from(grossWeight);
+  const grossScratch = new Float64Array(n);
+  const surfaceRoundOff = (y: Float64Array): number => {
+    let gross = 0;
+    for (let g = 0; g < grossTerm.length; g++) {
+      const t = grossTerm[g];
+      let rate = k[t];
+      for (let a = reactantStart[t]; a < reactantStart[t + 1]; a++) rate *= y[reactants[a]];
+      gross += grossCoef[g] * Math.abs(rate);
+    }
+    // A non-mass-action term counts as one contribution per row: its own net rate there.
+    for (let g = 0; g < othersCount; g++) {
+      grossScratch.fill(0);
+      nonMassAction[g].addRhs(y, grossScratch);
+      for (let i = 0; i < n; i++) if (surfaceRow[i]) gross += Math.abs(grossScratch[i]);
+    }
+    return gammaChain * gross;
   };
 
   const rhs = (_t: number, y: Float64Array, dydt: Float64Array): void => {

@@ -8,7 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions, type GrainOptions } from '../../src/config/conditions.ts';
 import { grainProperties } from '../../src/chem/grain-properties.ts';
-import { outputColumns, outputSpeciesNames, withMantle } from '../../src/chem/mantle.ts';
+import { IceTransfer, outputColumns, outputSpeciesNames, withMantle } from '../../src/chem/mantle.ts';
 import { compile, type CompiledSystem } from '../../src/chem/system.ts';
 import { makeNetwork } from '../model/fixtures.ts';
 import { fdCheck } from '../support/jacobian.ts';
@@ -130,5 +130,40 @@ describe('surface-mantle transfer Jacobian against central differences', () => {
     const massOnly = compile(net, c, MANTLE, { massActionOnly: true });
     expect(massOnly.omitted.some((o) => o.startsWith('surface-mantle transfer'))).toBe(true);
     expect(massOnly.nonMassAction).toHaveLength(0);
+  });
+});
+
+describe('surface-mantle transfer form held through the round-off of F (docs/ice-mantle.md, "The band")', () => {
+  // One ice species: surface at index 0, mantle at 1; the other terms put F on the surface row and the
+  // round-off bound of F is given. Lambda = 1, so the growth form moves F x_s and the erosion form F x_m / max(x_s, x_m).
+  let f = 0;
+  const band = 1e-3;
+  const term = new IceTransfer(Int32Array.of(0), Int32Array.of(1), 1, 2, (_y, dydt) => {
+    dydt.fill(0);
+    dydt[0] = f;
+  }, () => band);
+  const y = Float64Array.of(0.5, 2);
+  const transferred = (): number => {
+    const dydt = Float64Array.of(f, 0);
+    term.addRhs(y, dydt);
+    return dydt[1];
+  };
+
+  it('switches form only when F leaves the band on the other side, and keeps the held form inside it', () => {
+    f = -0.01;
+    expect(term.beginStep(y)).toBe(true);
+    expect(transferred()).toBeCloseTo(-0.01, 15); // erosion: F x_m / x_m
+    f = 0.5 * band;
+    expect(term.beginStep(y)).toBe(false);
+    expect(transferred()).toBeCloseTo(0.5 * band, 15); // still the erosion form, at this F
+    f = -0.5 * band;
+    expect(term.beginStep(y)).toBe(false);
+    f = 2 * band;
+    expect(term.beginStep(y)).toBe(true);
+    expect(transferred()).toBeCloseTo(2 * band * 0.5, 15); // growth: F x_s / Lambda
+    f = -band;
+    expect(term.beginStep(y)).toBe(false);
+    f = -1.01 * band;
+    expect(term.beginStep(y)).toBe(true);
   });
 });
