@@ -68,6 +68,16 @@ export interface FitStageInput {
    * chi^2 (and every pixel's).
    */
   modelCovariance?: ModelCovariance;
+  /**
+   * Per sightline id: the covariance (dex^2) of the quantity terms' log10 over
+   * the Monte Carlo realizations at that sightline's best fit (the pipeline's
+   * realizations; src/pipeline/realizations.ts modelCovarianceOf). With
+   * fit.model_uncertainty spread it is the model part of that sightline's
+   * covariance, off the diagonal too; with spread-and-floor the floor squared
+   * joins its diagonal. For its sightline it takes the place of `modelSpread`
+   * and of the global `modelCovariance`; floor ignores it.
+   */
+  sightlineModelCovariance?: ReadonlyMap<string, ModelCovariance>;
 }
 
 export interface FitStageOutput {
@@ -130,6 +140,55 @@ function checkRatioReferences(observations: ObservationSet, quantities: readonly
   throwProblems(problems, 'ratios to reference species that have only limits:');
 }
 
+/**
+ * A sightline whose model uncertainty comes from the realizations: a
+ * detection with a zero error and a zero spread has no width (chi^2
+ * undefined), and the realizations' covariance with the observational one
+ * must be positive definite.
+ */
+function checkSpreadWidths(id: string, quantities: readonly ObservedQuantity[], terms: readonly QuantityTerm[], widths: FitOptions, section: FitSection, source: FitSource | undefined): void {
+  const mc = widths.modelCovariance;
+  const modelVariance = (key: string) => {
+    const a = mc ? mc.keys.indexOf(key) : -1;
+    return a >= 0 ? mc!.matrix[a * (mc!.keys.length + 1)] : (widths.termModelSigmaDex?.get(key) ?? widths.modelSigmaDex) ** 2;
+  };
+  const fix =
+    section.model_uncertainty === 'spread'
+      ? 'Give the detection its error, or use fit.model_uncertainty: spread-and-floor with fit.model_sigma_dex above 0 (a reaction network whose factors are all 1 has no spread).'
+      : 'Give the detection its error, or a model floor above 0 (fit.model_sigma_dex).';
+  for (const q of quantities) {
+    if (q.kind !== 'detection' || !Number.isFinite(q.log10)) continue;
+    const m2 = modelVariance(termKey(q.numerator, q.denominator));
+    if (!(q.sigmaLoDex ** 2 + m2 > 0 && q.sigmaHiDex ** 2 + m2 > 0)) {
+      throw located(
+        source,
+        ['fit', 'model_uncertainty'],
+        `sightline ${id}: ${q.label} has no width: its error is ${q.sigmaLoDex === q.sigmaHiDex ? q.sigmaLoDex : `${q.sigmaLoDex}/${q.sigmaHiDex}`} dex and the realizations' spread of it is ${Math.sqrt(Math.max(0, m2))} dex (fit.model_uncertainty: ${section.model_uncertainty}), so chi^2 is undefined. ${fix}`,
+      );
+    }
+  }
+}
+
+/**
+ * buildObservationVector, with the one failure realizations can cause named
+ * for the user: their covariance (rank at most realizations - 1, exactly
+ * singular for quantities tied to each other) with zero observational errors
+ * is not positive definite.
+ */
+function buildSpreadVector(id: string, quantities: readonly ObservedQuantity[], terms: readonly QuantityTerm[], widths: FitOptions, fromSpread: boolean, section: FitSection, source: FitSource | undefined): ObservationVector {
+  try {
+    return buildObservationVector(id, quantities, terms, widths);
+  } catch (e) {
+    if (!fromSpread || !(e instanceof RangeError) || !/not positive definite/.test(e.message)) throw e;
+    throw located(
+      source,
+      ['fit', 'model_uncertainty'],
+      `sightline ${id}: the covariance of its detections with the realizations' model covariance (fit.model_uncertainty: ${section.model_uncertainty}) is singular: the detections without an error are tied to each other in every realization. ` +
+        'Give those detections their errors, use spread-and-floor with fit.model_sigma_dex above 0, or run more realizations (realizations.count).',
+    );
+  }
+}
+
 function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
   const broken = quantities.filter((q) => q.kind === 'detection' && Number.isFinite(q.log10) && !(q.sigmaLoDex >= 0 && q.sigmaHiDex >= 0 && Number.isFinite(q.sigmaLoDex) && Number.isFinite(q.sigmaHiDex)));
   throwProblems(
@@ -171,13 +230,40 @@ function termFloors(section: FitSection, quantities: readonly ObservedQuantity[]
   return floors;
 }
 
-/** The scoring widths of one sightline with its realizations' spread folded in as fit.model_uncertainty says. */
-function withModelSpread(options: FitOptions, terms: readonly QuantityTerm[], mode: ModelUncertaintyMode, spread: ReadonlyMap<string, number> | undefined): FitOptions {
-  if (mode === 'floor' || spread === undefined) return options;
+/**
+ * The scoring widths of one sightline with its realizations' spread folded in
+ * as fit.model_uncertainty says: their covariance where given (the floor of
+ * each term added on its diagonal for spread-and-floor), else the spread of
+ * each term alone.
+ */
+function withModelSpread(
+  options: FitOptions,
+  terms: readonly QuantityTerm[],
+  mode: ModelUncertaintyMode,
+  spread: ReadonlyMap<string, number> | undefined,
+  covariance: ModelCovariance | undefined,
+  floors: ReadonlyMap<string, number>,
+  interpolationDex: ReadonlyMap<string, number> | undefined,
+): FitOptions {
+  if (mode === 'floor') return options;
+  // The floor as the user set it (options.termModelSigmaDex also holds the interpolation error, which stays in every mode).
+  const floorOf = (key: string) => floors.get(key) ?? options.modelSigmaDex;
+  const interpolationOf = (key: string) => interpolationDex?.get(key) ?? 0;
+  if (covariance !== undefined) {
+    const n = covariance.keys.length;
+    if (covariance.matrix.length !== n * n) throw new RangeError(`a model covariance of ${n} terms has ${covariance.matrix.length} elements`);
+    const matrix = Float64Array.from(covariance.matrix);
+    covariance.keys.forEach((key, a) => {
+      const extra = mode === 'spread-and-floor' ? Math.hypot(floorOf(key), interpolationOf(key)) : interpolationOf(key);
+      matrix[a * (n + 1)] += extra * extra;
+    });
+    return { ...options, modelCovariance: { keys: [...covariance.keys], matrix } };
+  }
+  if (spread === undefined) return options;
   const perTerm = new Map(options.termModelSigmaDex ?? []);
   for (const t of terms) {
     const s = spread.get(t.key);
-    if (s !== undefined) perTerm.set(t.key, modelSigmaDex(mode, options.termModelSigmaDex?.get(t.key) ?? options.modelSigmaDex, s));
+    if (s !== undefined) perTerm.set(t.key, Math.hypot(modelSigmaDex(mode, floorOf(t.key), s), interpolationOf(t.key)));
   }
   return { ...options, termModelSigmaDex: perTerm };
 }
@@ -280,7 +366,9 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
   let model = buildModelQuantities(table, terms, { file: source?.file });
   const options = fitOptions(section);
-  options.termModelSigmaDex = termFloors(section, quantities);
+  const userFloors = termFloors(section, quantities);
+  options.termModelSigmaDex = userFloors;
+  let interpolationDex: Map<string, number> | undefined;
   if (input.modelCovariance) options.modelCovariance = input.modelCovariance;
   const refineWarnings: string[] = [];
   let interpolation: InterpolationSummary | undefined;
@@ -294,6 +382,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
       const floors = new Map<string, number>();
       for (const t of model.terms) floors.set(t.key, Math.hypot(options.termModelSigmaDex.get(t.key) ?? options.modelSigmaDex, refined.errorDex.get(t.key) ?? 0));
       options.termModelSigmaDex = floors;
+      interpolationDex = refined.errorDex;
     }
   }
   options.levels = regionLevels([...section.levels, TABLE_LEVEL], section.parameters_of_interest);
@@ -322,7 +411,9 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     throw located(source, ['fit', 'joint'], 'joint groups combine sightlines of a table; this observation set is a map. Remove fit.joint, or fit a table of the positions to group.');
   }
   for (const s of isMap ? [] : observations.sightlines) {
-    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, withModelSpread(options, terms, section.model_uncertainty, input.modelSpread?.get(s.id)));
+    const widths = withModelSpread(options, terms, section.model_uncertainty, input.modelSpread?.get(s.id), input.sightlineModelCovariance?.get(s.id), userFloors, interpolationDex);
+    if (widths !== options) checkSpreadWidths(s.id, byId.get(s.id) ?? [], terms, widths, section, source);
+    const v = buildSpreadVector(s.id, byId.get(s.id) ?? [], terms, widths, widths !== options, section, source);
     if (usedCount(v) === 0) {
       unfitted.push(s.id);
       continue;

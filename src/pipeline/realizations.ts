@@ -13,6 +13,7 @@ import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
 import type { RealizationsSection } from '../config/sections/realizations.ts';
 import { censoredCost } from '../fit/censored.ts';
+import type { ModelCovariance } from '../fit/covariance.ts';
 import { termKey } from '../fit/model-quantities.ts';
 import { log10Abundance, logCovariance, logSpread } from '../fit/model-spread.ts';
 import { chanceCoefficient, rankReactions } from '../fit/sensitivity.ts';
@@ -100,7 +101,9 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     return f;
   });
   const conditionsOf = new Map(plan.points.map((p) => [p.id, p.conditions]));
-  const bases = [...new Set(fits.map((f) => f.best.modelId))].map((id) => ({ id, conditions: conditionsOf.get(id)! }));
+  // A best fit between grid values (the fit's refined mesh, id `~...`) has no model of its own: its realizations run at the nearest grid model.
+  const nodeOf = new Map(fits.map((f) => [f.sightline, conditionsOf.has(f.best.modelId) ? f.best.modelId : nearestGridModel(plan, f.best.parameters)]));
+  const bases = [...new Set(nodeOf.values())].map((id) => ({ id, conditions: conditionsOf.get(id)! }));
   const settings = { count: section.count, seed: section.seed };
   const run = await runRealizations(pipeline, plan, bases, settings, {
     workers: options.workers,
@@ -123,14 +126,16 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
   const csvRows: (string | number)[][] = [];
   let realizationsUsed = section.count;
   const sightlines: SightlineSpread[] = fits.map((f) => {
-    const set = sets.get(f.best.modelId)!;
+    const modelId = nodeOf.get(f.sightline)!;
+    const set = sets.get(modelId)!;
     if (set.abundances.length < 2) throw new UserError(`only ${set.abundances.length} of ${section.count} realizations of the best fit of ${f.sightline} finished; a spread needs two. See the failures with 'hoarfrost grid --status'.`);
     realizationsUsed = Math.min(realizationsUsed, set.abundances.length);
     const eps = set.realizations.map(epsilon);
     const nSpecies = set.species.length;
     const nTimes = set.timesYr.length;
     const column = new Map(set.species.map((s, i) => [s, i]));
-    const t = f.best.timeIndex;
+    // The output time nearest the best-fit age in log (the refined mesh's times lie between the grid's).
+    const t = nearestTimeIndex(set.timesYr, f.best.ageYr);
     const quantityLogs = f.residuals.map((q) => {
       const num = column.get(q.numerator)!;
       const den = q.denominator === undefined ? undefined : column.get(q.denominator)!;
@@ -152,8 +157,8 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     const q = (p: number) => sortedChi2[Math.min(sortedChi2.length - 1, Math.round(p * (sortedChi2.length - 1)))];
     return {
       sightline: f.sightline,
-      modelId: f.best.modelId,
-      ageYr: f.best.ageYr,
+      modelId,
+      ageYr: set.timesYr[t],
       timesYr: Array.from(set.timesYr),
       realizations: set.abundances.length,
       missing: set.missing.length,
@@ -170,9 +175,58 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
   };
 }
 
+/** The grid model nearest a point of parameter space: least sum of squared log10 ratios (differences where a value is not positive) over the point's parameters. */
+export function nearestGridModel(plan: GridPlan, parameters: Readonly<Record<string, number>>): string {
+  let best: string | undefined;
+  let bestDistance = Infinity;
+  for (const p of plan.points) {
+    const conditions = p.conditions as unknown as Record<string, number>;
+    let d = 0;
+    for (const [name, value] of Object.entries(parameters)) {
+      const g = conditions[name];
+      if (g === undefined) continue;
+      d += g > 0 && value > 0 ? Math.log10(g / value) ** 2 : (g - value) ** 2;
+    }
+    if (d < bestDistance) {
+      bestDistance = d;
+      best = p.id;
+    }
+  }
+  if (best === undefined) throw new RangeError('the grid plan has no model');
+  return best;
+}
+
+/** The index of the time nearest `ageYr` in log10 (times positive and ascending). */
+export function nearestTimeIndex(timesYr: ArrayLike<number>, ageYr: number): number {
+  let best = 0;
+  for (let k = 1; k < timesYr.length; k++) if (Math.abs(Math.log10(timesYr[k] / ageYr)) < Math.abs(Math.log10(timesYr[best] / ageYr))) best = k;
+  return best;
+}
+
 /** Each sightline's spread of each quantity term at its best fit, dex: the fit's model-uncertainty input. */
 export function modelSpreadOf(report: SpreadReport): Map<string, Map<string, number>> {
   return new Map(report.sightlines.map((s) => [s.sightline, new Map(s.quantities.map((q) => [q.key, q.sdDexAtBest]))]));
+}
+
+/**
+ * Each sightline's covariance of its quantity terms' log10 at its best fit,
+ * dex^2, over the realizations: the model part of that sightline's
+ * covariance in the generalised chi^2 (fit.model_uncertainty spread or
+ * spread-and-floor; docs/uncertainty.md section 4).
+ */
+export function modelCovarianceOf(report: SpreadReport): Map<string, ModelCovariance> {
+  return new Map(report.sightlines.map((s) => [s.sightline, { keys: s.quantities.map((q) => q.key), matrix: Float64Array.from(s.covariance.flat()) }]));
+}
+
+/** a(time) - b(time), linear in log10 time between the given times, held at the ends. */
+function interpolateLogTime(timesYr: readonly number[], a: readonly number[], b: readonly number[], time: number): number {
+  const n = timesYr.length;
+  if (!(time > timesYr[0])) return a[0] - b[0];
+  if (!(time < timesYr[n - 1])) return a[n - 1] - b[n - 1];
+  let k = 0;
+  while (timesYr[k + 1] < time) k++;
+  const w = Math.log10(time / timesYr[k]) / Math.log10(timesYr[k + 1] / timesYr[k]);
+  return (1 - w) * (a[k] - b[k]) + w * (a[k + 1] - b[k + 1]);
 }
 
 /** The best-fit tracks with the realizations' 68 % band, and each sightline's chi^2 sensitivity, as the report takes them. */
@@ -182,8 +236,17 @@ export function spreadForReport(tracks: ModelTrack[], report: SpreadReport | und
   const banded = tracks.map((t) => {
     const s = bySightline.get(t.sightline);
     const q = s?.quantities.find((x) => x.label === t.label);
-    if (!s || !q || t.role !== 'best' || t.modelId !== s.modelId) return t;
-    return { ...t, band: { lo: q.lo, hi: q.hi, realizations: s.realizations } };
+    if (!s || !q || t.role !== 'best') return t;
+    if (t.modelId === s.modelId) return { ...t, band: { lo: q.lo, hi: q.hi, realizations: s.realizations } };
+    // A best fit between grid values: the nearest grid model's spread about its median, interpolated in log time to the track's times and centred on the track.
+    const lo: number[] = [];
+    const hi: number[] = [];
+    t.timesYr.forEach((time, i) => {
+      const v = t.log10[i];
+      lo.push(v === null ? NaN : v + interpolateLogTime(s.timesYr, q.lo, q.median, time));
+      hi.push(v === null ? NaN : v + interpolateLogTime(s.timesYr, q.hi, q.median, time));
+    });
+    return { ...t, band: { lo, hi, realizations: s.realizations, nearestModel: s.modelId } };
   });
   const sensitivity = report.sightlines.map((s) => ({
     sightline: s.sightline,

@@ -9,7 +9,8 @@ import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { afterAll, describe, expect, it } from 'vitest';
 import { executeRun } from '../../src/pipeline/execute.ts';
-import type { SpreadReport } from '../../src/pipeline/realizations.ts';
+import { nearestGridModel, nearestTimeIndex, type SpreadReport } from '../../src/pipeline/realizations.ts';
+import type { GridPlan } from '../../src/grid/plan.ts';
 import type { FitStageResult } from '../../src/fit/types.ts';
 
 const FIXTURES = join(import.meta.dirname, 'fixtures');
@@ -34,6 +35,19 @@ async function run(dir: string): Promise<{ code: number; out: string; err: strin
   return { code, out, err };
 }
 
+describe('the grid model and time nearest a best fit between grid values', () => {
+  it('picks the node nearest in log10 of each parameter, and the output time nearest in log10', () => {
+    const points = [1e3, 1e4, 1e5].flatMap((density, i) => [5, 10].map((av, j) => ({ id: `g${i}${j}`, index: 2 * i + j, conditions: { density, visual_extinction: av } })));
+    const plan = { points } as unknown as GridPlan;
+    // 10^3.4 is nearer 10^3 than 10^4 in log; A_V 8 nearer 10 than 5 (differences in log: 0.097 vs 0.204).
+    expect(nearestGridModel(plan, { density: 10 ** 3.4, visual_extinction: 8 })).toBe('g01');
+    expect(nearestGridModel(plan, { density: 10 ** 3.6, visual_extinction: 6 })).toBe('g10');
+    expect(nearestTimeIndex([1e3, 1e4, 1e5], 3e3)).toBe(0);
+    expect(nearestTimeIndex([1e3, 1e4, 1e5], 3.3e3)).toBe(1);
+    expect(nearestTimeIndex([1e3, 1e4, 1e5], 1e7)).toBe(2);
+  });
+});
+
 describe('realizations at the best fits in a pipeline run', () => {
   it('writes the spread and every coefficient, draws bands and the sensitivity figure, and refits with the spread', async () => {
     const dir = project('\nrealizations: { count: 5, seed: 3 }\n');
@@ -46,7 +60,10 @@ describe('realizations at the best fits in a pipeline run', () => {
     expect(spread.sightlines.map((s) => s.sightline)).toEqual(fit.fits.map((f) => f.sightline));
     for (const s of spread.sightlines) {
       const f = fit.fits.find((x) => x.sightline === s.sightline)!;
-      expect(s.modelId).toBe(f.best.modelId);
+      // A best fit on the refined mesh (id `~...`, between grid values) has its realizations run at the nearest grid model and output time.
+      if (f.best.modelId.startsWith('~')) expect(s.modelId.startsWith('~')).toBe(false);
+      else expect(s.modelId).toBe(f.best.modelId);
+      expect(Math.abs(Math.log10(s.ageYr / f.best.ageYr))).toBeLessThanOrEqual(0.5 * Math.log10(s.timesYr[1] / s.timesYr[0]) + 1e-12);
       expect(s.realizations).toBe(5);
       expect(s.quantities.map((q) => q.label)).toEqual(f.residuals.map((r) => r.label));
       for (const q of s.quantities) {
@@ -68,6 +85,8 @@ describe('realizations at the best fits in a pipeline run', () => {
     expect(html).toMatch(/What the fit of/);
     const trackSpec = readFileSync(join(out, 'report/figures', readFileSync(join(out, 'report/index.html'), 'utf8').match(/figures\/(tracks[^"]*?)\.vl\.json/)![1] + '.vl.json'), 'utf8');
     expect(trackSpec).toMatch(/"type": "area"/);
+    // Best fits between grid values get the nearest grid model's band, centred on their track, and the caption says so.
+    if (fit.fits.some((f) => f.best.modelId.startsWith('~'))) expect(html).toMatch(/the range of the nearest grid model, centred on the track/);
     expect(existsSync(join(out, 'store/realizations.sqlite'))).toBe(true);
 
     // The spread into the fit: with 'spread' every quantity's floor is its spread at the best fit.
@@ -81,10 +100,17 @@ describe('realizations at the best fits in a pipeline run', () => {
     const s0 = spread.sightlines[0];
     const r0 = refit.fits.find((f) => f.sightline === s0.sightline)!;
     const d0 = r0.residuals.find((r) => r.kind === 'detection' && r.label === s0.quantities[0].label);
-    if (d0) {
-      const obsSigma = d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex;
-      expect(d0.sigmaDex).toBeCloseTo(Math.hypot(obsSigma, s0.quantities[0].sdDexAtBest), 9);
-    }
     expect(d0).toBeDefined();
+    if (d0) {
+      // The model variance is the realizations' (their covariance's diagonal), with the interpolation error of the refined mesh kept in quadrature.
+      const interpolation = refit.interpolation?.errorDex[d0.label] ?? 0;
+      const model2 = s0.covariance[0][0] + interpolation ** 2;
+      const detections = r0.residuals.filter((r) => r.kind === 'detection').length;
+      // Two or more detections covary through the realizations (their covariance has off-diagonal terms): the width shown is the symmetrised one of the whitened sum.
+      const obs2 = detections > 1 ? 0.5 * (d0.sigmaLoDex ** 2 + d0.sigmaHiDex ** 2) : (d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex) ** 2;
+      expect(d0.sigmaDex).toBeCloseTo(Math.sqrt(obs2 + model2), 9);
+    }
+    // The off-diagonal covariance of the realizations is not zero where two quantities were fitted (so it reaches the chi^2).
+    expect(spread.sightlines.some((s) => s.covariance.length > 1 && s.covariance[0][1] !== 0)).toBe(true);
   }, 240_000);
 });
