@@ -102,6 +102,20 @@ export function logCovariance(values: readonly Float64Array[]): Float64Array {
   return c;
 }
 
+/**
+ * One sightline's model values at its best fit over the realizations:
+ * values[i][a] is log10 of quantity term keys[a] in realization
+ * realizations[i]. Realization r draws every rate once for all sightlines
+ * (physics.md section 13), so two sightlines' values covary through the
+ * realizations they have in common: the systematic model error of a joint
+ * group.
+ */
+export interface RealizationLogs {
+  keys: readonly string[];
+  realizations: readonly number[];
+  values: readonly Float64Array[];
+}
+
 /** How the model's own uncertainty of a quantity enters sigma_j^2 (a fit option). */
 export type ModelUncertaintyMode = 'floor' | 'spread' | 'spread-and-floor';
 

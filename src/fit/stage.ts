@@ -14,12 +14,12 @@ import { MODEL_CAUTIONS } from './cautions.ts';
 import type { FitContext, FitOptions } from './context.ts';
 import { fitSightline } from './fit-sightline.ts';
 import { holdParameters } from './held.ts';
-import { fitJoint } from './joint.ts';
+import { fitJoint, type JointModelCovariance } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
 import { buildModelQuantities, collectTerms, termKey, type ModelQuantities, type QuantityTerm } from './model-quantities.ts';
 import { interpolationError, refinableAxes, refinedSize, refineTable } from './refine.ts';
-import { modelSigmaDex, type ModelUncertaintyMode } from './model-spread.ts';
-import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
+import { logCovariance, modelSigmaDex, type ModelUncertaintyMode, type RealizationLogs } from './model-spread.ts';
+import { buildObservationVector, detectionCovariance, usedCount, type ObservationVector } from './observation-vector.ts';
 import { PAIR_PARAMETERS, regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
 import {
@@ -78,6 +78,14 @@ export interface FitStageInput {
    * and of the global `modelCovariance`; floor ignores it.
    */
   sightlineModelCovariance?: ReadonlyMap<string, ModelCovariance>;
+  /**
+   * Per sightline id: its quantity terms' log10 at its best fit in each
+   * realization (model-spread.ts). With fit.model_uncertainty spread or
+   * spread-and-floor, a joint group whose members all have them takes the
+   * model covariance between members from their common realizations, in
+   * place of the floor's shared part alone (docs/statistics.md section 6).
+   */
+  realizationLogs?: ReadonlyMap<string, RealizationLogs>;
 }
 
 export interface FitStageOutput {
@@ -268,6 +276,59 @@ function withModelSpread(
   return { ...options, termModelSigmaDex: perTerm };
 }
 
+/**
+ * A joint group's model covariance from the realizations (joint.ts
+ * JointModelCovariance): each member's own block as its fit has it, and
+ * between members the sample covariance of their model values over the
+ * realizations they have in common, plus for spread-and-floor the floor's
+ * shared part between the same term of two members. Undefined (the floor's
+ * shared part alone, with a warning) when a member has no realizations or
+ * fewer than two are common.
+ */
+function jointModelCovariance(
+  members: readonly ObservationVector[],
+  terms: readonly QuantityTerm[],
+  widthsById: ReadonlyMap<string, FitOptions>,
+  logs: ReadonlyMap<string, RealizationLogs> | undefined,
+  options: FitOptions,
+  floors: ReadonlyMap<string, number>,
+  mode: ModelUncertaintyMode,
+  name: string,
+  warnings: string[],
+): JointModelCovariance | undefined {
+  if (logs === undefined) return undefined;
+  const missing = members.filter((m) => !logs.has(m.sightline)).map((m) => m.sightline);
+  if (missing.length > 0) {
+    warnings.push(`joint group ${name}: no realizations at the best fit of ${missing.join(', ')}: the model error shared by the members is the floor's shared part (fit.model_sigma_shared_dex), not the realizations' covariance.`);
+    return undefined;
+  }
+  const memberLogs = members.map((m) => logs.get(m.sightline)!);
+  const rowOf = memberLogs.map((l) => new Map(l.realizations.map((r, i) => [r, i])));
+  const common = memberLogs[0].realizations.filter((r) => rowOf.every((rows) => rows.has(r)));
+  if (common.length < 2) {
+    warnings.push(`joint group ${name}: its members have ${common.length} realization(s) in common: the model error shared by the members is the floor's shared part (fit.model_sigma_shared_dex), not the realizations' covariance.`);
+    return undefined;
+  }
+  // Each detection's column in its member's realization values (-1: a term without realizations, constant 0, so it covaries with nothing).
+  const columns = members.flatMap((m, k) => Array.from(m.detections, (j) => memberLogs[k].keys.indexOf(terms[j].key)));
+  const memberOf = members.flatMap((m, k) => Array.from(m.detections, () => k));
+  const termOf = members.flatMap((m) => Array.from(m.detections));
+  const d = columns.length;
+  const vectors = common.map((r) => Float64Array.from({ length: d }, (_, a) => (columns[a] < 0 ? 0 : memberLogs[memberOf[a]].values[rowOf[memberOf[a]].get(r)!][columns[a]])));
+  const between = logCovariance(vectors);
+  if (mode === 'spread-and-floor') {
+    for (let a = 0; a < d; a++) {
+      for (let b = 0; b < d; b++) {
+        if (memberOf[a] === memberOf[b] || termOf[a] !== termOf[b]) continue;
+        const shared = Math.min(options.sharedModelSigmaDex, floors.get(terms[termOf[a]].key) ?? options.modelSigmaDex);
+        between[a * d + b] += shared * shared;
+      }
+    }
+  }
+  const blocks = members.map((m) => detectionCovariance(m, terms, widthsById.get(m.sightline) ?? options));
+  return { blocks, between };
+}
+
 export function fitOptions(section: FitSection): FitOptions {
   return {
     modelSigmaDex: section.model_sigma_dex,
@@ -404,6 +465,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     else byId.set(q.sightline, [q]);
   }
   const vectors: ObservationVector[] = [];
+  const widthsById = new Map<string, FitOptions>();
   const warnings: string[] = [...observations.warnings, ...refineWarnings];
   const unfitted: string[] = [];
   const isMap = observations.kind === 'map';
@@ -414,6 +476,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     const widths = withModelSpread(options, terms, section.model_uncertainty, input.modelSpread?.get(s.id), input.sightlineModelCovariance?.get(s.id), userFloors, interpolationDex);
     if (widths !== options) checkSpreadWidths(s.id, byId.get(s.id) ?? [], terms, widths, section, source);
     const v = buildSpreadVector(s.id, byId.get(s.id) ?? [], terms, widths, widths !== options, section, source);
+    widthsById.set(s.id, widths);
     if (usedCount(v) === 0) {
       unfitted.push(s.id);
       continue;
@@ -477,7 +540,14 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     });
     if (members.length < 2 && problems.length === 0) problems.push(located(source, ['fit', 'joint', i, 'sightlines'], `group ${g.name} needs at least two fitted sightlines, found ${members.length}.`));
     throwProblems(problems, `joint group ${g.name}:`);
-    const out = fitJoint(ctx, g.name, members, g.share);
+    const realizations = section.model_uncertainty === 'floor' ? undefined : jointModelCovariance(members, terms, widthsById, input.realizationLogs, options, userFloors, section.model_uncertainty, g.name, warnings);
+    let out: ReturnType<typeof fitJoint>;
+    try {
+      out = fitJoint(ctx, g.name, members, g.share, realizations);
+    } catch (e) {
+      if (realizations === undefined || !(e instanceof RangeError) || !/not positive definite/.test(e.message)) throw e;
+      throw located(source, ['fit', 'joint', i], `joint group ${g.name}: the covariance of its members' detections with the realizations' model covariance (fit.model_uncertainty: ${section.model_uncertainty}) is singular. Give every detection its error, use spread-and-floor with fit.model_sigma_dex above 0, or run more realizations (realizations.count).`);
+    }
     if (!Number.isFinite(out.fit.chi2)) {
       throw located(source, ['fit', 'joint', i], `the members of group ${g.name} have no common value of ${g.share.join(' and ')} among the models open to them (held parameters differ); share another parameter or split the group.`);
     }

@@ -367,7 +367,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       writeOutput(outDir, SENSITIVITY_TOP_CSV, toCsv(SENSITIVITY_CSV_HEADER, r.csvRows.filter((row) => (row[3] as number) <= TOP_REACTIONS)));
       outputs.push(SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV);
       // One pass: the spread and covariance at the floor fit's best fits widen and correlate each sightline's quantities, and the fit is made again with them.
-      if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread), sightlineModelCovariance: modelCovarianceOf(spread) });
+      if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread), sightlineModelCovariance: modelCovarianceOf(spread), realizationLogs: r.logs });
     } else {
       if (realizations) stageNotes.push('realizations: not run: they run at the best fits of sightlines, and this fit has none (a map is fitted pixel by pixel; see docs/uncertainty.md section 8).');
       // A spread of an earlier run without realizations now would be read back as this run's.

@@ -15,7 +15,7 @@ import type { RealizationsSection } from '../config/sections/realizations.ts';
 import { censoredCost } from '../fit/censored.ts';
 import type { ModelCovariance } from '../fit/covariance.ts';
 import { termKey } from '../fit/model-quantities.ts';
-import { log10Abundance, logCovariance, logSpread } from '../fit/model-spread.ts';
+import { log10Abundance, logCovariance, logSpread, type RealizationLogs } from '../fit/model-spread.ts';
 import { chanceCoefficient, rankReactions } from '../fit/sensitivity.ts';
 import type { FitStageResult, QuantityScore } from '../fit/types.ts';
 import type { GridPlan } from '../grid/plan.ts';
@@ -78,6 +78,8 @@ export interface SpreadAtBestFits {
   /** Every coefficient: sightline, quantity (or chi2), age, rank, reaction, equation, law, F, coefficient. */
   csvRows: (string | number)[][];
   run: GridRunResult;
+  /** Per sightline: its quantities' log10 at the best fit in each realization (kept in memory for the joint groups' covariance between members; not in spread.json). */
+  logs: Map<string, RealizationLogs>;
 }
 
 export const SENSITIVITY_CSV_HEADER = ['sightline', 'quantity', 'age_yr', 'rank', 'reaction', 'equation', 'law', 'uncertainty_factor', 'coefficient'];
@@ -124,6 +126,7 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     });
 
   const csvRows: (string | number)[][] = [];
+  const logs = new Map<string, RealizationLogs>();
   let realizationsUsed = section.count;
   const sightlines: SightlineSpread[] = fits.map((f) => {
     const modelId = nodeOf.get(f.sightline)!;
@@ -148,6 +151,7 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
       return { label: q.label, key: termKey(q.numerator, q.denominator), lo: Array.from(s.lo), median: Array.from(s.median), hi: Array.from(s.hi), sdDex: Array.from(s.sd), sdDexAtBest: s.sd[t], top: top.slice(0, TOP_REACTIONS) };
     });
     const atBest = set.abundances.map((_, r) => Float64Array.from(quantityLogs, (l) => l[r][t]));
+    logs.set(f.sightline, { keys: quantities.map((x) => x.key), realizations: set.realizations, values: atBest });
     const cov = logCovariance(atBest);
     const m = f.residuals.length;
     const chi2 = atBest.map((v) => chi2Of(f.residuals, Array.from(v)));
@@ -172,6 +176,7 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     report: { format: SPREAD_FORMAT, count: section.count, seed: section.seed, method: section.method, chanceCoefficient: Number.isFinite(chance) ? chance : null, sightlines },
     csvRows,
     run,
+    logs,
   };
 }
 

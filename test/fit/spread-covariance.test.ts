@@ -121,3 +121,53 @@ describe("the realizations' covariance in a sightline's chi^2", () => {
     expect(fit({ model_uncertainty: 'spread-and-floor', model_sigma_dex: 0.3 }, tied, zero).best.chi2).toBeGreaterThanOrEqual(0);
   });
 });
+
+describe("a joint group's shared model error from the realizations", () => {
+  // Each realization draws every rate once for all sightlines (physics.md section 13), so the members' model values covary across sightlines: the tiny network at two ages.
+  function memberLogs(count: number, seed: number, t: number): Float64Array[] {
+    const random = seededRandom(seed);
+    return Array.from({ length: count }, () => {
+      const k1 = 1e-5 * 10 ** (gaussian(random) * Math.log10(3));
+      const k2 = 3e-6 * 10 ** (gaussian(random) * Math.log10(2));
+      const done = 1 - Math.exp(-(k1 + k2) * t);
+      return Float64Array.of(Math.log10((k1 / (k1 + k2)) * done), Math.log10((k2 / (k1 + k2)) * done));
+    });
+  }
+  const members = ['a', 'b'];
+  const ids = Array.from({ length: 60 }, (_, r) => r);
+  // Same seed: the same draws of k1, k2 in realization r for both members.
+  const logsOf = new Map([
+    ['a', { keys: KEYS, realizations: ids, values: memberLogs(60, 21, 3e4) }],
+    ['b', { keys: KEYS, realizations: ids, values: memberLogs(60, 21, 3e5) }],
+  ]);
+  const q = [detection('a', 'H2O(s)', -4.2, 0.1), detection('a', 'CO(s)', -4.9, 0.15), detection('b', 'H2O(s)', -4.1, 0.1), detection('b', 'CO(s)', -4.7, 0.12)];
+  const jointSection = (mode: string) =>
+    fitSection.parse({ quantities: KEYS.map((species) => ({ species, as: 'abundance' })), refine: 1, model_uncertainty: mode, model_sigma_dex: 0.3, joint: [{ name: 'g', sightlines: 'all', share: ['density', 'age_yr'] }] });
+
+  for (const mode of ['spread', 'spread-and-floor'] as const) {
+    it(`${mode}: the group's chi^2 equals the dense r^T C^-1 r with the realizations' covariance between and within members`, () => {
+      const sightlineModelCovariance = new Map([...logsOf].map(([id, l]) => [id, { keys: KEYS, matrix: logCovariance(l.values) }]));
+      const out = runFitStage({ table, section: jointSection(mode), observations: observationSet(members), quantities: q, sightlineModelCovariance, realizationLogs: logsOf });
+      const j = out.result.joint[0];
+      // Both members share density and age: one candidate.
+      const candidate = j.memberFits[0].best.modelIndex * table.nTimes + j.memberFits[0].best.timeIndex;
+      const nS = table.nSpecies;
+      const r = q.map((x) => Math.log10(table.abundances[candidate * nS + table.species.indexOf(x.numerator)]) - x.log10);
+      const all = ids.map((k) => Float64Array.of(...logsOf.get('a')!.values[k], ...logsOf.get('b')!.values[k]));
+      const model = logCovariance(all);
+      const floor2 = mode === 'spread-and-floor' ? 0.09 : 0;
+      const shared2 = mode === 'spread-and-floor' ? (0.3 / Math.SQRT2) ** 2 : 0;
+      const c = q.map((x, a) =>
+        q.map((y, b) => {
+          let v = model[a * 4 + b];
+          if (a === b) v += x.sigmaLoDex ** 2 + floor2;
+          else if (x.sightline !== y.sightline && x.numerator === y.numerator) v += shared2;
+          return v;
+        }),
+      );
+      expect(j.chi2).toBeCloseTo(denseChiSquare(c, r), 9);
+      // The cross-member covariance matters here: without it (each member alone) chi^2 differs.
+      expect(j.chi2).not.toBeCloseTo(j.memberFits.reduce((s, m) => s + m.chi2, 0), 3);
+    });
+  }
+});

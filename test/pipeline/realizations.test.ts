@@ -90,7 +90,7 @@ describe('realizations at the best fits in a pipeline run', () => {
     expect(existsSync(join(out, 'store/realizations.sqlite'))).toBe(true);
 
     // The spread into the fit: with 'spread' every quantity's floor is its spread at the best fit.
-    const text = readFileSync(join(dir, 'tiny-pipeline.yaml'), 'utf8').replace(/^fit:\n/m, 'fit:\n  model_uncertainty: spread\n');
+    const text = readFileSync(join(dir, 'tiny-pipeline.yaml'), 'utf8').replace(/^fit:\n/m, 'fit:\n  model_uncertainty: spread\n  joint: [{ name: all-stars, sightlines: all, share: [density] }]\n');
     expect(text).toMatch(/model_uncertainty: spread/);
     writeFileSync(join(dir, 'tiny-pipeline.yaml'), text);
     const second = await run(dir);
@@ -110,6 +110,11 @@ describe('realizations at the best fits in a pipeline run', () => {
       const obs2 = detections > 1 ? 0.5 * (d0.sigmaLoDex ** 2 + d0.sigmaHiDex ** 2) : (d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex) ** 2;
       expect(d0.sigmaDex).toBeCloseTo(Math.sqrt(obs2 + model2), 9);
     }
+    // The joint group takes the model error between its members from their common realizations (no fallback to the floor's shared part).
+    expect(refit.joint).toHaveLength(1);
+    expect(Number.isFinite(refit.joint[0].chi2)).toBe(true);
+    expect(refit.warnings.join('\n')).not.toMatch(/not the realizations' covariance/);
+    expect(refit.joint[0].chi2).not.toBeCloseTo(refit.joint[0].memberFits.reduce((sum, m) => sum + m.chi2, 0), 6);
     // The off-diagonal covariance of the realizations is not zero where two quantities were fitted (so it reaches the chi^2).
     expect(spread.sightlines.some((s) => s.covariance.length > 1 && s.covariance[0][1] !== 0)).toBe(true);
   }, 240_000);
