@@ -13,7 +13,7 @@ import { chiSquarePValue } from './chi-square.ts';
 import type { FitContext } from './context.ts';
 import { edgeWarnings, fittedParameterCount, quantityCounts } from './fit-sightline.ts';
 import { intervalFromProfile } from './intervals.ts';
-import type { ObservationVector } from './observation-vector.ts';
+import type { ObservationVector, ScoringWidths } from './observation-vector.ts';
 import { profileFromMinima } from './profiles.ts';
 import { scoreCandidates } from './score.ts';
 import { censoredCost } from './censored.ts';
@@ -61,7 +61,17 @@ export interface JointModelCovariance {
   between: Float64Array;
 }
 
-export function fitJoint(ctx: FitContext, name: string, members: readonly ObservationVector[], shared: readonly string[], modelCovariance?: JointModelCovariance): JointFitOutput {
+/** How a group's model error is shared (the stage sets it from fit.model_uncertainty; a plain floor fit needs none of it). */
+export interface JointModelError {
+  /** The realizations' covariance between members (spread modes with realizations at every member's best fit). */
+  modelCovariance?: JointModelCovariance;
+  /** Each member's scoring widths as its own fit had them (spread modes); default: the fit options. */
+  memberWidths?: readonly ScoringWidths[];
+  /** False: no floor part is shared (fit.model_uncertainty spread uses no floor). Default true. */
+  sharedFloor?: boolean;
+}
+
+export function fitJoint(ctx: FitContext, name: string, members: readonly ObservationVector[], shared: readonly string[], modelError: JointModelError = {}): JointFitOutput {
   const { table, axes, options } = ctx;
   const sharedAxes: Axis[] = shared.map((s) => axes.byName.get(s)!);
   const strides = new Int32Array(sharedAxes.length);
@@ -95,8 +105,8 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
     memberMin.push(mins);
     memberArg.push(args);
   }
-  if (modelCovariance !== undefined) denseModelError(ctx, members, memberArg, total, modelCovariance);
-  else if (ctx.options.sharedModelSigmaDex > 0) sharedModelError(ctx, members, memberArg, total);
+  if (modelError.modelCovariance !== undefined) denseModelError(ctx, members, memberArg, total, modelError.modelCovariance);
+  else if (ctx.options.sharedModelSigmaDex > 0 && modelError.sharedFloor !== false) sharedModelError(ctx, members, memberArg, total, modelError.memberWidths);
   let bestKey = 0;
   for (let k = 1; k < nKeys; k++) if (total[k] < total[bestKey]) bestKey = k;
   const chi2Best = total[bestKey];
@@ -196,15 +206,15 @@ function solveCholesky(l: Float64Array, n: number, b: Float64Array): void {
  * group's chi^2 at that value is then recomputed, limits added as they were.
  * Overwrites `total`.
  */
-function sharedModelError(ctx: FitContext, members: readonly ObservationVector[], memberArg: readonly Int32Array[], total: Float64Array): void {
+function sharedModelError(ctx: FitContext, members: readonly ObservationVector[], memberArg: readonly Int32Array[], total: Float64Array, memberWidths?: readonly ScoringWidths[]): void {
   const terms = ctx.model.terms;
   const nTerms = terms.length;
   const values = ctx.model.values;
   const sharedSigma = Float64Array.from(terms, (t) => Math.min(ctx.options.sharedModelSigmaDex, ctx.options.termModelSigmaDex?.get(t.key) ?? ctx.options.modelSigmaDex));
-  const blocks = members.map((obs) => {
+  const blocks = members.map((obs, mi) => {
     const nd = obs.detections.length;
     // The member's own block keeps the independent part of the floor: U S U^T adds the shared part back on its diagonal.
-    const own = detectionCovariance(obs, terms, ctx.options);
+    const own = detectionCovariance(obs, terms, memberWidths?.[mi] ?? ctx.options);
     for (let a = 0; a < nd; a++) own[a * nd + a] -= sharedSigma[obs.detections[a]] ** 2;
     const l = choleskyLower(own, nd);
     if (l === undefined) throw new RangeError(`the covariance of the detections of ${obs.sightline} is not positive definite`);

@@ -297,16 +297,20 @@ function jointModelCovariance(
   warnings: string[],
 ): JointModelCovariance | undefined {
   if (logs === undefined) return undefined;
+  const fallback =
+    mode === 'spread'
+      ? "no model error is shared by the members (fit.model_uncertainty: spread has no floor to share), so an error the rates make for all of them shrinks with their number; not the realizations' covariance. Run realizations at every member (realizations.sightlines)."
+      : "the model error shared by the members is the floor's shared part (fit.model_sigma_shared_dex), not the realizations' covariance. Run realizations at every member (realizations.sightlines).";
   const missing = members.filter((m) => !logs.has(m.sightline)).map((m) => m.sightline);
   if (missing.length > 0) {
-    warnings.push(`joint group ${name}: no realizations at the best fit of ${missing.join(', ')}: the model error shared by the members is the floor's shared part (fit.model_sigma_shared_dex), not the realizations' covariance.`);
+    warnings.push(`joint group ${name}: no realizations at the best fit of ${missing.join(', ')}: ${fallback}`);
     return undefined;
   }
   const memberLogs = members.map((m) => logs.get(m.sightline)!);
   const rowOf = memberLogs.map((l) => new Map(l.realizations.map((r, i) => [r, i])));
   const common = memberLogs[0].realizations.filter((r) => rowOf.every((rows) => rows.has(r)));
   if (common.length < 2) {
-    warnings.push(`joint group ${name}: its members have ${common.length} realization(s) in common: the model error shared by the members is the floor's shared part (fit.model_sigma_shared_dex), not the realizations' covariance.`);
+    warnings.push(`joint group ${name}: its members have ${common.length} realization(s) in common: ${fallback}`);
     return undefined;
   }
   // Each detection's column in its member's realization values (-1: a term without realizations, constant 0, so it covaries with nothing).
@@ -543,7 +547,12 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     const realizations = section.model_uncertainty === 'floor' ? undefined : jointModelCovariance(members, terms, widthsById, input.realizationLogs, options, userFloors, section.model_uncertainty, g.name, warnings);
     let out: ReturnType<typeof fitJoint>;
     try {
-      out = fitJoint(ctx, g.name, members, g.share, realizations);
+      out = fitJoint(ctx, g.name, members, g.share, {
+        modelCovariance: realizations,
+        memberWidths: members.map((m) => widthsById.get(m.sightline) ?? options),
+        // fit.model_uncertainty spread uses no floor, so there is no floor part to share; the realizations give the shared error where they ran.
+        sharedFloor: section.model_uncertainty !== 'spread',
+      });
     } catch (e) {
       if (realizations === undefined || !(e instanceof RangeError) || !/not positive definite/.test(e.message)) throw e;
       throw located(source, ['fit', 'joint', i], `joint group ${g.name}: the covariance of its members' detections with the realizations' model covariance (fit.model_uncertainty: ${section.model_uncertainty}) is singular. Give every detection its error, use spread-and-floor with fit.model_sigma_dex above 0, or run more realizations (realizations.count).`);

@@ -144,6 +144,36 @@ describe("a joint group's shared model error from the realizations", () => {
   const jointSection = (mode: string) =>
     fitSection.parse({ quantities: KEYS.map((species) => ({ species, as: 'abundance' })), refine: 1, model_uncertainty: mode, model_sigma_dex: 0.3, joint: [{ name: 'g', sightlines: 'all', share: ['density', 'age_yr'] }] });
 
+  const ownCovariance = new Map([...logsOf].map(([id, l]) => [id, { keys: KEYS, matrix: logCovariance(l.values) }]));
+
+  it('without realizations between members, spread-and-floor keeps the members\' own widths (spread and floor) and the floor\'s shared part between them', () => {
+    const j = runFitStage({ table, section: jointSection('spread-and-floor'), observations: observationSet(members), quantities: q, sightlineModelCovariance: ownCovariance }).result.joint[0];
+    const candidate = j.memberFits[0].best.modelIndex * table.nTimes + j.memberFits[0].best.timeIndex;
+    const r = q.map((x) => Math.log10(table.abundances[candidate * table.nSpecies + table.species.indexOf(x.numerator)]) - x.log10);
+    const shared2 = (0.3 / Math.SQRT2) ** 2;
+    const c = q.map((x, a) =>
+      q.map((y, b) => {
+        if (x.sightline === y.sightline) {
+          const m = ownCovariance.get(x.sightline)!.matrix;
+          return m[KEYS.indexOf(x.numerator) * 2 + KEYS.indexOf(y.numerator)] + (a === b ? x.sigmaLoDex ** 2 + 0.09 : 0);
+        }
+        return x.numerator === y.numerator ? shared2 : 0;
+      }),
+    );
+    expect(j.chi2).toBeCloseTo(denseChiSquare(c, r), 9);
+  });
+
+  it('without realizations between members, spread has no floor to share: the group\'s chi^2 is the sum of the members\' own', () => {
+    const j = runFitStage({ table, section: jointSection('spread'), observations: observationSet(members), quantities: q, sightlineModelCovariance: ownCovariance }).result.joint[0];
+    expect(j.chi2).toBeCloseTo(j.memberFits.reduce((sum, m) => sum + m.chi2, 0), 10);
+  });
+
+  it('a member without realizations: the group says what it fell back to', () => {
+    const out = runFitStage({ table, section: jointSection('spread'), observations: observationSet(members), quantities: q, sightlineModelCovariance: ownCovariance, realizationLogs: new Map([['a', logsOf.get('a')!]]) }).result;
+    expect(out.warnings.join('\n')).toMatch(/joint group g: no realizations at the best fit of b: no model error is shared/);
+    expect(out.joint[0].chi2).toBeCloseTo(out.joint[0].memberFits.reduce((sum, m) => sum + m.chi2, 0), 10);
+  });
+
   for (const mode of ['spread', 'spread-and-floor'] as const) {
     it(`${mode}: the group's chi^2 equals the dense r^T C^-1 r with the realizations' covariance between and within members`, () => {
       const sightlineModelCovariance = new Map([...logsOf].map(([id, l]) => [id, { keys: KEYS, matrix: logCovariance(l.values) }]));
