@@ -9,7 +9,8 @@ import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { afterAll, describe, expect, it } from 'vitest';
 import { executeRun } from '../../src/pipeline/execute.ts';
-import { nearestGridModel, nearestTimeIndex, type SpreadReport } from '../../src/pipeline/realizations.ts';
+import { nearestGridModel, nearestTimeIndex, spreadForReport, type SpreadReport } from '../../src/pipeline/realizations.ts';
+import type { ModelTrack } from '../../src/report/types.ts';
 import type { GridPlan } from '../../src/grid/plan.ts';
 import type { FitStageResult } from '../../src/fit/types.ts';
 
@@ -45,6 +46,43 @@ describe('the grid model and time nearest a best fit between grid values', () =>
     expect(nearestTimeIndex([1e3, 1e4, 1e5], 3e3)).toBe(0);
     expect(nearestTimeIndex([1e3, 1e4, 1e5], 3.3e3)).toBe(1);
     expect(nearestTimeIndex([1e3, 1e4, 1e5], 1e7)).toBe(2);
+  });
+});
+
+describe('the band of a best fit between grid values', () => {
+  it("is the nearest grid model's spread about its median, interpolated in log time and centred on the track", () => {
+    const report = {
+      format: 'hoarfrost-spread/1',
+      count: 4,
+      seed: 1,
+      method: 'pearson',
+      chanceCoefficient: null,
+      sightlines: [
+        {
+          sightline: 's',
+          modelId: 'g1',
+          ageYr: 1e5,
+          timesYr: [1e4, 1e5, 1e6],
+          realizations: 4,
+          missing: 0,
+          quantities: [{ label: 'X(CO)', key: 'CO', lo: [-5.2, -5.5, -6], median: [-5, -5.1, -5.4], hi: [-4.9, -4.9, -5], sdDex: [0.1, 0.2, 0.3], sdDexAtBest: 0.2, top: [] }],
+          covariance: [[0.04]],
+          chi2: { median: 1, lo: 0.5, hi: 2, top: [] },
+        },
+      ],
+    } as unknown as SpreadReport;
+    const track = { sightline: 's', label: 'X(CO)', modelId: '~g1', role: 'best', timesYr: [1e4, 10 ** 4.5, 1e6, 1e7], log10: [-4.8, -4.9, null, -5.5] } as unknown as ModelTrack;
+    const [out] = spreadForReport([track], report).tracks;
+    expect(out.band?.nearestModel).toBe('g1');
+    // At 1e4: -4.8 + (-5.2 + 5) = -5.0; at 10^4.5, halfway in log time: offsets -0.3 (lo) and 0.15 (hi); past the last time the last offsets.
+    expect(out.band!.lo[0]).toBeCloseTo(-5.0, 12);
+    expect(out.band!.lo[1]).toBeCloseTo(-4.9 - 0.3, 12);
+    expect(out.band!.hi[1]).toBeCloseTo(-4.9 + 0.15, 12);
+    expect(out.band!.lo[2]).toBeNaN();
+    expect(out.band!.hi[3]).toBeCloseTo(-5.5 + 0.4, 12);
+    // A best fit on a grid model keeps the realizations' own band.
+    const [own] = spreadForReport([{ ...track, modelId: 'g1', timesYr: [1e4, 1e5, 1e6], log10: [-5, -5.1, -5.4] }], report).tracks;
+    expect(own.band).toEqual({ lo: [-5.2, -5.5, -6], hi: [-4.9, -4.9, -5], realizations: 4 });
   });
 });
 
