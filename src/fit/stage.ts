@@ -520,6 +520,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
 
   const joint: JointFit[] = [];
+  const fromRealizations = new Set<string>();
   const jointProfiles: SightlineProfiles[] = [];
   const vectorById = new Map(vectors.map((v) => [v.sightline, v]));
   section.joint.forEach((g, i) => {
@@ -560,6 +561,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     if (!Number.isFinite(out.fit.chi2)) {
       throw located(source, ['fit', 'joint', i], `the members of group ${g.name} have no common value of ${g.share.join(' and ')} among the models open to them (held parameters differ); share another parameter or split the group.`);
     }
+    if (realizations !== undefined) fromRealizations.add(g.name);
     joint.push(out.fit);
     jointProfiles.push(out.profiles);
   });
@@ -577,10 +579,23 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
   for (const j of joint) {
     if (!(j.pValue > SUSPICIOUSLY_GOOD_P && j.dof > 1)) continue;
-    j.warnings.push(
-      `joint group ${j.name}: chi2 = ${j.chi2.toFixed(2)} is far below its dof (${j.dof}; p = ${j.pValue.toFixed(3)}): the errors and the ${section.model_sigma_dex} dex model floor exceed the members' scatter about the models, so the regions are set by the floor, not by the data. ` +
-        `Of the floor, ${options.sharedModelSigmaDex.toFixed(2)} dex is one error shared by all ${j.members.length} members (fit.model_sigma_shared_dex), not reduced by their number; p near 1 does not show that the model is right, and a model error common to the members would not show in chi2.`,
-    );
+    const head = `joint group ${j.name}: chi2 = ${j.chi2.toFixed(2)} is far below its dof (${j.dof}; p = ${j.pValue.toFixed(3)}): `;
+    const tail = 'p near 1 does not show that the model is right, and a model error common to the members would not show in chi2.';
+    if (fromRealizations.has(j.name)) {
+      j.warnings.push(
+        head +
+          `the errors and the model uncertainty from the realizations${section.model_uncertainty === 'spread-and-floor' ? ` with the ${section.model_sigma_dex} dex floor` : ''} exceed the members' scatter about the models, so the regions are set by the model uncertainty, not by the data. ` +
+          `Between members the model error is the realizations' covariance (the same rates for every sightline), not reduced by their number; ${tail}`,
+      );
+    } else if (section.model_uncertainty === 'spread') {
+      j.warnings.push(head + `the errors and the realizations' spread exceed the members' scatter about the models, so the regions are set by the spread, not by the data. No model error is shared by the members here (no realizations at every member); ${tail}`);
+    } else {
+      j.warnings.push(
+        head +
+          `the errors and the ${section.model_sigma_dex} dex model floor exceed the members' scatter about the models, so the regions are set by the floor, not by the data. ` +
+          `Of the floor, ${options.sharedModelSigmaDex.toFixed(2)} dex is one error shared by all ${j.members.length} members (fit.model_sigma_shared_dex), not reduced by their number; ${tail}`,
+      );
+    }
   }
   for (const f of fits) warnings.push(...f.warnings);
   for (const j of joint) warnings.push(...j.warnings);

@@ -174,6 +174,17 @@ describe("a joint group's shared model error from the realizations", () => {
     expect(out.joint[0].chi2).toBeCloseTo(out.joint[0].memberFits.reduce((sum, m) => sum + m.chi2, 0), 10);
   });
 
+  it("a group far below its dof says that the realizations, not the floor, set the shared error", () => {
+    // Both members observed exactly at one candidate: chi^2 = 0, p = 1.
+    const c = 1 * table.nTimes + 2;
+    const exact = members.flatMap((id) => KEYS.map((k) => detection(id, k, Math.log10(table.abundances[c * table.nSpecies + table.species.indexOf(k)]), 0.1)));
+    const j = runFitStage({ table, section: jointSection('spread'), observations: observationSet(members), quantities: exact, sightlineModelCovariance: ownCovariance, realizationLogs: logsOf }).result.joint[0];
+    const text = j.warnings.join('\n');
+    expect(text).toMatch(/far below its dof/);
+    expect(text).toMatch(/realizations/);
+    expect(text).not.toMatch(/Of the floor/);
+  });
+
   for (const mode of ['spread', 'spread-and-floor'] as const) {
     it(`${mode}: the group's chi^2 equals the dense r^T C^-1 r with the realizations' covariance between and within members`, () => {
       const sightlineModelCovariance = new Map([...logsOf].map(([id, l]) => [id, { keys: KEYS, matrix: logCovariance(l.values) }]));
