@@ -34,8 +34,17 @@ export interface ModelCovariance {
 const ZERO_COVARIANCE = 0;
 
 /**
+ * A pivot below this fraction of its diagonal element counts as zero: what
+ * is left of it is round-off of a singular matrix (two quantities tied
+ * exactly), and its inverse would weigh round-off by 1e12 or more (common
+ * practice: a relative pivot tolerance in a Cholesky factorisation).
+ */
+const PIVOT_TOLERANCE = 1e-12;
+
+/**
  * The lower Cholesky factor of an n x n symmetric positive-definite matrix
- * (row-major), or undefined when it is not positive definite.
+ * (row-major), or undefined when it is not positive definite (or singular
+ * within round-off: PIVOT_TOLERANCE).
  */
 export function choleskyLower(c: ArrayLike<number>, n: number): Float64Array | undefined {
   const l = new Float64Array(n * n);
@@ -44,7 +53,7 @@ export function choleskyLower(c: ArrayLike<number>, n: number): Float64Array | u
       let sum = c[i * n + j];
       for (let k = 0; k < j; k++) sum -= l[i * n + k] * l[j * n + k];
       if (i === j) {
-        if (!(sum > 0)) return undefined;
+        if (!(sum > PIVOT_TOLERANCE * c[i * n + i])) return undefined;
         l[i * n + i] = Math.sqrt(sum);
       } else {
         l[i * n + j] = sum / l[j * n + j];

@@ -13,11 +13,11 @@ import { chiSquarePValue } from './chi-square.ts';
 import type { FitContext } from './context.ts';
 import { edgeWarnings, fittedParameterCount, quantityCounts } from './fit-sightline.ts';
 import { intervalFromProfile } from './intervals.ts';
-import type { ObservationVector } from './observation-vector.ts';
+import type { ObservationVector, ScoringWidths } from './observation-vector.ts';
 import { profileFromMinima } from './profiles.ts';
 import { scoreCandidates } from './score.ts';
 import { censoredCost } from './censored.ts';
-import { choleskyLower } from './covariance.ts';
+import { choleskyLower, whitenedChiSquare } from './covariance.ts';
 import { detectionCovariance } from './observation-vector.ts';
 import type { JointFit, JointMember, ParameterInterval, PosteriorSummary, Profile1D, SightlineProfiles } from './types.ts';
 
@@ -48,7 +48,30 @@ function determinedBy(independent: readonly Axis[], keyOfCandidate: Int32Array, 
     .map((axis) => axis.name);
 }
 
-export function fitJoint(ctx: FitContext, name: string, members: readonly ObservationVector[], shared: readonly string[]): JointFitOutput {
+/**
+ * The model covariance of a joint group from Monte Carlo realizations
+ * (docs/statistics.md section 6, docs/uncertainty.md section 4): each
+ * member's detections' covariance as its own fit has it, and the
+ * covariance between members' detections.
+ */
+export interface JointModelCovariance {
+  /** Per member: the covariance of its detections, nd x nd row-major (detectionCovariance with its own widths). */
+  blocks: readonly Float64Array[];
+  /** D x D over all members' detections in member order (D = the sum of nd); only entries between two different members are read, dex^2. */
+  between: Float64Array;
+}
+
+/** How a group's model error is shared (the stage sets it from fit.model_uncertainty; a plain floor fit needs none of it). */
+export interface JointModelError {
+  /** The realizations' covariance between members (spread modes with realizations at every member's best fit). */
+  modelCovariance?: JointModelCovariance;
+  /** Each member's scoring widths as its own fit had them (spread modes); default: the fit options. */
+  memberWidths?: readonly ScoringWidths[];
+  /** False: no floor part is shared (fit.model_uncertainty spread uses no floor). Default true. */
+  sharedFloor?: boolean;
+}
+
+export function fitJoint(ctx: FitContext, name: string, members: readonly ObservationVector[], shared: readonly string[], modelError: JointModelError = {}): JointFitOutput {
   const { table, axes, options } = ctx;
   const sharedAxes: Axis[] = shared.map((s) => axes.byName.get(s)!);
   const strides = new Int32Array(sharedAxes.length);
@@ -82,7 +105,8 @@ export function fitJoint(ctx: FitContext, name: string, members: readonly Observ
     memberMin.push(mins);
     memberArg.push(args);
   }
-  if (ctx.options.sharedModelSigmaDex > 0) sharedModelError(ctx, members, memberArg, total);
+  if (modelError.modelCovariance !== undefined) denseModelError(ctx, members, memberArg, total, modelError.modelCovariance);
+  else if (ctx.options.sharedModelSigmaDex > 0 && modelError.sharedFloor !== false) sharedModelError(ctx, members, memberArg, total, modelError.memberWidths);
   let bestKey = 0;
   for (let k = 1; k < nKeys; k++) if (total[k] < total[bestKey]) bestKey = k;
   const chi2Best = total[bestKey];
@@ -182,15 +206,15 @@ function solveCholesky(l: Float64Array, n: number, b: Float64Array): void {
  * group's chi^2 at that value is then recomputed, limits added as they were.
  * Overwrites `total`.
  */
-function sharedModelError(ctx: FitContext, members: readonly ObservationVector[], memberArg: readonly Int32Array[], total: Float64Array): void {
+function sharedModelError(ctx: FitContext, members: readonly ObservationVector[], memberArg: readonly Int32Array[], total: Float64Array, memberWidths?: readonly ScoringWidths[]): void {
   const terms = ctx.model.terms;
   const nTerms = terms.length;
   const values = ctx.model.values;
   const sharedSigma = Float64Array.from(terms, (t) => Math.min(ctx.options.sharedModelSigmaDex, ctx.options.termModelSigmaDex?.get(t.key) ?? ctx.options.modelSigmaDex));
-  const blocks = members.map((obs) => {
+  const blocks = members.map((obs, mi) => {
     const nd = obs.detections.length;
     // The member's own block keeps the independent part of the floor: U S U^T adds the shared part back on its diagonal.
-    const own = detectionCovariance(obs, terms, ctx.options);
+    const own = detectionCovariance(obs, terms, memberWidths?.[mi] ?? ctx.options);
     for (let a = 0; a < nd; a++) own[a * nd + a] -= sharedSigma[obs.detections[a]] ** 2;
     const l = choleskyLower(own, nd);
     if (l === undefined) throw new RangeError(`the covariance of the detections of ${obs.sightline} is not positive definite`);
@@ -250,5 +274,44 @@ function sharedModelError(ctx: FitContext, members: readonly ObservationVector[]
     solveCholesky(lm, ns, w);
     for (let i = 0; i < ns; i++) chi2 -= v[i] * w[i];
     total[k] = chi2;
+  }
+}
+
+/**
+ * The group's chi^2 with a dense model covariance between members (from the
+ * realizations): C = the members' own blocks on the diagonal, the
+ * realizations' covariance (and the shared part of a floor) between them;
+ * r^T C^-1 r by one Cholesky factorisation of C (it does not depend on the
+ * candidate), each member keeping the candidate it chose alone at each
+ * shared value, limits added as they were. Overwrites `total`.
+ */
+function denseModelError(ctx: FitContext, members: readonly ObservationVector[], memberArg: readonly Int32Array[], total: Float64Array, mc: JointModelCovariance): void {
+  const nTerms = ctx.model.terms.length;
+  const values = ctx.model.values;
+  const offsets = new Int32Array(members.length + 1);
+  members.forEach((obs, m) => (offsets[m + 1] = offsets[m] + obs.detections.length));
+  const d = offsets[members.length];
+  if (mc.between.length !== d * d) throw new RangeError(`a joint model covariance of ${Math.sqrt(mc.between.length)} detections for a group of ${d}`);
+  const c = Float64Array.from(mc.between);
+  members.forEach((obs, m) => {
+    const nd = obs.detections.length;
+    const block = mc.blocks[m];
+    for (let a = 0; a < nd; a++) for (let b = 0; b < nd; b++) c[(offsets[m] + a) * d + offsets[m] + b] = block[a * nd + b];
+  });
+  const l = choleskyLower(c, d);
+  if (l === undefined) throw new RangeError(`the covariance of the detections of the joint group (${members.map((o) => o.sightline).join(', ')}) with the realizations' model covariance is not positive definite`);
+  const r = new Float64Array(d);
+  for (let k = 0; k < total.length; k++) {
+    if (!Number.isFinite(total[k])) continue;
+    let limits = 0;
+    for (let m = 0; m < members.length; m++) {
+      const obs = members[m];
+      const base = memberArg[m][k] * nTerms;
+      const det = obs.detections;
+      for (let a = 0; a < det.length; a++) r[offsets[m] + a] = values[base + det[a]] - obs.log10[det[a]];
+      for (const j of obs.upperLimits) limits += censoredCost((obs.log10[j] - values[base + j]) * obs.inverseSigmaLimit[j]);
+      for (const j of obs.lowerLimits) limits += censoredCost((values[base + j] - obs.log10[j]) * obs.inverseSigmaLimit[j]);
+    }
+    total[k] = whitenedChiSquare(r, l, d) + limits;
   }
 }

@@ -86,17 +86,34 @@ export function logCovariance(values: readonly Float64Array[]): Float64Array {
   const n = values.length;
   if (n < 2) throw new Error('a covariance needs at least two realizations');
   const m = values[0].length;
+  // Deviations from the first realization (shifted data, as logSpread): identical realizations (every F = 1) give exactly 0.
+  const shift = values[0];
   const mean = new Float64Array(m);
-  for (const v of values) for (let j = 0; j < m; j++) mean[j] += v[j] / n;
+  for (const v of values) for (let j = 0; j < m; j++) mean[j] += v[j] - shift[j];
+  for (let j = 0; j < m; j++) mean[j] /= n;
   const c = new Float64Array(m * m);
   for (const v of values) {
     for (let j = 0; j < m; j++) {
-      const dj = v[j] - mean[j];
-      for (let k = 0; k <= j; k++) c[j * m + k] += (dj * (v[k] - mean[k])) / (n - 1);
+      const dj = v[j] - shift[j] - mean[j];
+      for (let k = 0; k <= j; k++) c[j * m + k] += (dj * (v[k] - shift[k] - mean[k])) / (n - 1);
     }
   }
   for (let j = 0; j < m; j++) for (let k = j + 1; k < m; k++) c[j * m + k] = c[k * m + j];
   return c;
+}
+
+/**
+ * One sightline's model values at its best fit over the realizations:
+ * values[i][a] is log10 of quantity term keys[a] in realization
+ * realizations[i]. Realization r draws every rate once for all sightlines
+ * (physics.md section 13), so two sightlines' values covary through the
+ * realizations they have in common: the systematic model error of a joint
+ * group.
+ */
+export interface RealizationLogs {
+  keys: readonly string[];
+  realizations: readonly number[];
+  values: readonly Float64Array[];
 }
 
 /** How the model's own uncertainty of a quantity enters sigma_j^2 (a fit option). */

@@ -14,12 +14,12 @@ import { MODEL_CAUTIONS } from './cautions.ts';
 import type { FitContext, FitOptions } from './context.ts';
 import { fitSightline } from './fit-sightline.ts';
 import { holdParameters } from './held.ts';
-import { fitJoint } from './joint.ts';
+import { fitJoint, type JointModelCovariance } from './joint.ts';
 import { fitMap, type MapPixel } from './map.ts';
 import { buildModelQuantities, collectTerms, termKey, type ModelQuantities, type QuantityTerm } from './model-quantities.ts';
 import { interpolationError, refinableAxes, refinedSize, refineTable } from './refine.ts';
-import { modelSigmaDex, type ModelUncertaintyMode } from './model-spread.ts';
-import { buildObservationVector, usedCount, type ObservationVector } from './observation-vector.ts';
+import { logCovariance, modelSigmaDex, type ModelUncertaintyMode, type RealizationLogs } from './model-spread.ts';
+import { buildObservationVector, detectionCovariance, usedCount, type ObservationVector } from './observation-vector.ts';
 import { PAIR_PARAMETERS, regionLevels, TABLE_LEVEL } from './regions.ts';
 import { stageFiles } from './stage-files.ts';
 import {
@@ -70,6 +70,24 @@ export interface FitStageInput {
   modelCovariance?: ModelCovariance;
   /** Cautions of the model setup beyond the general ones (layered columns, a first stage, a physical track), each a sentence. */
   modelCautions?: readonly string[];
+  /**
+   * Per sightline id: the covariance (dex^2) of the quantity terms' log10 over
+   * the Monte Carlo realizations at that sightline's best fit (the pipeline's
+   * realizations; src/pipeline/realizations.ts modelCovarianceOf). With
+   * fit.model_uncertainty spread it is the model part of that sightline's
+   * covariance, off the diagonal too; with spread-and-floor the floor squared
+   * joins its diagonal. For its sightline it takes the place of `modelSpread`
+   * and of the global `modelCovariance`; floor ignores it.
+   */
+  sightlineModelCovariance?: ReadonlyMap<string, ModelCovariance>;
+  /**
+   * Per sightline id: its quantity terms' log10 at its best fit in each
+   * realization (model-spread.ts). With fit.model_uncertainty spread or
+   * spread-and-floor, a joint group whose members all have them takes the
+   * model covariance between members from their common realizations, in
+   * place of the floor's shared part alone (docs/statistics.md section 6).
+   */
+  realizationLogs?: ReadonlyMap<string, RealizationLogs>;
 }
 
 export interface FitStageOutput {
@@ -132,6 +150,55 @@ function checkRatioReferences(observations: ObservationSet, quantities: readonly
   throwProblems(problems, 'ratios to reference species that have only limits:');
 }
 
+/**
+ * A sightline whose model uncertainty comes from the realizations: a
+ * detection with a zero error and a zero spread has no width (chi^2
+ * undefined), and the realizations' covariance with the observational one
+ * must be positive definite.
+ */
+function checkSpreadWidths(id: string, quantities: readonly ObservedQuantity[], terms: readonly QuantityTerm[], widths: FitOptions, section: FitSection, source: FitSource | undefined): void {
+  const mc = widths.modelCovariance;
+  const modelVariance = (key: string) => {
+    const a = mc ? mc.keys.indexOf(key) : -1;
+    return a >= 0 ? mc!.matrix[a * (mc!.keys.length + 1)] : (widths.termModelSigmaDex?.get(key) ?? widths.modelSigmaDex) ** 2;
+  };
+  const fix =
+    section.model_uncertainty === 'spread'
+      ? 'Give the detection its error, or use fit.model_uncertainty: spread-and-floor with fit.model_sigma_dex above 0 (a reaction network whose factors are all 1 has no spread).'
+      : 'Give the detection its error, or a model floor above 0 (fit.model_sigma_dex).';
+  for (const q of quantities) {
+    if (q.kind !== 'detection' || !Number.isFinite(q.log10)) continue;
+    const m2 = modelVariance(termKey(q.numerator, q.denominator));
+    if (!(q.sigmaLoDex ** 2 + m2 > 0 && q.sigmaHiDex ** 2 + m2 > 0)) {
+      throw located(
+        source,
+        ['fit', 'model_uncertainty'],
+        `sightline ${id}: ${q.label} has no width: its error is ${q.sigmaLoDex === q.sigmaHiDex ? q.sigmaLoDex : `${q.sigmaLoDex}/${q.sigmaHiDex}`} dex and the realizations' spread of it is ${Math.sqrt(Math.max(0, m2))} dex (fit.model_uncertainty: ${section.model_uncertainty}), so chi^2 is undefined. ${fix}`,
+      );
+    }
+  }
+}
+
+/**
+ * buildObservationVector, with the one failure realizations can cause named
+ * for the user: their covariance (rank at most realizations - 1, exactly
+ * singular for quantities tied to each other) with zero observational errors
+ * is not positive definite.
+ */
+function buildSpreadVector(id: string, quantities: readonly ObservedQuantity[], terms: readonly QuantityTerm[], widths: FitOptions, fromSpread: boolean, section: FitSection, source: FitSource | undefined): ObservationVector {
+  try {
+    return buildObservationVector(id, quantities, terms, widths);
+  } catch (e) {
+    if (!fromSpread || !(e instanceof RangeError) || !/not positive definite/.test(e.message)) throw e;
+    throw located(
+      source,
+      ['fit', 'model_uncertainty'],
+      `sightline ${id}: the covariance of its detections with the realizations' model covariance (fit.model_uncertainty: ${section.model_uncertainty}) is singular: the detections without an error are tied to each other in every realization. ` +
+        'Give those detections their errors, use spread-and-floor with fit.model_sigma_dex above 0, or run more realizations (realizations.count).',
+    );
+  }
+}
+
 function checkWidths(section: FitSection, quantities: readonly ObservedQuantity[], source: FitSource | undefined): void {
   const broken = quantities.filter((q) => q.kind === 'detection' && Number.isFinite(q.log10) && !(q.sigmaLoDex >= 0 && q.sigmaHiDex >= 0 && Number.isFinite(q.sigmaLoDex) && Number.isFinite(q.sigmaHiDex)));
   throwProblems(
@@ -175,26 +242,97 @@ function termFloors(section: FitSection, quantities: readonly ObservedQuantity[]
 
 /**
  * The scoring widths of one sightline with its realizations' spread folded in
- * as fit.model_uncertainty says. `floors` are the model floors before the
- * sub-grid mesh, `interpolationDex` the mesh's own error per term: the spread
- * replaces (or joins) the floor, never the interpolation error, which is a
- * different error and stays in quadrature.
+ * as fit.model_uncertainty says: their covariance where given (the floor of
+ * each term added on its diagonal for spread-and-floor), else the spread of
+ * each term alone.
  */
 function withModelSpread(
   options: FitOptions,
-  floors: ReadonlyMap<string, number> | undefined,
-  interpolationDex: ReadonlyMap<string, number> | undefined,
   terms: readonly QuantityTerm[],
   mode: ModelUncertaintyMode,
   spread: ReadonlyMap<string, number> | undefined,
+  covariance: ModelCovariance | undefined,
+  floors: ReadonlyMap<string, number>,
+  interpolationDex: ReadonlyMap<string, number> | undefined,
 ): FitOptions {
-  if (mode === 'floor' || spread === undefined) return options;
+  if (mode === 'floor') return options;
+  // The floor as the user set it (options.termModelSigmaDex also holds the interpolation error, which stays in every mode).
+  const floorOf = (key: string) => floors.get(key) ?? options.modelSigmaDex;
+  const interpolationOf = (key: string) => interpolationDex?.get(key) ?? 0;
+  if (covariance !== undefined) {
+    const n = covariance.keys.length;
+    if (covariance.matrix.length !== n * n) throw new RangeError(`a model covariance of ${n} terms has ${covariance.matrix.length} elements`);
+    const matrix = Float64Array.from(covariance.matrix);
+    covariance.keys.forEach((key, a) => {
+      const extra = mode === 'spread-and-floor' ? Math.hypot(floorOf(key), interpolationOf(key)) : interpolationOf(key);
+      matrix[a * (n + 1)] += extra * extra;
+    });
+    return { ...options, modelCovariance: { keys: [...covariance.keys], matrix } };
+  }
+  if (spread === undefined) return options;
   const perTerm = new Map(options.termModelSigmaDex ?? []);
   for (const t of terms) {
     const s = spread.get(t.key);
-    if (s !== undefined) perTerm.set(t.key, Math.hypot(modelSigmaDex(mode, floors?.get(t.key) ?? options.modelSigmaDex, s), interpolationDex?.get(t.key) ?? 0));
+    if (s !== undefined) perTerm.set(t.key, Math.hypot(modelSigmaDex(mode, floorOf(t.key), s), interpolationOf(t.key)));
   }
   return { ...options, termModelSigmaDex: perTerm };
+}
+
+/**
+ * A joint group's model covariance from the realizations (joint.ts
+ * JointModelCovariance): each member's own block as its fit has it, and
+ * between members the sample covariance of their model values over the
+ * realizations they have in common, plus for spread-and-floor the floor's
+ * shared part between the same term of two members. Undefined (the floor's
+ * shared part alone, with a warning) when a member has no realizations or
+ * fewer than two are common.
+ */
+function jointModelCovariance(
+  members: readonly ObservationVector[],
+  terms: readonly QuantityTerm[],
+  widthsById: ReadonlyMap<string, FitOptions>,
+  logs: ReadonlyMap<string, RealizationLogs> | undefined,
+  options: FitOptions,
+  floors: ReadonlyMap<string, number>,
+  mode: ModelUncertaintyMode,
+  name: string,
+  warnings: string[],
+): JointModelCovariance | undefined {
+  if (logs === undefined) return undefined;
+  const fallback =
+    mode === 'spread'
+      ? "no model error is shared by the members (fit.model_uncertainty: spread has no floor to share), so an error the rates make for all of them shrinks with their number; not the realizations' covariance. Run realizations at every member (realizations.sightlines)."
+      : "the model error shared by the members is the floor's shared part (fit.model_sigma_shared_dex), not the realizations' covariance. Run realizations at every member (realizations.sightlines).";
+  const missing = members.filter((m) => !logs.has(m.sightline)).map((m) => m.sightline);
+  if (missing.length > 0) {
+    warnings.push(`joint group ${name}: no realizations at the best fit of ${missing.join(', ')}: ${fallback}`);
+    return undefined;
+  }
+  const memberLogs = members.map((m) => logs.get(m.sightline)!);
+  const rowOf = memberLogs.map((l) => new Map(l.realizations.map((r, i) => [r, i])));
+  const common = memberLogs[0].realizations.filter((r) => rowOf.every((rows) => rows.has(r)));
+  if (common.length < 2) {
+    warnings.push(`joint group ${name}: its members have ${common.length} realization(s) in common: ${fallback}`);
+    return undefined;
+  }
+  // Each detection's column in its member's realization values (-1: a term without realizations, constant 0, so it covaries with nothing).
+  const columns = members.flatMap((m, k) => Array.from(m.detections, (j) => memberLogs[k].keys.indexOf(terms[j].key)));
+  const memberOf = members.flatMap((m, k) => Array.from(m.detections, () => k));
+  const termOf = members.flatMap((m) => Array.from(m.detections));
+  const d = columns.length;
+  const vectors = common.map((r) => Float64Array.from({ length: d }, (_, a) => (columns[a] < 0 ? 0 : memberLogs[memberOf[a]].values[rowOf[memberOf[a]].get(r)!][columns[a]])));
+  const between = logCovariance(vectors);
+  if (mode === 'spread-and-floor') {
+    for (let a = 0; a < d; a++) {
+      for (let b = 0; b < d; b++) {
+        if (memberOf[a] === memberOf[b] || termOf[a] !== termOf[b]) continue;
+        const shared = Math.min(options.sharedModelSigmaDex, floors.get(terms[termOf[a]].key) ?? options.modelSigmaDex);
+        between[a * d + b] += shared * shared;
+      }
+    }
+  }
+  const blocks = members.map((m) => detectionCovariance(m, terms, widthsById.get(m.sightline) ?? options));
+  return { blocks, between };
 }
 
 export function fitOptions(section: FitSection): FitOptions {
@@ -295,12 +433,12 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
   let model = buildModelQuantities(table, terms, { file: source?.file });
   const options = fitOptions(section);
-  options.termModelSigmaDex = termFloors(section, quantities);
+  const userFloors = termFloors(section, quantities);
+  options.termModelSigmaDex = userFloors;
+  let interpolationDex: Map<string, number> | undefined;
   if (input.modelCovariance) options.modelCovariance = input.modelCovariance;
   const refineWarnings: string[] = [];
   let interpolation: InterpolationSummary | undefined;
-  let floorsBeforeMesh: ReadonlyMap<string, number> | undefined;
-  let meshErrorDex: ReadonlyMap<string, number> | undefined;
   {
     const budget = observations.kind === 'map' ? Math.min(REFINED_CANDIDATES_BUDGET, MAP_REFINED_PAIRS_BUDGET / Math.max(1, observations.sightlines.length)) : REFINED_CANDIDATES_BUDGET;
     const refined = refineForFit(table, axes, model, section, input.held, refineWarnings, budget);
@@ -310,9 +448,8 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
       // The interpolation error joins each quantity's model floor in quadrature.
       const floors = new Map<string, number>();
       for (const t of model.terms) floors.set(t.key, Math.hypot(options.termModelSigmaDex.get(t.key) ?? options.modelSigmaDex, refined.errorDex.get(t.key) ?? 0));
-      floorsBeforeMesh = options.termModelSigmaDex;
-      meshErrorDex = refined.errorDex;
       options.termModelSigmaDex = floors;
+      interpolationDex = refined.errorDex;
     }
   }
   options.levels = regionLevels([...section.levels, TABLE_LEVEL], section.parameters_of_interest);
@@ -334,6 +471,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     else byId.set(q.sightline, [q]);
   }
   const vectors: ObservationVector[] = [];
+  const widthsById = new Map<string, FitOptions>();
   const warnings: string[] = [...observations.warnings, ...refineWarnings];
   const unfitted: string[] = [];
   const isMap = observations.kind === 'map';
@@ -341,7 +479,10 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     throw located(source, ['fit', 'joint'], 'joint groups combine sightlines of a table; this observation set is a map. Remove fit.joint, or fit a table of the positions to group.');
   }
   for (const s of isMap ? [] : observations.sightlines) {
-    const v = buildObservationVector(s.id, byId.get(s.id) ?? [], terms, withModelSpread(options, floorsBeforeMesh ?? options.termModelSigmaDex, meshErrorDex, terms, section.model_uncertainty, input.modelSpread?.get(s.id)));
+    const widths = withModelSpread(options, terms, section.model_uncertainty, input.modelSpread?.get(s.id), input.sightlineModelCovariance?.get(s.id), userFloors, interpolationDex);
+    if (widths !== options) checkSpreadWidths(s.id, byId.get(s.id) ?? [], terms, widths, section, source);
+    const v = buildSpreadVector(s.id, byId.get(s.id) ?? [], terms, widths, widths !== options, section, source);
+    widthsById.set(s.id, widths);
     if (usedCount(v) === 0) {
       unfitted.push(s.id);
       continue;
@@ -381,6 +522,7 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
 
   const joint: JointFit[] = [];
+  const fromRealizations = new Set<string>();
   const jointProfiles: SightlineProfiles[] = [];
   const vectorById = new Map(vectors.map((v) => [v.sightline, v]));
   section.joint.forEach((g, i) => {
@@ -405,10 +547,23 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
     });
     if (members.length < 2 && problems.length === 0) problems.push(located(source, ['fit', 'joint', i, 'sightlines'], `group ${g.name} needs at least two fitted sightlines, found ${members.length}.`));
     throwProblems(problems, `joint group ${g.name}:`);
-    const out = fitJoint(ctx, g.name, members, g.share);
+    const realizations = section.model_uncertainty === 'floor' ? undefined : jointModelCovariance(members, terms, widthsById, input.realizationLogs, options, userFloors, section.model_uncertainty, g.name, warnings);
+    let out: ReturnType<typeof fitJoint>;
+    try {
+      out = fitJoint(ctx, g.name, members, g.share, {
+        modelCovariance: realizations,
+        memberWidths: members.map((m) => widthsById.get(m.sightline) ?? options),
+        // fit.model_uncertainty spread uses no floor, so there is no floor part to share; the realizations give the shared error where they ran.
+        sharedFloor: section.model_uncertainty !== 'spread',
+      });
+    } catch (e) {
+      if (realizations === undefined || !(e instanceof RangeError) || !/not positive definite/.test(e.message)) throw e;
+      throw located(source, ['fit', 'joint', i], `joint group ${g.name}: the covariance of its members' detections with the realizations' model covariance (fit.model_uncertainty: ${section.model_uncertainty}) is singular. Give every detection its error, use spread-and-floor with fit.model_sigma_dex above 0, or run more realizations (realizations.count).`);
+    }
     if (!Number.isFinite(out.fit.chi2)) {
       throw located(source, ['fit', 'joint', i], `the members of group ${g.name} have no common value of ${g.share.join(' and ')} among the models open to them (held parameters differ); share another parameter or split the group.`);
     }
+    if (realizations !== undefined) fromRealizations.add(g.name);
     joint.push(out.fit);
     jointProfiles.push(out.profiles);
   });
@@ -426,10 +581,23 @@ export function runFitStage(input: FitStageInput): FitStageOutput {
   }
   for (const j of joint) {
     if (!(j.pValue > SUSPICIOUSLY_GOOD_P && j.dof > 1)) continue;
-    j.warnings.push(
-      `joint group ${j.name}: chi2 = ${j.chi2.toFixed(2)} is far below its dof (${j.dof}; p = ${j.pValue.toFixed(3)}): the errors and the ${section.model_sigma_dex} dex model floor exceed the members' scatter about the models, so the regions are set by the floor, not by the data. ` +
-        `Of the floor, ${options.sharedModelSigmaDex.toFixed(2)} dex is one error shared by all ${j.members.length} members (fit.model_sigma_shared_dex), not reduced by their number; p near 1 does not show that the model is right, and a model error common to the members would not show in chi2.`,
-    );
+    const head = `joint group ${j.name}: chi2 = ${j.chi2.toFixed(2)} is far below its dof (${j.dof}; p = ${j.pValue.toFixed(3)}): `;
+    const tail = 'p near 1 does not show that the model is right, and a model error common to the members would not show in chi2.';
+    if (fromRealizations.has(j.name)) {
+      j.warnings.push(
+        head +
+          `the errors and the model uncertainty from the realizations${section.model_uncertainty === 'spread-and-floor' ? ` with the ${section.model_sigma_dex} dex floor` : ''} exceed the members' scatter about the models, so the regions are set by the model uncertainty, not by the data. ` +
+          `Between members the model error is the realizations' covariance (the same rates for every sightline), not reduced by their number; ${tail}`,
+      );
+    } else if (section.model_uncertainty === 'spread') {
+      j.warnings.push(head + `the errors and the realizations' spread exceed the members' scatter about the models, so the regions are set by the spread, not by the data. No model error is shared by the members here (no realizations at every member); ${tail}`);
+    } else {
+      j.warnings.push(
+        head +
+          `the errors and the ${section.model_sigma_dex} dex model floor exceed the members' scatter about the models, so the regions are set by the floor, not by the data. ` +
+          `Of the floor, ${options.sharedModelSigmaDex.toFixed(2)} dex is one error shared by all ${j.members.length} members (fit.model_sigma_shared_dex), not reduced by their number; ${tail}`,
+      );
+    }
   }
   for (const f of fits) warnings.push(...f.warnings);
   for (const j of joint) warnings.push(...j.warnings);

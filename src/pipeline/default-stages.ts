@@ -361,7 +361,7 @@ const fit: StageImpl<PipelineData, 'fit'> = {
     const stageNotes: string[] = [];
     const realizations = pipeline.config.realizations;
     if (realizations && out.result.fits.length > 0) {
-      const { spreadAtBestFits, modelSpreadOf, SENSITIVITY_CSV_HEADER, TOP_REACTIONS } = await import('./realizations.ts');
+      const { spreadAtBestFits, modelSpreadOf, modelCovarianceOf, SENSITIVITY_CSV_HEADER, TOP_REACTIONS } = await import('./realizations.ts');
       const plan = await pipelineGridPlan(pipeline, async () => observations);
       const r = await spreadAtBestFits(pipeline, plan, out.result, realizations, { workers: ctx.workers, progress: ctx.progress });
       spread = r.report;
@@ -370,8 +370,8 @@ const fit: StageImpl<PipelineData, 'fit'> = {
       // The rank is the fourth column: the top ten of every quantity and of chi^2, per sightline.
       writeOutput(outDir, SENSITIVITY_TOP_CSV, toCsv(SENSITIVITY_CSV_HEADER, r.csvRows.filter((row) => (row[3] as number) <= TOP_REACTIONS)));
       outputs.push(SPREAD_JSON, SENSITIVITY_CSV, SENSITIVITY_TOP_CSV);
-      // One pass: the spread at the floor fit's best fits widens each quantity, and the fit is made again with it.
-      if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread) });
+      // One pass: the spread and covariance at the floor fit's best fits widen and correlate each sightline's quantities, and the fit is made again with them.
+      if (fitInput.section.model_uncertainty !== 'floor') out = runFitStage({ ...fitInput, modelSpread: modelSpreadOf(spread), sightlineModelCovariance: modelCovarianceOf(spread), realizationLogs: r.logs });
     } else {
       if (realizations) stageNotes.push('realizations: not run: they run at the best fits of sightlines, and this fit has none (a map is fitted pixel by pixel; see docs/uncertainty.md section 8).');
       // A spread of an earlier run without realizations now would be read back as this run's.

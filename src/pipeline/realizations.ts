@@ -13,11 +13,11 @@ import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
 import type { RealizationsSection } from '../config/sections/realizations.ts';
 import { censoredCost } from '../fit/censored.ts';
+import type { ModelCovariance } from '../fit/covariance.ts';
 import { termKey } from '../fit/model-quantities.ts';
-import { log10Abundance, logCovariance, logSpread } from '../fit/model-spread.ts';
+import { log10Abundance, logCovariance, logSpread, type RealizationLogs } from '../fit/model-spread.ts';
 import { chanceCoefficient, rankReactions } from '../fit/sensitivity.ts';
-import type { FitStageResult, QuantityScore, SightlineFit } from '../fit/types.ts';
-import { isConditionName, type PhysicalConditions } from '../config/conditions.ts';
+import type { FitStageResult, QuantityScore } from '../fit/types.ts';
 import type { GridPlan } from '../grid/plan.ts';
 import { readRealizations, realizationStoreFile, runRealizations } from '../grid/realizations.ts';
 import type { ModelTrack, SightlineSensitivity } from '../report/types.ts';
@@ -78,6 +78,8 @@ export interface SpreadAtBestFits {
   /** Every coefficient: sightline, quantity (or chi2), age, rank, reaction, equation, law, F, coefficient. */
   csvRows: (string | number)[][];
   run: GridRunResult;
+  /** Per sightline: its quantities' log10 at the best fit in each realization (kept in memory for the joint groups' covariance between members; not in spread.json). */
+  logs: Map<string, RealizationLogs>;
 }
 
 export const SENSITIVITY_CSV_HEADER = ['sightline', 'quantity', 'age_yr', 'rank', 'reaction', 'equation', 'law', 'uncertainty_factor', 'coefficient'];
@@ -93,27 +95,6 @@ function chi2Of(rows: readonly QuantityScore[], model: readonly number[]): numbe
   return chi2;
 }
 
-/**
- * The conditions of a sightline's best-fit model: a grid model's own, or, for
- * a best fit between grid values (fit.refine; id `~CORNER+...`), its corner's
- * with the interpolated parameters of the fit, so that the realizations are
- * models at the best-fit conditions themselves.
- */
-function bestFitConditions(f: SightlineFit, conditionsOf: ReadonlyMap<string, PhysicalConditions>, pipeline: Pipeline): PhysicalConditions {
-  const own = conditionsOf.get(f.best.modelId);
-  if (own) return own;
-  const corner = f.best.modelId.startsWith('~') ? conditionsOf.get(f.best.modelId.slice(1).replace(/\+[\d.]*$/, '')) : undefined;
-  if (!corner) {
-    throw new UserError(
-      `realizations: the best fit of ${f.sightline} (${f.best.modelId}) is not one model of the grid (a column summed over layers has one model per layer); realizations run at single models. Remove the realizations section, or fit single-point sightlines.`,
-      { file: pipeline.file, line: pipeline.yaml.lineOf(['realizations']), field: 'realizations' },
-    );
-  }
-  const conditions = { ...corner };
-  for (const [name, value] of Object.entries(f.best.parameters)) if (isConditionName(name)) conditions[name] = value;
-  return conditions;
-}
-
 export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: FitStageResult, section: RealizationsSection, options: { workers?: number; progress(line: string): void }): Promise<SpreadAtBestFits> {
   const wanted = section.sightlines ?? fit.fits.map((f) => f.sightline);
   const fits = wanted.map((id) => {
@@ -122,7 +103,9 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     return f;
   });
   const conditionsOf = new Map(plan.points.map((p) => [p.id, p.conditions]));
-  const bases = [...new Map(fits.map((f) => [f.best.modelId, bestFitConditions(f, conditionsOf, pipeline)])).entries()].map(([id, conditions]) => ({ id, conditions }));
+  // A best fit between grid values (the fit's refined mesh, id `~...`) has no model of its own: its realizations run at the nearest grid model.
+  const nodeOf = new Map(fits.map((f) => [f.sightline, conditionsOf.has(f.best.modelId) ? f.best.modelId : nearestGridModel(plan, f.best.parameters)]));
+  const bases = [...new Set(nodeOf.values())].map((id) => ({ id, conditions: conditionsOf.get(id)! }));
   const settings = { count: section.count, seed: section.seed };
   const run = await runRealizations(pipeline, plan, bases, settings, {
     workers: options.workers,
@@ -143,19 +126,19 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     });
 
   const csvRows: (string | number)[][] = [];
+  const logs = new Map<string, RealizationLogs>();
   let realizationsUsed = section.count;
   const sightlines: SightlineSpread[] = fits.map((f) => {
-    const set = sets.get(f.best.modelId)!;
+    const modelId = nodeOf.get(f.sightline)!;
+    const set = sets.get(modelId)!;
     if (set.abundances.length < 2) throw new UserError(`only ${set.abundances.length} of ${section.count} realizations of the best fit of ${f.sightline} finished; a spread needs two. See the failures with 'hoarfrost grid --status'.`);
     realizationsUsed = Math.min(realizationsUsed, set.abundances.length);
     const eps = set.realizations.map(epsilon);
     const nSpecies = set.species.length;
     const nTimes = set.timesYr.length;
     const column = new Map(set.species.map((s, i) => [s, i]));
-    // The realizations' output time nearest the best-fit age in log: the grid's own times (a best fit
-    // on the fit's refined mesh, fit.refine, may lie between them; the spread changes slowly in time).
-    let t = 0;
-    for (let k = 1; k < nTimes; k++) if (Math.abs(Math.log(set.timesYr[k] / f.best.ageYr)) < Math.abs(Math.log(set.timesYr[t] / f.best.ageYr))) t = k;
+    // The output time nearest the best-fit age in log (the refined mesh's times lie between the grid's).
+    const t = nearestTimeIndex(set.timesYr, f.best.ageYr);
     const quantityLogs = f.residuals.map((q) => {
       const num = column.get(q.numerator)!;
       const den = q.denominator === undefined ? undefined : column.get(q.denominator)!;
@@ -168,6 +151,7 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
       return { label: q.label, key: termKey(q.numerator, q.denominator), lo: Array.from(s.lo), median: Array.from(s.median), hi: Array.from(s.hi), sdDex: Array.from(s.sd), sdDexAtBest: s.sd[t], top: top.slice(0, TOP_REACTIONS) };
     });
     const atBest = set.abundances.map((_, r) => Float64Array.from(quantityLogs, (l) => l[r][t]));
+    logs.set(f.sightline, { keys: quantities.map((x) => x.key), realizations: set.realizations, values: atBest });
     const cov = logCovariance(atBest);
     const m = f.residuals.length;
     const chi2 = atBest.map((v) => chi2Of(f.residuals, Array.from(v)));
@@ -177,8 +161,8 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     const q = (p: number) => sortedChi2[Math.min(sortedChi2.length - 1, Math.round(p * (sortedChi2.length - 1)))];
     return {
       sightline: f.sightline,
-      modelId: f.best.modelId,
-      ageYr: f.best.ageYr,
+      modelId,
+      ageYr: set.timesYr[t],
       timesYr: Array.from(set.timesYr),
       realizations: set.abundances.length,
       missing: set.missing.length,
@@ -192,12 +176,62 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     report: { format: SPREAD_FORMAT, count: section.count, seed: section.seed, method: section.method, chanceCoefficient: Number.isFinite(chance) ? chance : null, sightlines },
     csvRows,
     run,
+    logs,
   };
+}
+
+/** The grid model nearest a point of parameter space: least sum of squared log10 ratios (differences where a value is not positive) over the point's parameters. */
+export function nearestGridModel(plan: GridPlan, parameters: Readonly<Record<string, number>>): string {
+  let best: string | undefined;
+  let bestDistance = Infinity;
+  for (const p of plan.points) {
+    const conditions = p.conditions as unknown as Record<string, number>;
+    let d = 0;
+    for (const [name, value] of Object.entries(parameters)) {
+      const g = conditions[name];
+      if (g === undefined) continue;
+      d += g > 0 && value > 0 ? Math.log10(g / value) ** 2 : (g - value) ** 2;
+    }
+    if (d < bestDistance) {
+      bestDistance = d;
+      best = p.id;
+    }
+  }
+  if (best === undefined) throw new RangeError('the grid plan has no model');
+  return best;
+}
+
+/** The index of the time nearest `ageYr` in log10 (times positive and ascending). */
+export function nearestTimeIndex(timesYr: ArrayLike<number>, ageYr: number): number {
+  let best = 0;
+  for (let k = 1; k < timesYr.length; k++) if (Math.abs(Math.log10(timesYr[k] / ageYr)) < Math.abs(Math.log10(timesYr[best] / ageYr))) best = k;
+  return best;
 }
 
 /** Each sightline's spread of each quantity term at its best fit, dex: the fit's model-uncertainty input. */
 export function modelSpreadOf(report: SpreadReport): Map<string, Map<string, number>> {
   return new Map(report.sightlines.map((s) => [s.sightline, new Map(s.quantities.map((q) => [q.key, q.sdDexAtBest]))]));
+}
+
+/**
+ * Each sightline's covariance of its quantity terms' log10 at its best fit,
+ * dex^2, over the realizations: the model part of that sightline's
+ * covariance in the generalised chi^2 (fit.model_uncertainty spread or
+ * spread-and-floor; docs/uncertainty.md section 4).
+ */
+export function modelCovarianceOf(report: SpreadReport): Map<string, ModelCovariance> {
+  return new Map(report.sightlines.map((s) => [s.sightline, { keys: s.quantities.map((q) => q.key), matrix: Float64Array.from(s.covariance.flat()) }]));
+}
+
+/** a(time) - b(time), linear in log10 time between the given times, held at the ends. */
+function interpolateLogTime(timesYr: readonly number[], a: readonly number[], b: readonly number[], time: number): number {
+  const n = timesYr.length;
+  if (!(time > timesYr[0])) return a[0] - b[0];
+  if (!(time < timesYr[n - 1])) return a[n - 1] - b[n - 1];
+  let k = 0;
+  while (timesYr[k + 1] < time) k++;
+  const w = Math.log10(time / timesYr[k]) / Math.log10(timesYr[k + 1] / timesYr[k]);
+  return (1 - w) * (a[k] - b[k]) + w * (a[k + 1] - b[k + 1]);
 }
 
 /** The best-fit tracks with the realizations' 68 % band, and each sightline's chi^2 sensitivity, as the report takes them. */
@@ -207,8 +241,17 @@ export function spreadForReport(tracks: ModelTrack[], report: SpreadReport | und
   const banded = tracks.map((t) => {
     const s = bySightline.get(t.sightline);
     const q = s?.quantities.find((x) => x.label === t.label);
-    if (!s || !q || t.role !== 'best' || t.modelId !== s.modelId) return t;
-    return { ...t, band: { lo: q.lo, hi: q.hi, realizations: s.realizations } };
+    if (!s || !q || t.role !== 'best') return t;
+    if (t.modelId === s.modelId) return { ...t, band: { lo: q.lo, hi: q.hi, realizations: s.realizations } };
+    // A best fit between grid values: the nearest grid model's spread about its median, interpolated in log time to the track's times and centred on the track.
+    const lo: number[] = [];
+    const hi: number[] = [];
+    t.timesYr.forEach((time, i) => {
+      const v = t.log10[i];
+      lo.push(v === null ? NaN : v + interpolateLogTime(s.timesYr, q.lo, q.median, time));
+      hi.push(v === null ? NaN : v + interpolateLogTime(s.timesYr, q.hi, q.median, time));
+    });
+    return { ...t, band: { lo, hi, realizations: s.realizations, nearestModel: s.modelId } };
   });
   const sensitivity = report.sightlines.map((s) => ({
     sightline: s.sightline,

@@ -24,7 +24,13 @@ export interface ModelTrack {
   /** log10 of the abundance or ratio at each time; null where the model has none (zero abundance). */
   log10: (number | null)[];
   /** The 68 % band of the rate-coefficient realizations at each time, log10 (docs/uncertainty.md); best fits only. */
-  band?: { lo: number[]; hi: number[]; realizations: number };
+  band?: {
+    lo: number[];
+    hi: number[];
+    realizations: number;
+    /** Set when the best fit lies between grid values: the band is the spread of this grid model (the nearest), centred on the track. */
+    nearestModel?: string;
+  };
 }
 
 /** The reactions a sightline's fit hangs on (docs/uncertainty.md): correlation of log k with chi^2 over the realizations. */

@@ -9,7 +9,9 @@ import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { afterAll, describe, expect, it } from 'vitest';
 import { executeRun } from '../../src/pipeline/execute.ts';
-import type { SpreadReport } from '../../src/pipeline/realizations.ts';
+import { nearestGridModel, nearestTimeIndex, spreadForReport, type SpreadReport } from '../../src/pipeline/realizations.ts';
+import type { ModelTrack } from '../../src/report/types.ts';
+import type { GridPlan } from '../../src/grid/plan.ts';
 import type { FitStageResult } from '../../src/fit/types.ts';
 
 const FIXTURES = join(import.meta.dirname, 'fixtures');
@@ -34,6 +36,56 @@ async function run(dir: string): Promise<{ code: number; out: string; err: strin
   return { code, out, err };
 }
 
+describe('the grid model and time nearest a best fit between grid values', () => {
+  it('picks the node nearest in log10 of each parameter, and the output time nearest in log10', () => {
+    const points = [1e3, 1e4, 1e5].flatMap((density, i) => [5, 10].map((av, j) => ({ id: `g${i}${j}`, index: 2 * i + j, conditions: { density, visual_extinction: av } })));
+    const plan = { points } as unknown as GridPlan;
+    // 10^3.4 is nearer 10^3 than 10^4 in log; A_V 8 nearer 10 than 5 (differences in log: 0.097 vs 0.204).
+    expect(nearestGridModel(plan, { density: 10 ** 3.4, visual_extinction: 8 })).toBe('g01');
+    expect(nearestGridModel(plan, { density: 10 ** 3.6, visual_extinction: 6 })).toBe('g10');
+    expect(nearestTimeIndex([1e3, 1e4, 1e5], 3e3)).toBe(0);
+    expect(nearestTimeIndex([1e3, 1e4, 1e5], 3.3e3)).toBe(1);
+    expect(nearestTimeIndex([1e3, 1e4, 1e5], 1e7)).toBe(2);
+  });
+});
+
+describe('the band of a best fit between grid values', () => {
+  it("is the nearest grid model's spread about its median, interpolated in log time and centred on the track", () => {
+    const report = {
+      format: 'hoarfrost-spread/1',
+      count: 4,
+      seed: 1,
+      method: 'pearson',
+      chanceCoefficient: null,
+      sightlines: [
+        {
+          sightline: 's',
+          modelId: 'g1',
+          ageYr: 1e5,
+          timesYr: [1e4, 1e5, 1e6],
+          realizations: 4,
+          missing: 0,
+          quantities: [{ label: 'X(CO)', key: 'CO', lo: [-5.2, -5.5, -6], median: [-5, -5.1, -5.4], hi: [-4.9, -4.9, -5], sdDex: [0.1, 0.2, 0.3], sdDexAtBest: 0.2, top: [] }],
+          covariance: [[0.04]],
+          chi2: { median: 1, lo: 0.5, hi: 2, top: [] },
+        },
+      ],
+    } as unknown as SpreadReport;
+    const track = { sightline: 's', label: 'X(CO)', modelId: '~g1', role: 'best', timesYr: [1e4, 10 ** 4.5, 1e6, 1e7], log10: [-4.8, -4.9, null, -5.5] } as unknown as ModelTrack;
+    const [out] = spreadForReport([track], report).tracks;
+    expect(out.band?.nearestModel).toBe('g1');
+    // At 1e4: -4.8 + (-5.2 + 5) = -5.0; at 10^4.5, halfway in log time: offsets -0.3 (lo) and 0.15 (hi); past the last time the last offsets.
+    expect(out.band!.lo[0]).toBeCloseTo(-5.0, 12);
+    expect(out.band!.lo[1]).toBeCloseTo(-4.9 - 0.3, 12);
+    expect(out.band!.hi[1]).toBeCloseTo(-4.9 + 0.15, 12);
+    expect(out.band!.lo[2]).toBeNaN();
+    expect(out.band!.hi[3]).toBeCloseTo(-5.5 + 0.4, 12);
+    // A best fit on a grid model keeps the realizations' own band.
+    const [own] = spreadForReport([{ ...track, modelId: 'g1', timesYr: [1e4, 1e5, 1e6], log10: [-5, -5.1, -5.4] }], report).tracks;
+    expect(own.band).toEqual({ lo: [-5.2, -5.5, -6], hi: [-4.9, -4.9, -5], realizations: 4 });
+  });
+});
+
 describe('realizations at the best fits in a pipeline run', () => {
   it('writes the spread and every coefficient, draws bands and the sensitivity figure, and refits with the spread', async () => {
     const dir = project('\nrealizations: { count: 5, seed: 3 }\n');
@@ -44,12 +96,12 @@ describe('realizations at the best fits in a pipeline run', () => {
     const fit = JSON.parse(readFileSync(join(out, 'fit/fit.json'), 'utf8')) as FitStageResult;
     expect(spread).toMatchObject({ format: 'hoarfrost-spread/1', count: 5, seed: 3, method: 'pearson' });
     expect(spread.sightlines.map((s) => s.sightline)).toEqual(fit.fits.map((f) => f.sightline));
-    // Best fits on the fit's refined mesh (fit.refine, ids `~CORNER+...`) run their realizations at their own, interpolated conditions.
-    expect(fit.interpolation).toBeDefined();
-    expect(spread.sightlines.some((s) => s.modelId.startsWith('~'))).toBe(true);
     for (const s of spread.sightlines) {
       const f = fit.fits.find((x) => x.sightline === s.sightline)!;
-      expect(s.modelId).toBe(f.best.modelId);
+      // A best fit on the refined mesh (id `~...`, between grid values) has its realizations run at the nearest grid model and output time.
+      if (f.best.modelId.startsWith('~')) expect(s.modelId.startsWith('~')).toBe(false);
+      else expect(s.modelId).toBe(f.best.modelId);
+      expect(Math.abs(Math.log10(s.ageYr / f.best.ageYr))).toBeLessThanOrEqual(0.5 * Math.log10(s.timesYr[1] / s.timesYr[0]) + 1e-12);
       expect(s.realizations).toBe(5);
       expect(s.quantities.map((q) => q.label)).toEqual(f.residuals.map((r) => r.label));
       for (const q of s.quantities) {
@@ -71,10 +123,12 @@ describe('realizations at the best fits in a pipeline run', () => {
     expect(html).toMatch(/What the fit of/);
     const trackSpec = readFileSync(join(out, 'report/figures', readFileSync(join(out, 'report/index.html'), 'utf8').match(/figures\/(tracks[^"]*?)\.vl\.json/)![1] + '.vl.json'), 'utf8');
     expect(trackSpec).toMatch(/"type": "area"/);
+    // Best fits between grid values get the nearest grid model's band, centred on their track, and the caption says so.
+    if (fit.fits.some((f) => f.best.modelId.startsWith('~'))) expect(html).toMatch(/the range of the nearest grid model, centred on the track/);
     expect(existsSync(join(out, 'store/realizations.sqlite'))).toBe(true);
 
     // The spread into the fit: with 'spread' every quantity's floor is its spread at the best fit.
-    const text = readFileSync(join(dir, 'tiny-pipeline.yaml'), 'utf8').replace(/^fit:\n/m, 'fit:\n  model_uncertainty: spread\n');
+    const text = readFileSync(join(dir, 'tiny-pipeline.yaml'), 'utf8').replace(/^fit:\n/m, 'fit:\n  model_uncertainty: spread\n  joint: [{ name: all-stars, sightlines: all, share: [density] }]\n');
     expect(text).toMatch(/model_uncertainty: spread/);
     writeFileSync(join(dir, 'tiny-pipeline.yaml'), text);
     const second = await run(dir);
@@ -84,15 +138,22 @@ describe('realizations at the best fits in a pipeline run', () => {
     const s0 = spread.sightlines[0];
     const r0 = refit.fits.find((f) => f.sightline === s0.sightline)!;
     const d0 = r0.residuals.find((r) => r.kind === 'detection' && r.label === s0.quantities[0].label);
-    if (d0) {
-      // The observed part: one side of an asymmetric error, or, for a measurement shared with a
-      // ratio (X(H2O(s)) beside CO(s)/H2O(s), fit.correlated_errors), the mean of both sides'
-      // variances (docs/statistics.md section 2). The mesh's interpolation error stays in quadrature.
-      const shared = r0.residuals.some((r) => r.denominator === d0.numerator);
-      const obsVar = shared ? 0.5 * (d0.sigmaLoDex ** 2 + d0.sigmaHiDex ** 2) : (d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex) ** 2;
-      const meshDex = refit.interpolation?.errorDex[d0.label] ?? 0;
-      expect(d0.sigmaDex).toBeCloseTo(Math.sqrt(obsVar + s0.quantities[0].sdDexAtBest ** 2 + meshDex ** 2), 9);
-    }
     expect(d0).toBeDefined();
+    if (d0) {
+      // The model variance is the realizations' (their covariance's diagonal), with the interpolation error of the refined mesh kept in quadrature.
+      const interpolation = refit.interpolation?.errorDex[d0.label] ?? 0;
+      const model2 = s0.covariance[0][0] + interpolation ** 2;
+      const detections = r0.residuals.filter((r) => r.kind === 'detection').length;
+      // Two or more detections covary through the realizations (their covariance has off-diagonal terms): the width shown is the symmetrised one of the whitened sum.
+      const obs2 = detections > 1 ? 0.5 * (d0.sigmaLoDex ** 2 + d0.sigmaHiDex ** 2) : (d0.residualDex > 0 ? d0.sigmaHiDex : d0.sigmaLoDex) ** 2;
+      expect(d0.sigmaDex).toBeCloseTo(Math.sqrt(obs2 + model2), 9);
+    }
+    // The joint group takes the model error between its members from their common realizations (no fallback to the floor's shared part).
+    expect(refit.joint).toHaveLength(1);
+    expect(Number.isFinite(refit.joint[0].chi2)).toBe(true);
+    expect(refit.warnings.join('\n')).not.toMatch(/not the realizations' covariance/);
+    expect(refit.joint[0].chi2).not.toBeCloseTo(refit.joint[0].memberFits.reduce((sum, m) => sum + m.chi2, 0), 6);
+    // The off-diagonal covariance of the realizations is not zero where two quantities were fitted (so it reaches the chi^2).
+    expect(spread.sightlines.some((s) => s.covariance.length > 1 && s.covariance[0][1] !== 0)).toBe(true);
   }, 240_000);
 });

@@ -191,7 +191,10 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
 
 function bandCaption(tracks: readonly ModelTrack[]): string {
   const n = tracks.find((t) => t.band)?.band?.realizations;
-  return n === undefined ? '' : ` Coloured bands around the best-fit tracks: the 68 % range of ${n} Monte Carlo realizations of the rate coefficients (docs/uncertainty.md).`;
+  const centred = tracks.some((t) => t.band?.nearestModel !== undefined);
+  return n === undefined
+    ? ''
+    : ` Coloured bands around the best-fit tracks: the 68 % range of ${n} Monte Carlo realizations of the rate coefficients (docs/uncertainty.md)${centred ? '; for a best fit between grid values, the range of the nearest grid model, centred on the track' : ''}.`;
 }
 
 export const tracksFigure: FigureBuilder = {
