@@ -12,13 +12,14 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import type { TopLevelSpec } from 'vega-lite';
 import { escapeHtml, inlineScriptSource, jsonForScript } from './escape.ts';
-import { numberHtml } from './numbers.ts';
+import { chi2DofText, numberHtml, pValueText } from './numbers.ts';
+import { mapSummaryHtml, type MapSummary } from './map-tables.ts';
 import type { BuiltFigure } from './figures/builder.ts';
 import { FIGURE_BUILDERS } from './figures/index.ts';
 import type { ParameterCell, SummaryTable } from './tables.ts';
 import type { JointFit } from '../fit/types.ts';
 import type { ReportInput, ReportProvenance } from './types.ts';
-import { parameterTitle } from './figures/axes.ts';
+import { parameterTitle, parameterValueText } from './figures/axes.ts';
 
 const require = createRequire(import.meta.url);
 
@@ -45,6 +46,8 @@ export interface HtmlFigure {
 export interface HtmlInput {
   input: ReportInput;
   table: SummaryTable;
+  /** A map's summary over its fitted pixels (a map has no sightline rows). */
+  mapSummary?: MapSummary;
   figures: HtmlFigure[];
   warnings: string[];
   cautions: readonly string[];
@@ -63,7 +66,7 @@ function intervalCell(c: ParameterCell): string {
 }
 
 function summaryHtml(table: SummaryTable): string {
-  const heads = ['Sightline', 'A<sub>V</sub> (mag)', ...table.parameters.map((p) => escapeHtml(parameterTitle(p))), 'χ²/dof', 'p', 'Agreement'];
+  const heads = ['Sightline', 'A<sub>V</sub> (mag)', ...table.parameters.map((p) => escapeHtml(parameterTitle(p))), 'χ²/dof', 'p', '<span title="observed quantities the best fit matches within a factor of 10 (limits: satisfied); not a test of the fit">Within ×10</span>'];
   const rows = table.rows.map((r) => {
     // Warnings take a full-width row under their sightline: in a column they would stretch every row.
     const warn = r.warnings.length === 0 ? '' : `<tr class="warn-row"><td colspan="${heads.length}"><ul>${r.warnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul></td></tr>`;
@@ -72,9 +75,9 @@ function summaryHtml(table: SummaryTable): string {
       `<th scope="row">${escapeHtml(r.sightline)}</th>`,
       `<td>${r.av === null ? '–' : escapeHtml(String(Number(r.av.toPrecision(3))))}</td>`,
       ...r.parameters.map(intervalCell),
-      `<td>${escapeHtml(`${Number(r.chi2.toPrecision(3))}/${r.dof}`)}</td>`,
-      `<td${r.pValue < table.poorFitP ? ' class="poor"' : ''}>${numberHtml(r.pValue)}</td>`,
-      `<td>${Math.round(r.agreement * 100)}%</td>`,
+      `<td>${escapeHtml(chi2DofText(r.chi2, r.dof))}</td>`,
+      `<td${r.pValue < table.poorFitP ? ' class="poor"' : ''}>${pValueText(r.pValue, 'html')}</td>`,
+      `<td class="matched">${Math.round(r.agreement * r.used)} of ${r.used}</td>`,
       '</tr>',
       warn,
     ].join('');
@@ -94,7 +97,7 @@ function jointHtml(joint: readonly JointFit[], level: number): string {
       })
       .join('<br>');
     const warn = j.warnings.length === 0 ? '' : `<ul>${j.warnings.map((w) => `<li>${escapeHtml(w)}</li>`).join('')}</ul>`;
-    return `<tr><th scope="row">${escapeHtml(j.name)}</th><td>${j.members.map(escapeHtml).join(', ')}</td><td>${shared}</td><td>${escapeHtml(`${Number(j.chi2.toPrecision(3))}/${j.dof}`)}</td><td>${numberHtml(j.pValue)}</td><td class="warnings">${warn}</td></tr>`;
+    return `<tr><th scope="row">${escapeHtml(j.name)}</th><td>${j.members.map(escapeHtml).join(', ')}</td><td>${shared}</td><td>${escapeHtml(chi2DofText(j.chi2, j.dof))}</td><td>${pValueText(j.pValue, 'html')}</td><td class="warnings">${warn}</td></tr>`;
   });
   return `<table class="summary"><thead><tr><th scope="col">Group</th><th scope="col">Sightlines</th><th scope="col">Shared best values</th><th scope="col">χ²/dof</th><th scope="col">p</th><th scope="col">Warnings</th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
 }
@@ -208,14 +211,14 @@ export function reportHtml(h: HtmlInput): string {
 <body data-ready="false">
 <header>
 <h1>${escapeHtml(title)}</h1>
-<p>${input.map && h.table.rows.length === 0 ? `${input.map.fittedPixels} of ${input.map.nx * input.map.ny} map pixels` : `${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'}`} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => `${escapeHtml(k)} = ${numberHtml(v, 3)}`).join(', ')}.` : ''}</p>
+<p>${input.map && h.table.rows.length === 0 ? `${input.map.fittedPixels} of ${input.map.nx * input.map.ny} map pixels` : `${h.table.rows.length} sightline${h.table.rows.length === 1 ? '' : 's'}`} fitted against ${input.fit.nCandidates} model candidates (every model at every output time); model-uncertainty floor ${escapeHtml(String(input.fit.modelSigmaDex))} dex. Intervals: ${escapeHtml(String(Number((h.table.level * 100).toFixed(1))))}% confidence.${fixed.length > 0 ? ` Held fixed: ${fixed.map(([k, v]) => escapeHtml(parameterValueText(k, v))).join('; ')}.` : ''}</p>
 <p class="files">Tables and images: ${linksHtml(h.tableLinks)}</p>
 <p id="embed-error" hidden></p>
 </header>
 <section id="summary">
 <h2>Best fits</h2>
-${h.table.rows.length > 0 ? `<div class="scroll">${summaryHtml(h.table)}</div>` : '<p>No sightline table: the per-pixel best fits of the map are in the sky maps below and in the FITS images linked above.</p>'}
-${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid. Agreement: share of the observed quantities the best fit matches within a factor of 10 (limits: satisfied).</p>' : ''}
+${h.table.rows.length > 0 ? `<div class="scroll">${summaryHtml(h.table)}</div>` : h.mapSummary ? `<div class="scroll">${mapSummaryHtml(h.mapSummary)}</div>\n<p class="files">One row per fitted pixel: the CSV table; every image: the FITS files linked above.</p>` : '<p>No fitted sightline.</p>'}
+${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid. Within ×10: how many of the observed quantities the best fit matches within a factor of 10 (limits: satisfied); a count for orientation, not a test: the p-value beside it is the test of the fit.</p>' : ''}
 </section>
 ${input.fit.joint.length > 0 ? `<section id="joint">\n<h2>Joint fits</h2>\n<div class="scroll">${jointHtml(input.fit.joint, h.table.level)}</div>\n</section>` : ''}
 <section id="cautions">

@@ -6,7 +6,7 @@
  * Layout of outDir:
  *   index.html
  *   figures/NAME.vl.json, NAME.svg, NAME.png, NAME.pdf
- *   tables/best_fits.csv, best_fits.json, best_fits.tex
+ *   tables/best_fits.csv, best_fits.json, best_fits.tex (a map: one row per fitted pixel; the LaTeX a summary over the pixels)
  *   maps/<image>.fits (maps only)
  */
 import { mkdirSync } from 'node:fs';
@@ -18,6 +18,7 @@ import { reportHtml, type HtmlFigure } from './html.ts';
 import { MAP_OUTPUTS, writeMapImages } from './maps.ts';
 import { outputPath } from './paths.ts';
 import { renderSvg, svgToPdf, svgToPng } from './render.ts';
+import { mapPixelsCsv, mapSummary, mapSummaryJson, mapSummaryLatex } from './map-tables.ts';
 import { summaryCsv, summaryJson, summaryLatex, summaryTable } from './tables.ts';
 import type { FigureFile, FigureFormat, ReportFiles, ReportInput } from './types.ts';
 
@@ -68,10 +69,12 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
   }
 
   const table = summaryTable(input);
+  // A map has no sightline fits: its tables are one row per fitted pixel and a summary over the pixels.
+  const pixels = input.map && table.rows.length === 0 ? mapSummary(input.map, input.observations.sightlines, input.fit.poorFitP) : undefined;
   const tables = {
-    csv: write(outputPath(tablesDir, 'best_fits.csv'), summaryCsv(table)),
-    json: write(outputPath(tablesDir, 'best_fits.json'), summaryJson(table, input)),
-    latex: write(outputPath(tablesDir, 'best_fits.tex'), summaryLatex(table, input.config.table_caption)),
+    csv: write(outputPath(tablesDir, 'best_fits.csv'), pixels ? mapPixelsCsv(pixels) : summaryCsv(table)),
+    json: write(outputPath(tablesDir, 'best_fits.json'), pixels ? mapSummaryJson(pixels) : summaryJson(table, input)),
+    latex: write(outputPath(tablesDir, 'best_fits.tex'), pixels ? mapSummaryLatex(pixels, input.config.table_caption) : summaryLatex(table, input.config.table_caption, input.fit.joint)),
   };
 
   let maps: string[] = [];
@@ -87,6 +90,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
     reportHtml({
       input,
       table,
+      mapSummary: pixels,
       figures: htmlFigures,
       warnings,
       cautions: cautionsFor(input),

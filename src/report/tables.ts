@@ -7,9 +7,9 @@
  */
 import { toCsv, type CsvCell } from '../config/csv.ts';
 import { TABLE_LEVEL } from '../fit/regions.ts';
-import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
+import type { JointFit, ParameterInterval, SightlineFit } from '../fit/types.ts';
 import { escapeLatex } from './escape.ts';
-import { numberLatex } from './numbers.ts';
+import { chi2DofText, numberLatex, pValueText } from './numbers.ts';
 import type { ReportInput } from './types.ts';
 
 export interface ParameterCell {
@@ -32,6 +32,8 @@ export interface SummaryRow {
   reducedChi2: number;
   pValue: number;
   agreement: number;
+  /** Observed quantities that entered the fit (detections and limits). */
+  used: number;
   warnings: string[];
 }
 
@@ -59,6 +61,7 @@ export function summaryTable(input: ReportInput): SummaryTable {
     reducedChi2: fit.reducedChi2,
     pValue: fit.pValue,
     agreement: fit.agreementFraction,
+    used: fit.counts.detections + fit.counts.upperLimits + fit.counts.lowerLimits,
     warnings: fit.warnings,
   }));
   return { level, parameters, rows, poorFitP: input.fit.poorFitP };
@@ -129,7 +132,27 @@ function latexCell(c: ParameterCell): string {
   return `$${numberLatex(c.best)}$ ($${numberLatex(c.lo)}$--$${numberLatex(c.hi)}$)${note}`;
 }
 
-export function summaryLatex(table: SummaryTable, caption: string | undefined): string {
+/** Notes of the LaTeX table by mark; only the marks some row uses are defined. */
+function tableNotes(poorFitP: number): Record<string, string> {
+  return {
+    a: 'The interval reaches the edge of the model grid: the true range may extend beyond it.',
+    b: `Poor fit: $p < ${poorFitP}$.`,
+    c: 'Only the best grid value lies inside the interval: it is narrower than the grid spacing there.',
+  };
+}
+
+/** A joint group's row: the shared parameters with their intervals, the others profiled per member (no one value). */
+function jointLatexRow(j: JointFit, table: SummaryTable): string {
+  const cells = table.parameters.map((p) => {
+    if (!j.shared.includes(p)) return '\\nodata';
+    const iv = j.intervals.find((i) => i.parameter === p && Math.abs(i.level - table.level) < 1e-9);
+    return latexCell({ parameter: p, best: j.sharedBest[p], lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false, unresolved: iv?.unresolved ?? false });
+  });
+  const poor = j.pValue < table.poorFitP ? '\tablenotemark{b}' : '';
+  return [`${escapeLatex(j.name)} (${j.members.map(escapeLatex).join(', ')})`, '\\nodata', ...cells, chi2DofText(j.chi2, j.dof), `$${pValueText(j.pValue, 'latex')}$${poor}`].join(' & ');
+}
+
+export function summaryLatex(table: SummaryTable, caption: string | undefined, joint: readonly JointFit[] = []): string {
   const pct = `${Number((table.level * 100).toFixed(1))}\\%`;
   const text = caption !== undefined ? escapeLatex(caption) : `Best-fitting models with ${pct} confidence intervals`;
   const heads = table.parameters.map((p) => LATEX_HEADS[p] ?? [escapeLatex(p), '']);
@@ -143,11 +166,16 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
       escapeLatex(r.sightline),
       r.av === null ? '\\nodata' : `${Number(r.av.toPrecision(3))}`,
       ...r.parameters.map(latexCell),
-      `${Number(r.chi2.toPrecision(3))}/${r.dof}`,
-      `$${numberLatex(r.pValue)}$${poor}`,
+      chi2DofText(r.chi2, r.dof),
+      `$${pValueText(r.pValue, 'latex')}$${poor}`,
     ];
     return cells.join(' & ');
   });
+  const jointRows = joint.map((j) => jointLatexRow(j, table));
+  const rows = [...body, ...(jointRows.length > 0 ? [`\\cutinhead{Joint fits: parameters shared by the group}\n${jointRows[0]}`, ...jointRows.slice(1)] : [])];
+  const allText = rows.join('\n');
+  const notes = Object.entries(tableNotes(table.poorFitP)).filter(([mark]) => allText.includes(`\\tablenotemark{${mark}}`));
+  const jointComment = joint.length > 0 ? ' Joint fits: one value of each shared parameter for the whole group (listed in parentheses); the other parameters are fitted per sightline and have no single value.' : '';
   return [
     '% Best fits written by hoarfrost: AASTeX deluxetable layout.',
     `\\begin{deluxetable*}{${columns}}`,
@@ -157,12 +185,10 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
     `\\tablehead{${colheads(head1)} \\\\`,
     `  ${colheads(head2)}}`,
     '\\startdata',
-    body.join(' \\\\\n'),
+    rows.join(' \\\\\n'),
     '\\enddata',
-    `\\tablecomments{Intervals are the ranges of grid values inside the ${pct} confidence region of each parameter (profile $\\Delta\\chi^2$). A best fit is a statement about the model grid, not a measurement of the cloud.}`,
-    '\\tablenotetext{a}{The interval reaches the edge of the model grid: the true range may extend beyond it.}',
-    `\\tablenotetext{b}{Poor fit: $p < ${table.poorFitP}$.}`,
-    '\\tablenotetext{c}{Only the best grid value lies inside the interval: it is narrower than the grid spacing there.}',
+    `\\tablecomments{Intervals are the ranges of grid values inside the ${pct} confidence region of each parameter (profile $\\Delta\\chi^2$). A best fit is a statement about the model grid, not a measurement of the cloud.${jointComment}}`,
+    ...notes.map(([mark, note]) => `\\tablenotetext{${mark}}{${note}}`),
     '\\end{deluxetable*}',
     '',
   ].join('\n');

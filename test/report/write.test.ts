@@ -16,7 +16,7 @@ import { reportSection } from '../../src/config/sections/report.ts';
 import { writeReport } from '../../src/report/index.ts';
 import { carriedCards } from '../../src/report/maps.ts';
 import { outputPath } from '../../src/report/paths.ts';
-import { numberHtml, numberLatex, numberText } from '../../src/report/numbers.ts';
+import { chi2DofText, numberHtml, numberLatex, numberText, pValueText } from '../../src/report/numbers.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
 import { ASTROPY, needReference, PYTHON } from '../support/references.ts';
 import { scratch as scratchFolder } from '../support/scratch.ts';
@@ -286,5 +286,48 @@ describe('numbers and thresholds', () => {
     expect(numberLatex(0.5)).toBe('0.50');
     expect(numberHtml(3.2e-5)).toBe('3.2×10<sup>−5</sup>');
     expect(numberText(2.5e5)).toBe('2.5×10⁵');
+  });
+});
+
+describe('chi-square and p-values in tables', () => {
+  it('keeps the digits of chi^2 that a dof of 2 needs', () => {
+    expect(chi2DofText(1.0025, 2)).toBe('1.00/2');
+    expect(chi2DofText(23.456, 7)).toBe('23.5/7');
+    expect(chi2DofText(1234.5, 9)).toBe('1235/9');
+  });
+
+  it('never rounds a p-value to 0 or 1', () => {
+    expect(pValueText(0.9966)).toBe('0.997');
+    expect(pValueText(0.99996)).toBe('> 0.9999');
+    expect(pValueText(0.5)).toBe('0.50');
+    expect(pValueText(0.034)).toBe('0.034');
+    expect(pValueText(1.2e-12)).toBe('1.2×10⁻¹²');
+    expect(pValueText(1.2e-12, 'latex')).toBe('1.2\\times10^{-12}');
+    expect(pValueText(0.99996, 'html')).toBe('&gt; 0.9999');
+  });
+
+  it('defines only the table notes a row uses, and lists joint fits in the LaTeX table', async () => {
+    const input = syntheticInput({ joint: true, config: { formats: ['svg'], figures: ['fit_vs_av'] } });
+    input.fit.poorFitP = 1e-6;
+    for (const f of input.fit.fits) for (const iv of f.intervals) Object.assign(iv, { unresolved: false });
+    const files = await writeReport(input, join(scratch(), 'r'));
+    const tex = readFileSync(files.tables.latex, 'utf8');
+    for (const mark of ['a', 'b', 'c']) {
+      expect(tex.includes(`\\tablenotetext{${mark}}`), mark).toBe(tex.includes(`\\tablenotemark{${mark}}`));
+    }
+    expect(tex).not.toContain('\\tablenotetext{b}');
+    const body = tex.slice(tex.indexOf('\\startdata'), tex.indexOf('\\enddata'));
+    expect(body).toContain('\\cutinhead{Joint fits');
+    const joint = input.fit.joint[0];
+    const row = body.split('\n').find((l) => l.startsWith('\\textless{}b\\textgreater{}core'))!;
+    expect(row).toBeDefined();
+    // Shared age with its interval; density and temperature are fitted per member: no single value.
+    expect(row).toContain(`$${numberLatex(joint.sharedBest.age_yr)}$ ($${numberLatex(3e4)}$--$${numberLatex(3e5)}$)`);
+    expect(row.match(/\\nodata/g)).toHaveLength(3);
+    expect(row).toContain(chi2DofText(joint.chi2, joint.dof));
+    const html = readFileSync(files.html, 'utf8');
+    // Held parameters by their names, with units.
+    expect(html).toContain('Held fixed: Cosmic-ray ionisation rate 1.3×10⁻¹⁷ s⁻¹.');
+    expect(html).not.toContain('cr_ionisation_rate =');
   });
 });
