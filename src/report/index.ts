@@ -5,7 +5,7 @@
  *
  * Layout of outDir:
  *   index.html
- *   figures/NAME.vl.json, NAME.svg, NAME.png, NAME.pdf
+ *   figures/NAME.vl.json, NAME.svg, NAME.png, NAME.pdf, NAME.caption.txt (title and caption)
  *   tables/best_fits.csv, best_fits.json, best_fits.tex (a map: one row per fitted pixel; the LaTeX a summary over the pixels)
  *   maps/<image>.fits (maps only)
  */
@@ -50,6 +50,8 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
   for (const fig of figures) {
     const base = (ext: string) => outputPath(figuresDir, `${fig.name}${ext}`);
     const spec = write(base('.vl.json'), `${JSON.stringify(fig.spec, null, 2)}\n`);
+    // Journals print captions below the figure, not inside it: the figure files carry no title, the caption sits beside them.
+    const caption = write(base('.caption.txt'), `${fig.title}. ${fig.caption}\n`);
     const rendered: FigureFile['rendered'] = {};
     const figFormats = fig.formats ?? [...formats];
     const svg = await renderSvg(fig.spec);
@@ -57,7 +59,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
     if (figFormats.includes('svg')) rendered.svg = write(base('.svg'), svg.svg);
     if (figFormats.includes('png')) rendered.png = write(base('.png'), svgToPng(svg.svg, input.config.png_dpi));
     if (figFormats.includes('pdf')) rendered.pdf = write(base('.pdf'), await svgToPdf(svg, fig.title));
-    figureFiles.push({ name: fig.name, kind: fig.kind, title: fig.title, sightline: fig.sightline, spec, rendered });
+    figureFiles.push({ name: fig.name, kind: fig.kind, title: fig.title, sightline: fig.sightline, spec, caption, rendered });
     const rel = (f: string) => relative(dir, f).split('\\').join('/');
     htmlFigures.push({
       figure: fig,

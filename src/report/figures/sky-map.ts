@@ -52,7 +52,6 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
   if (map.nx * map.ny > RASTER_MIN_PIXELS && rows.length > 0) return rasterSpec(ctx, map, image, values, kind, [lo, hi], plotWidth, height);
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
     width: plotWidth,
     height,
     config: figureConfig(),
@@ -90,7 +89,6 @@ function rasterSpec(ctx: FigureContext, map: MapFitJson, image: SkyImage, values
   const y = { field: 'y', type: 'quantitative' as const, title: 'Pixel y', axis: { grid: false }, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
     width,
     height,
     config: figureConfig(),
@@ -134,7 +132,7 @@ export const skyMapFigure: FigureBuilder = {
       name: `${request.name}_${image.image}`,
       kind: 'sky_map' as const,
       title: image.title,
-      caption: `${image.title} of every map pixel, in pixel coordinates (x right, y up, as in the FITS images); blank pixels have no fit.`,
+      caption: `${image.title} of every map pixel, in pixel coordinates (x right, y up, as in the FITS images); blank pixels have no fit (${map.fittedPixels} of ${map.nx * map.ny} pixels fitted).`,
       spec: buildSkyMapSpec(ctx, map, image),
     }));
   },
