@@ -85,6 +85,31 @@ function summaryHtml(table: SummaryTable): string {
   return `<table class="summary"><thead><tr>${heads.map((h) => `<th scope="col">${h}</th>`).join('')}</tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
 }
 
+/**
+ * Each quantity's share of chi^2 at every sightline's best fit, with the
+ * total: the quantity that contributes most to a row is marked, so the reader
+ * sees what drives a poor fit without opening residuals.csv.
+ */
+function chi2SharesHtml(input: HtmlInput['input']): string {
+  const fits = input.fit.fits.filter((f) => f.residuals.length > 0);
+  const quantities = [...new Set(fits.flatMap((f) => f.residuals.map((r) => r.label)))];
+  const share = (x: number) => (x < 0.005 ? '0.00' : x < 10 ? x.toFixed(2) : x < 100 ? x.toFixed(1) : x.toFixed(0));
+  const rows = fits.map((f) => {
+    const by = new Map(f.residuals.map((r) => [r.label, r] as const));
+    const top = f.residuals.reduce((a, r) => (r.chi2 > a.chi2 ? r : a), f.residuals[0]);
+    const cells = quantities.map((q) => {
+      const r = by.get(q);
+      if (!r) return '<td>–</td>';
+      const mark = r.kind === 'upper' ? ' ▼' : r.kind === 'lower' ? ' ▲' : '';
+      return `<td${r === top && r.chi2 > 0 ? ' class="drives" title="the largest share of this fit\'s χ²"' : ''}>${share(r.chi2)}${mark}</td>`;
+    });
+    return `<tr><th scope="row">${escapeHtml(f.sightline)}</th>${cells.join('')}<td>${share(f.best.chi2)}</td><td${f.pValue < input.fit.poorFitP ? ' class="poor"' : ''}>${pValueText(f.pValue, 'html')}</td></tr>`;
+  });
+  const totals = quantities.map((q) => share(fits.reduce((a, f) => a + (f.residuals.find((r) => r.label === q)?.chi2 ?? 0), 0)));
+  const heads = ["Sightline", ...quantities.map((q) => escapeHtml(q).replace(/\//g, "/<wbr>")), "χ²", "p"];
+  return `<table class="summary shares"><thead><tr>${heads.map((h) => `<th scope="col">${h}</th>`).join('')}</tr></thead><tbody>\n${rows.join('\n')}\n</tbody><tfoot><tr><th scope="row">All sightlines</th>${totals.map((t) => `<td>${t}</td>`).join('')}<td>${share(fits.reduce((a, f) => a + f.best.chi2, 0))}</td><td></td></tr></tfoot></table>`;
+}
+
 /** Groups of sightlines fitted as one with shared parameters. */
 function jointHtml(joint: readonly JointFit[], level: number): string {
   const rows = joint.map((j) => {
@@ -129,7 +154,7 @@ h1 { font-size: 1.6em; margin-bottom: 0.2em; } h2 { border-bottom: 1px solid #cc
 table { border-collapse: collapse; font-size: 0.85em; } th, td { border-bottom: 1px solid #ddd; padding: 0.3em 0.6em; text-align: left; vertical-align: top; }
 table.summary td { white-space: nowrap; } table.summary td.warnings, tr.warn-row td { white-space: normal; font-size: 0.85em; color: #7a4a00; }
 tr.warn-row td { border-bottom: 1px solid #ccc; padding-top: 0; } table.summary tr:has(+ tr.warn-row) > * { border-bottom: none; }
-td.warnings ul, tr.warn-row ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } .edge, .poor { color: #b00020; font-weight: bold; }
+td.warnings ul, tr.warn-row ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } td.drives { font-weight: bold; } table.shares th[scope=col] { white-space: normal; max-width: 7em; font-weight: normal; overflow-wrap: anywhere; } table.shares tfoot th, table.shares tfoot td { border-top: 1px solid #999; } .edge, .poor { color: #b00020; font-weight: bold; }
 .figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 34em; }
 figcaption { font-size: 0.85em; color: #333; } .files { font-size: 0.8em; }
 .vis svg text { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; }
@@ -220,6 +245,7 @@ export function reportHtml(h: HtmlInput): string {
 ${h.table.rows.length > 0 ? `<div class="scroll">${summaryHtml(h.table)}</div>` : h.mapSummary ? `<div class="scroll">${mapSummaryHtml(h.mapSummary)}</div>\n<p class="files">One row per fitted pixel: the CSV table; every image: the FITS files linked above.</p>` : '<p>No fitted sightline.</p>'}
 ${h.table.rows.length > 0 ? '<p class="files">‡ the interval reaches the edge of the model grid. Within ×10: how many of the observed quantities the best fit matches within a factor of 10 (limits: satisfied); a count for orientation, not a test: the p-value beside it is the test of the fit.</p>' : ''}
 </section>
+${input.fit.fits.some((f) => f.residuals.length > 0) ? `<section id="chi2-shares">\n<h2>What drives each fit: χ² by quantity</h2>\n<div class="scroll">${chi2SharesHtml(input)}</div>\n<p class="files">Each observed quantity's share of χ² at the sightline's best fit (▼ upper, ▲ lower limit); the largest share of each row is in bold. The residuals figure below shows the same by colour, with the residuals in dex.</p>\n</section>` : ''}
 ${input.fit.joint.length > 0 ? `<section id="joint">\n<h2>Joint fits</h2>\n<div class="scroll">${jointHtml(input.fit.joint, h.table.level)}</div>\n</section>` : ''}
 <section id="cautions">
 <h2>Read these results with care</h2>

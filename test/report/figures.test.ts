@@ -27,6 +27,7 @@ const EXPECTED_TITLES: Record<string, string[]> = {
   fit_vs_av: ['Visual extinction (mag)', 'Density (cm⁻³)', 'Chemical age (yr)'],
   profiles: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Δχ²'],
   sky_map: ['Pixel x', 'Pixel y'],
+  residuals: ['Sightline', 'Quantity', 'Residual (σ)'],
 };
 
 /** Text content of an SVG's <text> elements, entities decoded. */
@@ -50,7 +51,7 @@ describe('figure builders', () => {
 
   it('draws every kind for a table and a map', () => {
     const kinds = new Set(figures.map((f) => f.kind));
-    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'profiles', 'sky_map', 'tracks']);
+    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'profiles', 'residuals', 'sky_map', 'tracks']);
     // Per-sightline kinds: one figure per sightline of the table (4) plus the one chosen map pixel.
     expect(figures.filter((f) => f.kind === 'chi2_map')).toHaveLength(5);
     expect(figures.filter((f) => f.kind === 'sky_map').map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2']);
@@ -59,7 +60,7 @@ describe('figure builders', () => {
   it('gives every figure a safe, unique file name even for hostile sightline names', () => {
     const names = figures.map((f) => f.name);
     for (const n of names) expect(n).toMatch(/^[A-Za-z0-9_-][A-Za-z0-9._-]*$/);
-    expect(new Set(names.slice(0, 13)).size).toBe(13);
+    expect(new Set(names.slice(0, 14)).size).toBe(14);
   });
 
   it('validates every spec against the Vega-Lite JSON schema', () => {
@@ -88,7 +89,7 @@ describe('figure builders', () => {
       expect(out.width).toBeGreaterThan(200);
       expect(out.width).toBeLessThan(330);
     }
-    expect(seen.size).toBe(5);
+    expect(seen.size).toBe(6);
   });
 
   it('puts no title inside a figure file: the title and caption name the sightline and the best fit in words', () => {
@@ -103,10 +104,25 @@ describe('figure builders', () => {
   });
 
   it('shows a hostile sightline name as text in the SVG, escaped, with no element made of it', async () => {
-    const g = figures.find((x) => x.kind === 'chi2_map' && x.sightline === HOSTILE_NAMES[1]);
-    const out2 = await renderSvg(g!.spec);
-    expect(out2.svg).not.toContain('<script');
-    expect(XMLValidator.validate(out2.svg)).toBe(true);
+    const g = figures.find((x) => x.kind === 'residuals')!;
+    const out = await renderSvg(g.spec);
+    expect(out.svg).not.toContain('<script');
+    expect(out.svg).toContain('&lt;script&gt;alert(1)&lt;/script&gt;');
+    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(HOSTILE_NAMES));
+    expect(XMLValidator.validate(out.svg)).toBe(true);
+  });
+
+  it('colours each residual by its sigma and labels it in dex, limits by a triangle', () => {
+    const g = figures.find((x) => x.kind === 'residuals')!;
+    const rows = (g.spec as { data: { values: { sightline: string; quantity: string; sigma: number; label: string; kind: string }[] } }).data.values;
+    const input = syntheticInput();
+    const fit = input.fit.fits[0];
+    for (const r of fit.residuals) {
+      const row = rows.find((x) => x.sightline === fit.sightline && x.quantity === r.label)!;
+      expect(Math.abs(row.sigma)).toBeCloseTo(Math.sqrt(r.chi2), 12);
+      if (r.kind === 'detection') expect(Number(row.label.replace('−', '-'))).toBeCloseTo(r.residualDex, 1);
+      else expect(row.label).toBe(r.kind === 'upper' ? '▼' : '▲');
+    }
   });
 
   it('writes a PNG with text (bundled fonts) and a vector PDF with DejaVu embedded', async () => {

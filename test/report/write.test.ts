@@ -69,7 +69,7 @@ describe('writeReport on a table of sightlines', () => {
   });
 
   it('saves each figure as NAME.svg, NAME.png and NAME.pdf beside NAME.vl.json', () => {
-    expect(files.figures).toHaveLength(13);
+    expect(files.figures).toHaveLength(14);
     for (const f of files.figures) {
       const stem = f.spec.replace(/\.vl\.json$/, '');
       expect(f.rendered).toEqual({ svg: `${stem}.svg`, png: `${stem}.png`, pdf: `${stem}.pdf` });
@@ -135,7 +135,8 @@ describe('writeReport on a table of sightlines', () => {
     expect(tex).toContain('\\tablenotetext{b}{Poor fit: $p < 0.1$.}');
     const html = readFileSync(f.html, 'utf8');
     expect(html).toContain('(narrower than the grid step)');
-    expect(html.match(/<td class="poor">/g)).toHaveLength(2);
+    const summary = html.slice(html.indexOf('<section id="summary">'), html.indexOf('</section>', html.indexOf('<section id="summary">')));
+    expect(summary.match(/<td class="poor">/g)).toHaveLength(2);
     expect(csvParse(readFileSync(f.tables.csv, 'utf8'))[0].density_unresolved).toBe('true');
   });
 
@@ -329,5 +330,26 @@ describe('chi-square and p-values in tables', () => {
     // Held parameters by their names, with units.
     expect(html).toContain('Held fixed: Cosmic-ray ionisation rate 1.3×10⁻¹⁷ s⁻¹.');
     expect(html).not.toContain('cr_ionisation_rate =');
+  });
+});
+
+describe('chi^2 by quantity in the HTML', () => {
+  it("marks the quantity with the largest share of each sightline's chi^2, and the shares sum to the fit's chi^2", async () => {
+    const input = syntheticInput({ config: { formats: ['svg'], figures: ['residuals'] } });
+    const files = await writeReport(input, join(scratch(), 'r'));
+    const html = readFileSync(files.html, 'utf8');
+    const section = html.slice(html.indexOf('<section id="chi2-shares">'), html.indexOf('</section>', html.indexOf('<section id="chi2-shares">')));
+    expect(section).toContain('What drives each fit');
+    const rows = [...section.matchAll(/<tr><th scope="row">([^<]*)<\/th>(.*?)<\/tr>/g)].filter((m) => m[1] !== 'All sightlines');
+    expect(rows).toHaveLength(input.fit.fits.length);
+    rows.forEach((m, i) => {
+      const fit = input.fit.fits[i];
+      const cells = [...m[2].matchAll(/<td([^>]*)>([^<]*)<\/td>/g)].slice(0, fit.residuals.length);
+      const top = fit.residuals.reduce((a, r) => (r.chi2 > a.chi2 ? r : a));
+      const bold = cells.findIndex((c) => c[1].includes('drives'));
+      expect(fit.residuals[bold].label).toBe(top.label);
+      const sum = cells.reduce((a, c) => a + Number(c[2].replace(/[▼▲ ]/g, '')), 0);
+      expect(sum).toBeCloseTo(fit.residuals.reduce((a, r) => a + r.chi2, 0), 1);
+    });
   });
 });

@@ -12,6 +12,7 @@ import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from '.
 import { chi2MapFigure } from './chi2-map.ts';
 import { fitVsAvFigure } from './fit-vs-av.ts';
 import { profilesFigure } from './profiles.ts';
+import { residualsFigure } from './residuals.ts';
 import { skyMapFigure } from './sky-map.ts';
 import { tracksFigure } from './tracks.ts';
 
@@ -21,11 +22,12 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   fit_vs_av: fitVsAvFigure,
   profiles: profilesFigure,
   sky_map: skyMapFigure,
+  residuals: residualsFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+  table: ['residuals', 'fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
