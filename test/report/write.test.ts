@@ -171,6 +171,7 @@ describe('writeReport on a map', () => {
 import json, sys, math
 from astropy.io import fits
 from astropy.wcs import WCS
+import astropy.units as u
 out = {}
 for f in sys.argv[1:]:
     with fits.open(f) as h:
@@ -178,7 +179,7 @@ for f in sys.argv[1:]:
         d = h[0].data
         hd = h[0].header
         w = WCS(hd)
-        out[f.split('/')[-1]] = {'shape': list(d.shape), 'bunit': hd.get('BUNIT'), 'object': hd.get('OBJECT'), 'ctype': [hd['CTYPE1'], hd['CTYPE2']],
+        out[f.split('/')[-1]] = {'shape': list(d.shape), 'bunit': hd.get('BUNIT'), 'dimensionless': 'BUNIT' in hd and u.Unit(hd['BUNIT']) == u.dimensionless_unscaled, 'object': hd.get('OBJECT'), 'ctype': [hd['CTYPE1'], hd['CTYPE2']],
             'crpix': [hd['CRPIX1'], hd['CRPIX2']], 'world': [float(v) for v in w.pixel_to_world_values(3.5, 2.5)],
             'corner': None if math.isnan(d[4, 0]) else float(d[4, 0]), 'x5y0': float(d[0, 5])}
 print(json.dumps(out))
@@ -200,6 +201,9 @@ print(json.dumps(out))
     // A header value with markup characters is carried as written: in FITS it is plain text.
     expect(got['best_age_yr.fits'].object).toBe('Frostmere <map> & "50%"');
     expect(got['best_age_yr.fits'].bunit).toBe('yr');
+    // Dimensionless images carry BUNIT too, empty: astropy reads it as dimensionless.
+    expect(got['best_chi2.fits'].bunit).toBe('');
+    expect(got['best_chi2.fits'].dimensionless).toBe(true);
   });
 });
 
