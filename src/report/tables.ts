@@ -68,7 +68,7 @@ export function summaryTable(input: ReportInput): SummaryTable {
 }
 
 /** Density and age first (the quantities a reader looks for), the rest in the fit's order. */
-function orderParameters(fitted: readonly string[]): string[] {
+export function orderParameters(fitted: readonly string[]): string[] {
   const first = ['density', 'age_yr'].filter((p) => fitted.includes(p));
   return [...first, ...fitted.filter((p) => !first.includes(p))];
 }

@@ -28,7 +28,11 @@ const EXPECTED_TITLES: Record<string, string[]> = {
   profiles: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Δχ²'],
   sky_map: ['Pixel x', 'Pixel y'],
   residuals: ['Sightline', 'Quantity', 'Residual (σ)'],
+  ice_vs_av: ['Visual extinction (mag)', 'Ratio to H2O(s)'],
+  parameters: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Sightline (in order of visual extinction)'],
 };
+/** Figures of survey-wide kinds span both columns of a page (7.1 in = 511 pt, with room for legends); the rest one column. */
+const FULL_WIDTH_KINDS = new Set(['residuals', 'ice_vs_av']);
 
 /** Text content of an SVG's <text> elements, entities decoded. */
 function svgTexts(svg: string): string[] {
@@ -51,7 +55,7 @@ describe('figure builders', () => {
 
   it('draws every kind for a table and a map', () => {
     const kinds = new Set(figures.map((f) => f.kind));
-    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'profiles', 'residuals', 'sky_map', 'tracks']);
+    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'ice_vs_av', 'parameters', 'profiles', 'residuals', 'sky_map', 'tracks']);
     // Per-sightline kinds: one figure per sightline of the table (4) plus the one chosen map pixel.
     expect(figures.filter((f) => f.kind === 'chi2_map')).toHaveLength(5);
     expect(figures.filter((f) => f.kind === 'sky_map').map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2']);
@@ -60,7 +64,7 @@ describe('figure builders', () => {
   it('gives every figure a safe, unique file name even for hostile sightline names', () => {
     const names = figures.map((f) => f.name);
     for (const n of names) expect(n).toMatch(/^[A-Za-z0-9_-][A-Za-z0-9._-]*$/);
-    expect(new Set(names.slice(0, 14)).size).toBe(14);
+    expect(new Set(names.slice(0, 16)).size).toBe(16);
   });
 
   it('validates every spec against the Vega-Lite JSON schema', () => {
@@ -87,9 +91,9 @@ describe('figure builders', () => {
       for (const title of EXPECTED_TITLES[f.kind]) expect(texts, `${f.name} lacks '${title}'`).toContain(title);
       // A figure for one printed column: 3.4 in = 245 pt, with a little room for legends.
       expect(out.width).toBeGreaterThan(200);
-      expect(out.width).toBeLessThan(330);
+      expect(out.width, f.name).toBeLessThan(FULL_WIDTH_KINDS.has(f.kind) ? 620 : 330);
     }
-    expect(seen.size).toBe(6);
+    expect(seen.size).toBe(8);
   });
 
   it('puts no title inside a figure file: the title and caption name the sightline and the best fit in words', () => {

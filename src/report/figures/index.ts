@@ -11,6 +11,8 @@ import type { ReportInput } from '../types.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
 import { chi2MapFigure } from './chi2-map.ts';
 import { fitVsAvFigure } from './fit-vs-av.ts';
+import { iceVsAvFigure } from './ice-vs-av.ts';
+import { parametersFigure } from './parameters.ts';
 import { profilesFigure } from './profiles.ts';
 import { residualsFigure } from './residuals.ts';
 import { skyMapFigure } from './sky-map.ts';
@@ -23,11 +25,13 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   profiles: profilesFigure,
   sky_map: skyMapFigure,
   residuals: residualsFigure,
+  ice_vs_av: iceVsAvFigure,
+  parameters: parametersFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['residuals', 'fit_vs_av', 'chi2_map', 'profiles', 'tracks'],
+  table: ['residuals', 'ice_vs_av', 'fit_vs_av', 'parameters', 'chi2_map', 'profiles', 'tracks'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
