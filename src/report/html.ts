@@ -144,6 +144,11 @@ function shellWord(w: string): string {
   return /^[A-Za-z0-9_@%+=:,./-]+$/.test(w) ? w : `'${w.replace(/'/g, `'\\''`)}'`;
 }
 
+/** Our captions write n_H and A_V as plain text; in HTML they get real subscripts (applied to escaped text, only these two symbols: adds only <sub>). */
+export function subscripts(escaped: string): string {
+  return escaped.replace(/\b(n|A)_(H|V)\b/g, '$1<sub>$2</sub>');
+}
+
 function linksHtml(links: { label: string; href: string }[]): string {
   return links.map((l) => `<a href="${escapeHtml(encodeURI(l.href))}">${escapeHtml(l.label)}</a>`).join(' · ');
 }
@@ -216,7 +221,7 @@ export function reportHtml(h: HtmlInput): string {
     const heading = FIGURE_BUILDERS[kind as keyof typeof FIGURE_BUILDERS].description;
     const items = list.map(
       ({ f, i }) =>
-        `<figure id="figure-${i}"><div class="vis" id="vis-${i}"></div><figcaption><strong>${escapeHtml(f.figure.title)}.</strong> ${escapeHtml(f.figure.caption)}</figcaption><p class="files">${linksHtml(f.links)}</p></figure>`,
+        `<figure id="figure-${i}"><div class="vis" id="vis-${i}"></div><figcaption><strong>${subscripts(escapeHtml(f.figure.title))}.</strong> ${subscripts(escapeHtml(f.figure.caption))}</figcaption><p class="files">${linksHtml(f.links)}</p></figure>`,
     );
     return `<h3>${escapeHtml(heading.replace(/^[a-z]/, (c) => c.toUpperCase()))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
   });

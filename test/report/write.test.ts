@@ -357,3 +357,11 @@ describe('chi^2 by quantity in the HTML', () => {
     });
   });
 });
+
+describe('subscripts in HTML captions', () => {
+  it('writes n_H and A_V with <sub> and leaves other underscores alone', async () => {
+    const { subscripts } = await import('../../src/report/html.ts');
+    expect(subscripts('best fit n_H = 3 cm⁻³, model A_V = 5 mag')).toBe('best fit n<sub>H</sub> = 3 cm⁻³, model A<sub>V</sub> = 5 mag');
+    expect(subscripts('50%_&amp;_#1 and T_Tauri')).toBe('50%_&amp;_#1 and T_Tauri');
+  });
+});
