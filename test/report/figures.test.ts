@@ -29,6 +29,7 @@ const EXPECTED_TITLES: Record<string, string[]> = {
   sky_map: ['Pixel x', 'Pixel y'],
   residuals: ['Sightline', 'Quantity', 'Residual (σ)'],
   ice_vs_av: ['Visual extinction (mag)', 'Ratio to H2O(s)'],
+  sky_positions: ['Right ascension (deg)', 'Declination (deg)'],
   parameters: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Sightline (in order of visual extinction)'],
 };
 /** Figures of survey-wide kinds span both columns of a page (7.1 in = 511 pt, with room for legends); the rest one column. */
@@ -55,7 +56,7 @@ describe('figure builders', () => {
 
   it('draws every kind for a table and a map', () => {
     const kinds = new Set(figures.map((f) => f.kind));
-    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'ice_vs_av', 'parameters', 'profiles', 'residuals', 'sky_map', 'tracks']);
+    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'ice_vs_av', 'parameters', 'profiles', 'residuals', 'sky_map', 'sky_positions', 'tracks']);
     // Per-sightline kinds: one figure per sightline of the table (4) plus the one chosen map pixel.
     expect(figures.filter((f) => f.kind === 'chi2_map')).toHaveLength(5);
     expect(figures.filter((f) => f.kind === 'sky_map').map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2']);
@@ -64,7 +65,7 @@ describe('figure builders', () => {
   it('gives every figure a safe, unique file name even for hostile sightline names', () => {
     const names = figures.map((f) => f.name);
     for (const n of names) expect(n).toMatch(/^[A-Za-z0-9_-][A-Za-z0-9._-]*$/);
-    expect(new Set(names.slice(0, 16)).size).toBe(16);
+    expect(new Set(names.slice(0, 19)).size).toBe(19);
   });
 
   it('validates every spec against the Vega-Lite JSON schema', () => {
@@ -93,7 +94,7 @@ describe('figure builders', () => {
       expect(out.width).toBeGreaterThan(200);
       expect(out.width, f.name).toBeLessThan(FULL_WIDTH_KINDS.has(f.kind) ? 620 : 330);
     }
-    expect(seen.size).toBe(8);
+    expect(seen.size).toBe(9);
   });
 
   it('puts no title inside a figure file: the title and caption name the sightline and the best fit in words', () => {

@@ -144,7 +144,8 @@ export function syntheticInput(options: FixtureOptions = {}): ReportInput {
       const violated = (kind === 'upper' && d > 0) || (kind === 'lower' && d < 0);
       residuals.push({ label: q.label, numerator: q.numerator, denominator: q.denominator, kind, observedLog10: obs, sigmaLoDex: kind === 'detection' ? 0.12 : 0, sigmaHiDex: kind === 'detection' ? 0.1 : 0, modelLog10: model, residualDex: d, sigmaDex: width, chi2: kind === 'detection' || violated ? (d / width) ** 2 : 0, agrees: kind === 'detection' ? Math.abs(d) < 1 : !violated });
     });
-    sightlines.push({ id, av: 4 + 6 * k, avErr: 0.8, columns: {}, source: { file: 'frostmere.csv', row: k + 2 } });
+    // Invented positions in a small field near Dec -30 deg.
+    sightlines.push({ id, av: 4 + 6 * k, avErr: 0.8, ra: 201.3 + 0.05 * k, dec: -30.1 + 0.03 * ((k * 7) % 4), columns: {}, source: { file: 'frostmere.csv', row: k + 2 } });
   });
   const fit: FitStageResult = {
     format: 'hoarfrost-fit/1',

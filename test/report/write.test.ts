@@ -69,7 +69,7 @@ describe('writeReport on a table of sightlines', () => {
   });
 
   it('saves each figure as NAME.svg, NAME.png and NAME.pdf beside NAME.vl.json', () => {
-    expect(files.figures).toHaveLength(16);
+    expect(files.figures).toHaveLength(19);
     for (const f of files.figures) {
       const stem = f.spec.replace(/\.vl\.json$/, '');
       expect(f.rendered).toEqual({ svg: `${stem}.svg`, png: `${stem}.png`, pdf: `${stem}.pdf` });

@@ -16,6 +16,7 @@ import { parametersFigure } from './parameters.ts';
 import { profilesFigure } from './profiles.ts';
 import { residualsFigure } from './residuals.ts';
 import { skyMapFigure } from './sky-map.ts';
+import { skyPositionsFigure } from './sky-positions.ts';
 import { tracksFigure } from './tracks.ts';
 
 export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
@@ -27,11 +28,12 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   residuals: residualsFigure,
   ice_vs_av: iceVsAvFigure,
   parameters: parametersFigure,
+  sky_positions: skyPositionsFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['residuals', 'ice_vs_av', 'fit_vs_av', 'parameters', 'chi2_map', 'profiles', 'tracks'],
+  table: ['residuals', 'ice_vs_av', 'fit_vs_av', 'parameters', 'sky_positions', 'chi2_map', 'profiles', 'tracks'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */
