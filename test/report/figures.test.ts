@@ -26,7 +26,7 @@ const EXPECTED_TITLES: Record<string, string[]> = {
   tracks: ['Chemical age (yr)', 'Ratio to H2O(s)', 'X relative to H'],
   fit_vs_av: ['Visual extinction (mag)', 'Density (cm⁻³)', 'Chemical age (yr)'],
   profiles: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Δχ²'],
-  sky_map: ['Pixel x', 'Pixel y'],
+  sky_map: ['Right ascension (deg)', 'Declination (deg)'],
   residuals: ['Sightline', 'Quantity', 'Residual (σ)'],
   ice_vs_av: ['Visual extinction (mag)', 'Ratio to H2O(s)'],
   sky_positions: ['Right ascension (deg)', 'Declination (deg)'],
@@ -177,7 +177,7 @@ describe('figure builders', () => {
     const out = await renderSvg(density.spec);
     expect(out.warnings).toEqual([]);
     expect(out.svg).toContain('<image');
-    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(['Pixel x', 'Pixel y', 'Density (cm⁻³)']));
+    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(['Right ascension (deg)', 'Declination (deg)', 'Density (cm⁻³)']));
     // Without the per-pixel rectangles the figure stays small.
     expect(out.svg.length).toBeLessThan(400_000);
   });
@@ -192,5 +192,27 @@ describe('figure builders', () => {
   it('drops only all-gap-zero dash patterns before the PDF', () => {
     expect(solidDashesRemoved('<path stroke-dasharray="1,0" d="M0"/>')).toBe('<path d="M0"/>');
     expect(solidDashesRemoved('<path stroke-dasharray="4,2" d="M0"/>')).toBe('<path stroke-dasharray="4,2" d="M0"/>');
+  });
+});
+
+describe('sky images in world coordinates', () => {
+  it('labels the axes with RA and Dec from the WCS (east to the left), and keeps pixel axes without one', async () => {
+    const input = syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'] } });
+    const fig = buildFigures(input, []).find((f) => f.name === 'sky_map_best_density')!;
+    const texts = svgTexts((await renderSvg(fig.spec)).svg);
+    const numbers = texts.map(Number).filter((v) => Number.isFinite(v));
+    const ra = numbers.filter((v) => v > 80);
+    const dec = numbers.filter((v) => v < 0);
+    expect(ra.length).toBeGreaterThanOrEqual(2);
+    expect(dec.length).toBeGreaterThanOrEqual(2);
+    // Around CRVAL (83.8, -5.4) within the 8 x 6 mrad-sized field.
+    for (const v of ra) expect(Math.abs(v - 83.8)).toBeLessThan(0.006);
+    for (const v of dec) expect(Math.abs(v + 5.4)).toBeLessThan(0.004);
+    // CDELT1 < 0: RA falls from left to right, as on the sky.
+    expect(ra[0]).toBeGreaterThan(ra[ra.length - 1]);
+    const noWcs = syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'] } });
+    noWcs.observations.map = { nx: 8, ny: 6, wcs: {} };
+    const plain = buildFigures(noWcs, []).find((f) => f.name === 'sky_map_best_density')!;
+    expect(svgTexts((await renderSvg(plain.spec)).svg)).toEqual(expect.arrayContaining(['Pixel x', 'Pixel y']));
   });
 });
