@@ -153,6 +153,9 @@ function linksHtml(links: { label: string; href: string }[]): string {
   return links.map((l) => `<a href="${escapeHtml(encodeURI(l.href))}">${escapeHtml(l.label)}</a>`).join(' · ');
 }
 
+/** Figures that span both columns of a page: on screen they get the page's width. */
+const WIDE_KINDS = new Set<string>(['residuals', 'ice_vs_av']);
+
 const STYLE = `
 body { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; margin: 2em auto; max-width: 72em; padding: 0 1em; color: #111; line-height: 1.4; }
 h1 { font-size: 1.6em; margin-bottom: 0.2em; } h2 { border-bottom: 1px solid #ccc; margin-top: 2em; } h3 { margin-top: 1.5em; }
@@ -160,7 +163,7 @@ table { border-collapse: collapse; font-size: 0.85em; } th, td { border-bottom: 
 table.summary td { white-space: nowrap; } table.summary td.warnings, tr.warn-row td { white-space: normal; font-size: 0.85em; color: #7a4a00; }
 tr.warn-row td { border-bottom: 1px solid #ccc; padding-top: 0; } table.summary tr:has(+ tr.warn-row) > * { border-bottom: none; }
 td.warnings ul, tr.warn-row ul { margin: 0; padding-left: 1.1em; } .range { color: #555; } td.drives { font-weight: bold; } table.shares th[scope=col] { white-space: normal; max-width: 7em; font-weight: normal; overflow-wrap: anywhere; } table.shares tfoot th, table.shares tfoot td { border-top: 1px solid #999; } .edge, .poor { color: #b00020; font-weight: bold; }
-.figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 34em; }
+.figures { display: flex; flex-wrap: wrap; gap: 1.5em; } figure { margin: 0; max-width: 34em; } figure.wide { max-width: 100%; }
 figcaption { font-size: 0.85em; color: #333; } .files { font-size: 0.8em; }
 .vis svg text { font-family: 'DejaVu Sans', 'Bitstream Vera Sans', Verdana, sans-serif; }
 /* Figures are sized in points for a printed column; on screen they are drawn half as large again. */
@@ -221,9 +224,9 @@ export function reportHtml(h: HtmlInput): string {
     const heading = FIGURE_BUILDERS[kind as keyof typeof FIGURE_BUILDERS].description;
     const items = list.map(
       ({ f, i }) =>
-        `<figure id="figure-${i}"><div class="vis" id="vis-${i}"></div><figcaption><strong>${subscripts(escapeHtml(f.figure.title))}.</strong> ${subscripts(escapeHtml(f.figure.caption))}</figcaption><p class="files">${linksHtml(f.links)}</p></figure>`,
+        `<figure id="figure-${i}"${WIDE_KINDS.has(f.figure.kind) ? ' class="wide"' : ''}><div class="vis" id="vis-${i}"></div><figcaption><strong>${subscripts(escapeHtml(f.figure.title))}.</strong> ${subscripts(escapeHtml(f.figure.caption))}</figcaption><p class="files">${linksHtml(f.links)}</p></figure>`,
     );
-    return `<h3>${escapeHtml(heading.replace(/^[a-z]/, (c) => c.toUpperCase()))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
+    return `<h3>${subscripts(escapeHtml(heading.replace(/^[a-z]/, (c) => c.toUpperCase())))}</h3>\n<div class="figures">\n${items.join('\n')}\n</div>`;
   });
   // The fit stage gathers every warning, the rows' too: the rows show theirs, this list the rest, each once.
   const inRows = new Set([...input.fit.fits.flatMap((f) => f.warnings), ...input.fit.joint.flatMap((j) => j.warnings)]);

@@ -11,6 +11,7 @@ import { Ajv, type ValidateFunction } from 'ajv';
 import { XMLValidator } from 'fast-xml-parser';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { buildFigures } from '../../src/report/figures/index.ts';
+import { logAxis } from '../../src/report/figures/axes.ts';
 import type { BuiltFigure } from '../../src/report/figures/builder.ts';
 import * as vega from 'vega';
 import { blockSize, pixelColours } from '../../src/report/raster.ts';
@@ -214,5 +215,15 @@ describe('sky images in world coordinates', () => {
     noWcs.observations.map = { nx: 8, ny: 6, wcs: {} };
     const plain = buildFigures(noWcs, []).find((f) => f.name === 'sky_map_best_density')!;
     expect(svgTexts((await renderSvg(plain.spec)).svg)).toEqual(expect.arrayContaining(['Pixel x', 'Pixel y']));
+  });
+});
+
+describe('log axes of less than two decades', () => {
+  it('labels columns of 10^17 to 10^18 as 2×10¹⁷, not 2e+17, and keeps plain labels for ratios', () => {
+    const axis = logAxis(1.5e17, 7e18);
+    expect(axis.values).toEqual([2e17, 5e17, 1e18, 2e18, 5e18]);
+    expect(axis.labelExpr).toContain(`"${String(2e17)}":"2×10¹⁷"`);
+    expect(axis.labelExpr).toContain(`"${String(1e18)}":"10¹⁸"`);
+    expect(logAxis(0.09, 0.7)).toEqual({ format: '~g' });
   });
 });

@@ -95,7 +95,7 @@ export function cellEdges(kind: ScaleKind, values: readonly number[]): number[] 
 export function logAxis(lo: number, hi: number): DecadeAxis {
   const kLo = Math.ceil(Math.log10(lo) - 1e-9);
   const kHi = Math.floor(Math.log10(hi) + 1e-9);
-  if (kHi - kLo < 1) return { format: '~g' };
+  if (kHi - kLo < 1) return lo >= PLAIN_LABEL_MAX || hi < PLAIN_LABEL_MIN ? steppedLogAxis(lo, hi) : { format: '~g' };
   const step = Math.max(1, Math.ceil((kHi - kLo + 1) / MAX_DECADE_TICKS));
   const values: number[] = [];
   const labels: Record<string, string> = {};
@@ -104,6 +104,25 @@ export function logAxis(lo: number, hi: number): DecadeAxis {
     const v = Number(`1e${k}`);
     values.push(v);
     labels[String(v)] = decadeText(k);
+  }
+  return { values, labelExpr: `${JSON.stringify(labels)}[datum.value]` };
+}
+
+/** Outside this range vega's default labels read 2e+18: such axes get 1, 2, 5 x 10ⁿ ticks labelled 2×10¹⁸. */
+const PLAIN_LABEL_MIN = 0.01;
+const PLAIN_LABEL_MAX = 1000;
+const LOG_STEPS = [1, 2, 5];
+
+function steppedLogAxis(lo: number, hi: number): DecadeAxis {
+  const values: number[] = [];
+  const labels: Record<string, string> = {};
+  for (let k = Math.floor(Math.log10(lo)) - 1; k <= Math.ceil(Math.log10(hi)); k++) {
+    for (const m of LOG_STEPS) {
+      const v = Number(`${m}e${k}`);
+      if (v < lo || v > hi) continue;
+      values.push(v);
+      labels[String(v)] = m === 1 ? decadeText(k) : `${m}×${decadeText(k)}`;
+    }
   }
   return { values, labelExpr: `${JSON.stringify(labels)}[datum.value]` };
 }
