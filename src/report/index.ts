@@ -72,7 +72,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
 
   const table = summaryTable(input);
   // A map has no sightline fits: its tables are one row per fitted pixel and a summary over the pixels.
-  const pixels = input.map && table.rows.length === 0 ? mapSummary(input.map, input.observations.sightlines, input.fit.poorFitP) : undefined;
+  const pixels = input.map && table.rows.length === 0 ? mapSummary(input.map, input.observations.sightlines, input.fit.poorFitP, input.observations.map?.wcs) : undefined;
   const tables = {
     csv: write(outputPath(tablesDir, 'best_fits.csv'), pixels ? mapPixelsCsv(pixels) : summaryCsv(table)),
     json: write(outputPath(tablesDir, 'best_fits.json'), pixels ? mapSummaryJson(pixels) : summaryJson(table, input)),

@@ -13,6 +13,7 @@ import type { Sightline } from '../obs/types.ts';
 import { escapeLatex } from './escape.ts';
 import { parameterTitle } from './figures/axes.ts';
 import { numberHtml, numberLatex } from './numbers.ts';
+import { pixelToWorld, readTanWcs } from './wcs.ts';
 
 /** Percentiles bounding the central 68% of pixels (the share of a Gaussian within 1 sigma). */
 export const SPREAD_PERCENTILES = [0.16, 0.84] as const;
@@ -21,6 +22,9 @@ export interface MapPixelRow {
   sightline: string;
   x: number;
   y: number;
+  /** Sky position of the pixel centre from the observed maps' TAN WCS, deg; null without one. */
+  ra: number | null;
+  dec: number | null;
   av: number | null;
   density: number;
   densityLo: number | null;
@@ -61,7 +65,9 @@ function at(map: MapFitJson, name: MapImageName, i: number): number | null {
   return v === null || v === undefined || !Number.isFinite(v) ? null : v;
 }
 
-export function mapSummary(map: MapFitJson, sightlines: readonly Sightline[], poorFitP: number): MapSummary {
+export function mapSummary(map: MapFitJson, sightlines: readonly Sightline[], poorFitP: number, header?: Record<string, string | number | boolean>): MapSummary {
+  const tan = header ? readTanWcs(header) : undefined;
+  const wcs = typeof tan === 'object' ? tan : undefined;
   const av = new Map<number, number>();
   for (const s of sightlines) if (s.pixel && s.av !== undefined) av.set(s.pixel.y * map.nx + s.pixel.x, s.av);
   const rows: MapPixelRow[] = [];
@@ -76,6 +82,8 @@ export function mapSummary(map: MapFitJson, sightlines: readonly Sightline[], po
       sightline: `${x},${y}`,
       x,
       y,
+      ra: wcs ? pixelToWorld(wcs, x, y)[0] : null,
+      dec: wcs ? pixelToWorld(wcs, x, y)[1] : null,
       av: av.get(i) ?? null,
       density,
       densityLo: at(map, 'density_lo', i),
@@ -113,8 +121,8 @@ export function mapSummary(map: MapFitJson, sightlines: readonly Sightline[], po
 }
 
 export function mapPixelsCsv(summary: MapSummary): string {
-  const header = ['sightline', 'x', 'y', 'av_mag', 'density', 'density_lo', 'density_hi', 'age_yr', 'age_yr_lo', 'age_yr_hi', 'at_edge', 'level', 'chi2', 'dof', 'reduced_chi2', 'p_value'];
-  const rows = summary.rows.map((r): CsvCell[] => [r.sightline, r.x, r.y, r.av, r.density, r.densityLo, r.densityHi, r.ageYr, r.ageLoYr, r.ageHiYr, r.atEdge, summary.level, r.chi2, r.dof, r.reducedChi2, r.pValue]);
+  const header = ['sightline', 'x', 'y', 'ra_deg', 'dec_deg', 'av_mag', 'density', 'density_lo', 'density_hi', 'age_yr', 'age_yr_lo', 'age_yr_hi', 'at_edge', 'level', 'chi2', 'dof', 'reduced_chi2', 'p_value'];
+  const rows = summary.rows.map((r): CsvCell[] => [r.sightline, r.x, r.y, r.ra, r.dec, r.av, r.density, r.densityLo, r.densityHi, r.ageYr, r.ageLoYr, r.ageHiYr, r.atEdge, summary.level, r.chi2, r.dof, r.reducedChi2, r.pValue]);
   return toCsv(header, rows);
 }
 

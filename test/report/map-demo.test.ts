@@ -58,6 +58,9 @@ describe('the map demo report tables', () => {
       expect(Number(r.chi2)).toBe(map.images.best_chi2[i]);
       expect(Number(r.p_value)).toBe(map.images.p_value[i]);
       expect(r.at_edge).toBe(String(map.images.at_edge[i] === 1));
+      // The demo map's WCS is RA---TAN/DEC--TAN: every pixel has a sky position near the pointing.
+      expect(Math.abs(Number(r.ra_deg) - 150.25)).toBeLessThan(0.2);
+      expect(Math.abs(Number(r.dec_deg) + 7.5)).toBeLessThan(0.2);
     }
   });
 
