@@ -12,7 +12,7 @@ import type { MapFitJson, MapImageName } from '../fit/types.ts';
 import type { Sightline } from '../obs/types.ts';
 import { escapeLatex } from './escape.ts';
 import { parameterTitle } from './figures/axes.ts';
-import { numberHtml, numberLatex } from './numbers.ts';
+import { numberHtml, numberLatex, pValueText } from './numbers.ts';
 import { pixelToWorld, readTanWcs } from './wcs.ts';
 
 /** Percentiles bounding the central 68% of pixels (the share of a Gaussian within 1 sigma). */
@@ -140,8 +140,11 @@ const HTML_NAMES: Record<string, string> = { reduced_chi2: 'χ²/dof', p_value: 
 
 export function mapSummaryLatex(summary: MapSummary, caption: string | undefined): string {
   const text = caption !== undefined ? escapeLatex(caption) : 'Best-fitting models over the pixels of the map';
-  const n = (x: number) => `$${numberLatex(x)}$`;
-  const body = summary.distributions.map((d) => [LATEX_NAMES[d.quantity] ?? escapeLatex(d.quantity), n(d.median), `${n(d.lo)}--${n(d.hi)}`, `${n(d.min)}--${n(d.max)}`].join(' & '));
+  const body = summary.distributions.map((d) => {
+    // p-values keep the digits that tell them from 1 (0.9999 is not 1.0).
+    const n = (x: number) => `$${d.quantity === 'p_value' ? pValueText(x, 'latex') : numberLatex(x)}$`;
+    return [LATEX_NAMES[d.quantity] ?? escapeLatex(d.quantity), n(d.median), `${n(d.lo)}--${n(d.hi)}`, `${n(d.min)}--${n(d.max)}`].join(' & ');
+  });
   const pct = `${Number((summary.level * 100).toFixed(1))}\\%`;
   return [
     '% Summary of a map fit written by hoarfrost: AASTeX deluxetable layout.',
@@ -161,6 +164,9 @@ export function mapSummaryLatex(summary: MapSummary, caption: string | undefined
 
 export function mapSummaryHtml(summary: MapSummary): string {
   const counts = `<p>${summary.fitted} of ${summary.pixels} pixels fitted; <span${summary.poorFits > 0 ? ' class="poor"' : ''}>${summary.poorFits} poor fit${summary.poorFits === 1 ? '' : 's'}</span> (p &lt; ${summary.poorFitP}); ${summary.atEdge} with a ${Number((summary.level * 100).toFixed(1))}% density or age interval reaching the grid's edge.</p>`;
-  const rows = summary.distributions.map((d) => `<tr><th scope="row">${HTML_NAMES[d.quantity] ?? parameterTitle(d.quantity)}</th><td>${numberHtml(d.median)}</td><td>${numberHtml(d.lo)}–${numberHtml(d.hi)}</td><td>${numberHtml(d.min)}–${numberHtml(d.max)}</td></tr>`);
+  const rows = summary.distributions.map((d) => {
+    const n = (x: number) => (d.quantity === 'p_value' ? pValueText(x, 'html') : numberHtml(x));
+    return `<tr><th scope="row">${HTML_NAMES[d.quantity] ?? parameterTitle(d.quantity)}</th><td>${n(d.median)}</td><td>${n(d.lo)}–${n(d.hi)}</td><td>${n(d.min)}–${n(d.max)}</td></tr>`;
+  });
   return `${counts}\n<table class="summary"><thead><tr><th scope="col">Over the fitted pixels</th><th scope="col">Median</th><th scope="col">16th–84th percentile</th><th scope="col">Range</th></tr></thead><tbody>${rows.join('')}</tbody></table>`;
 }

@@ -14,7 +14,7 @@ import { loadPipeline } from '../../src/config/pipeline.ts';
 import type { FitStageResult, MapFitJson } from '../../src/fit/types.ts';
 import { defaultStages } from '../../src/pipeline/default-stages.ts';
 import { runStages } from '../../src/pipeline/runner.ts';
-import { numberLatex } from '../../src/report/numbers.ts';
+import { numberLatex, pValueText } from '../../src/report/numbers.ts';
 import { scratch } from '../support/scratch.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
@@ -77,6 +77,9 @@ describe('the map demo report tables', () => {
     const median = (name: 'best_density' | 'best_age_yr') => quantileSorted((map.images[name].filter((v) => v !== null) as number[]).sort((a, b) => a - b), 0.5);
     expect(rows[0].split(' & ')[1]).toBe(`$${numberLatex(median('best_density'))}$`);
     expect(rows[1].split(' & ')[1]).toBe(`$${numberLatex(median('best_age_yr'))}$`);
+    const pMax = Math.max(...(map.images.p_value.filter((p) => p !== null) as number[]));
+    expect(rows[3].split(' & ')[3]).toMatch(new RegExp(`--\\$${pValueText(pMax, 'latex').replace(/[.\\^{}]/g, '\\$&')}\\$$`));
+    if (pMax < 0.9999) expect(rows[3]).not.toMatch(/--\$1\.0\$$/);
   });
 
   it('shows the summary in the HTML instead of an empty table', () => {
