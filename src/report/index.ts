@@ -5,8 +5,8 @@
  *
  * Layout of outDir:
  *   index.html
- *   figures/NAME.vl.json, NAME.svg, NAME.png, NAME.pdf
- *   tables/best_fits.csv, best_fits.json, best_fits.tex
+ *   figures/NAME.vl.json, NAME.svg, NAME.png, NAME.pdf, NAME.caption.txt (title and caption)
+ *   tables/best_fits.csv, best_fits.json, best_fits.tex (a map: one row per fitted pixel; the LaTeX a summary over the pixels)
  *   maps/<image>.fits (maps only)
  */
 import { mkdirSync } from 'node:fs';
@@ -18,6 +18,7 @@ import { reportHtml, type HtmlFigure } from './html.ts';
 import { MAP_OUTPUTS, writeMapImages } from './maps.ts';
 import { outputPath } from './paths.ts';
 import { renderSvg, svgToPdf, svgToPng } from './render.ts';
+import { mapPixelsCsv, mapSummary, mapSummaryJson, mapSummaryLatex } from './map-tables.ts';
 import { summaryCsv, summaryJson, summaryLatex, summaryTable } from './tables.ts';
 import type { FigureFile, FigureFormat, ReportFiles, ReportInput } from './types.ts';
 
@@ -49,6 +50,8 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
   for (const fig of figures) {
     const base = (ext: string) => outputPath(figuresDir, `${fig.name}${ext}`);
     const spec = write(base('.vl.json'), `${JSON.stringify(fig.spec, null, 2)}\n`);
+    // Journals print captions below the figure, not inside it: the figure files carry no title, the caption sits beside them.
+    const caption = write(base('.caption.txt'), `${fig.title}. ${fig.caption}\n`);
     const rendered: FigureFile['rendered'] = {};
     const figFormats = fig.formats ?? [...formats];
     const svg = await renderSvg(fig.spec);
@@ -56,7 +59,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
     if (figFormats.includes('svg')) rendered.svg = write(base('.svg'), svg.svg);
     if (figFormats.includes('png')) rendered.png = write(base('.png'), svgToPng(svg.svg, input.config.png_dpi));
     if (figFormats.includes('pdf')) rendered.pdf = write(base('.pdf'), await svgToPdf(svg, fig.title));
-    figureFiles.push({ name: fig.name, kind: fig.kind, title: fig.title, sightline: fig.sightline, spec, rendered });
+    figureFiles.push({ name: fig.name, kind: fig.kind, title: fig.title, sightline: fig.sightline, spec, caption, rendered });
     const rel = (f: string) => relative(dir, f).split('\\').join('/');
     htmlFigures.push({
       figure: fig,
@@ -68,10 +71,12 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
   }
 
   const table = summaryTable(input);
+  // A map has no sightline fits: its tables are one row per fitted pixel and a summary over the pixels.
+  const pixels = input.map && table.rows.length === 0 ? mapSummary(input.map, input.observations.sightlines, input.fit.poorFitP, input.observations.map?.wcs) : undefined;
   const tables = {
-    csv: write(outputPath(tablesDir, 'best_fits.csv'), summaryCsv(table)),
-    json: write(outputPath(tablesDir, 'best_fits.json'), summaryJson(table, input)),
-    latex: write(outputPath(tablesDir, 'best_fits.tex'), summaryLatex(table, input.config.table_caption)),
+    csv: write(outputPath(tablesDir, 'best_fits.csv'), pixels ? mapPixelsCsv(pixels) : summaryCsv(table)),
+    json: write(outputPath(tablesDir, 'best_fits.json'), pixels ? mapSummaryJson(pixels) : summaryJson(table, input)),
+    latex: write(outputPath(tablesDir, 'best_fits.tex'), pixels ? mapSummaryLatex(pixels, input.config.table_caption) : summaryLatex(table, input.config.table_caption, input.fit.joint)),
   };
 
   let maps: string[] = [];
@@ -87,6 +92,7 @@ export async function writeReport(input: ReportInput, outDir: string): Promise<R
     reportHtml({
       input,
       table,
+      mapSummary: pixels,
       figures: htmlFigures,
       warnings,
       cautions: cautionsFor(input),

@@ -88,7 +88,8 @@ function writeMapImage(file: string, image: MapImage, geometry: MapGeometry | un
   const info = MAP_IMAGE_INFO[image.name];
   const data = Float64Array.from({ length: image.values.length }, (_, i) => image.values[i] ?? Number.NaN);
   const header: FitsCard[] = [
-    ...(info.bunit ? [{ key: 'BUNIT', value: info.bunit, comment: 'unit of the pixel values' }] : []),
+    // Every image states its unit; a dimensionless one as the empty string, which FITS readers take as dimensionless (astropy: Unit('')).
+    { key: 'BUNIT', value: info.bunit, comment: info.bunit ? 'unit of the pixel values' : 'dimensionless' },
     ...(geometry ? carriedCards(geometry.wcs, warnings) : []),
     { key: 'ORIGIN', value: 'hoarfrost', comment: 'written by' },
     ...commentCards(`${info.description} per pixel; NaN where the pixel has no fit.`),

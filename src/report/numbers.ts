@@ -50,3 +50,41 @@ export function numberLatex(x: number, digits = 2): string {
   const s = significant(x, digits);
   return 'plain' in s ? s.plain : `${s.mantissa}\\times10^{${s.exponent}}`;
 }
+
+/** p-values closer to 1 than this are written as a bound (`> 0.9999`): more digits say nothing a reader can use. */
+const P_MAX_DECIMALS = 4;
+/** Below this a p-value is written with two significant figures (`0.034`, `1.2×10⁻¹²`); from it up to 1 - 10^-2 with two decimals. */
+const P_SIGNIFICANT_BELOW = 0.1;
+
+type Notation = 'text' | 'html' | 'latex';
+
+function render(s: Significant, notation: Notation): string {
+  if ('plain' in s) return s.plain;
+  if (notation === 'text') return `${s.mantissa}×${decadeText(s.exponent)}`;
+  if (notation === 'html') return `${s.mantissa}×10<sup>${s.exponent < 0 ? '−' : ''}${Math.abs(s.exponent)}</sup>`;
+  return `${s.mantissa}\\times10^{${s.exponent}}`;
+}
+
+/**
+ * A p-value with the digits that tell it from 0 and from 1: two significant
+ * figures below 0.1, two decimals up to 0.99, and above that as many decimals
+ * as 1 - p needs for one significant figure (0.9966 is `0.997`, never `1.0`),
+ * `> 0.9999` beyond. LaTeX output is math-mode text.
+ */
+export function pValueText(p: number, notation: Notation = 'text'): string {
+  if (!Number.isFinite(p)) return notation === 'latex' ? '\\nodata' : '–';
+  if (p < P_SIGNIFICANT_BELOW) return render(significant(p, 2), notation);
+  const q = 1 - p;
+  if (q < 10 ** -P_MAX_DECIMALS) return `${notation === 'html' ? '&gt;' : '>'} ${(1 - 10 ** -P_MAX_DECIMALS).toFixed(P_MAX_DECIMALS)}`;
+  const decimals = Math.max(2, Math.ceil(-Math.log10(q) - 1e-12));
+  return p.toFixed(decimals);
+}
+
+/**
+ * chi^2 over its degrees of freedom as `2.01/2`: chi^2 with two decimals
+ * below 10, one below 100, none above (`1/2` for 1.0025 hid what was fitted).
+ */
+export function chi2DofText(chi2: number, dof: number): string {
+  const decimals = chi2 < 10 ? 2 : chi2 < 100 ? 1 : 0;
+  return `${chi2.toFixed(decimals)}/${dof}`;
+}

@@ -7,9 +7,9 @@
  */
 import { toCsv, type CsvCell } from '../config/csv.ts';
 import { intervalReading, statedLevel, TABLE_LEVEL } from '../fit/regions.ts';
-import type { ParameterInterval, SightlineFit } from '../fit/types.ts';
+import type { JointFit, ParameterInterval, SightlineFit } from '../fit/types.ts';
 import { escapeLatex } from './escape.ts';
-import { numberLatex } from './numbers.ts';
+import { chi2DofText, numberLatex, pValueText } from './numbers.ts';
 import type { ReportInput } from './types.ts';
 
 export interface ParameterCell {
@@ -34,6 +34,8 @@ export interface SummaryRow {
   reducedChi2: number;
   pValue: number;
   agreement: number;
+  /** Observed quantities that entered the fit (detections and limits). */
+  used: number;
   warnings: string[];
 }
 
@@ -64,6 +66,7 @@ export function summaryTable(input: ReportInput): SummaryTable {
     reducedChi2: fit.reducedChi2,
     pValue: fit.pValue,
     agreement: fit.agreementFraction,
+    used: fit.counts.detections + fit.counts.upperLimits + fit.counts.lowerLimits,
     warnings: fit.warnings,
   }));
   // A fit.json written before p was stated used p = 2 for its intervals.
@@ -72,7 +75,7 @@ export function summaryTable(input: ReportInput): SummaryTable {
 }
 
 /** Density and age first (the quantities a reader looks for), the rest in the fit's order. */
-function orderParameters(fitted: readonly string[]): string[] {
+export function orderParameters(fitted: readonly string[]): string[] {
   const first = ['density', 'age_yr'].filter((p) => fitted.includes(p));
   return [...first, ...fitted.filter((p) => !first.includes(p))];
 }
@@ -136,7 +139,28 @@ function latexCell(c: ParameterCell): string {
   return `$${numberLatex(c.best)}$ ($${numberLatex(c.lo)}$--$${numberLatex(c.hi)}$)${note}`;
 }
 
-export function summaryLatex(table: SummaryTable, caption: string | undefined): string {
+/** Notes of the LaTeX table by mark; only the marks some row uses are defined. */
+function tableNotes(poorFitP: number): Record<string, string> {
+  return {
+    a: 'The interval reaches the edge of the model grid: the true range may extend beyond it.',
+    b: `Poor fit: $p < ${poorFitP}$.`,
+    c: 'Only the best grid value lies inside the interval: it is narrower than the grid spacing there.',
+    d: 'The region has several disjoint parts: grid values between the bounds lie outside it.',
+  };
+}
+
+/** A joint group's row: the shared parameters with their intervals, the others profiled per member (no one value). */
+function jointLatexRow(j: JointFit, table: SummaryTable): string {
+  const cells = table.parameters.map((p) => {
+    if (!j.shared.includes(p)) return '\\nodata';
+    const iv = j.intervals.find((i) => i.parameter === p && Math.abs(i.level - table.level) < 1e-9);
+    return latexCell({ parameter: p, best: j.sharedBest[p], lo: iv?.lo ?? null, hi: iv?.hi ?? null, loAtEdge: iv?.loAtEdge ?? false, hiAtEdge: iv?.hiAtEdge ?? false, unresolved: iv?.unresolved ?? false, disjoint: iv?.disjoint ?? false });
+  });
+  const poor = j.pValue < table.poorFitP ? '\\tablenotemark{b}' : '';
+  return [`${escapeLatex(j.name)} (${j.members.map(escapeLatex).join(', ')})`, '\\nodata', ...cells, chi2DofText(j.chi2, j.dof), `$${pValueText(j.pValue, 'latex')}$${poor}`].join(' & ');
+}
+
+export function summaryLatex(table: SummaryTable, caption: string | undefined, joint: readonly JointFit[] = []): string {
   const pct = `${Number((table.level * 100).toFixed(1))}\\%`;
   const threshold = `$\\Delta\\chi^2 \\le ${table.deltaChi2.toFixed(2)}$`;
   const reading = table.parametersOfInterest === 1 ? 'one-parameter' : `projected from the ${table.parametersOfInterest}-parameter region`;
@@ -152,11 +176,16 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
       escapeLatex(r.sightline),
       r.av === null ? '\\nodata' : `${Number(r.av.toPrecision(3))}`,
       ...r.parameters.map(latexCell),
-      `${Number(r.chi2.toPrecision(3))}/${r.dof}`,
-      `$${numberLatex(r.pValue)}$${poor}`,
+      chi2DofText(r.chi2, r.dof),
+      `$${pValueText(r.pValue, 'latex')}$${poor}`,
     ];
     return cells.join(' & ');
   });
+  const jointRows = joint.map((j) => jointLatexRow(j, table));
+  const rows = [...body, ...(jointRows.length > 0 ? [`\\cutinhead{Joint fits: parameters shared by the group}\n${jointRows[0]}`, ...jointRows.slice(1)] : [])];
+  const allText = rows.join('\n');
+  const notes = Object.entries(tableNotes(table.poorFitP)).filter(([mark]) => allText.includes(`\\tablenotemark{${mark}}`));
+  const jointComment = joint.length > 0 ? ' Joint fits: one value of each shared parameter for the whole group (listed in parentheses); the other parameters are fitted per sightline and have no single value.' : '';
   return [
     '% Best fits written by hoarfrost: AASTeX deluxetable layout.',
     `\\begin{deluxetable*}{${columns}}`,
@@ -166,13 +195,10 @@ export function summaryLatex(table: SummaryTable, caption: string | undefined): 
     `\\tablehead{${colheads(head1)} \\\\`,
     `  ${colheads(head2)}}`,
     '\\startdata',
-    body.join(' \\\\\n'),
+    rows.join(' \\\\\n'),
     '\\enddata',
-    `\\tablecomments{Intervals are the ${pct} confidence intervals of ${table.parametersOfInterest === 1 ? 'each parameter alone' : `each parameter read as the projection of the joint region of ${table.parametersOfInterest} parameters`}: the values whose profile $\\chi^2$ (minimised over the other parameters) lies within ${threshold} of the minimum (Avni 1976; ${intervalReading(table.parametersOfInterest)}). A best fit is a statement about the model grid, not a measurement of the cloud.}`,
-    '\\tablenotetext{a}{The interval reaches the edge of the model grid: the true range may extend beyond it.}',
-    `\\tablenotetext{b}{Poor fit: $p < ${table.poorFitP}$.}`,
-    '\\tablenotetext{c}{Only the best grid value lies inside the interval: it is narrower than the grid spacing there.}',
-    '\\tablenotetext{d}{The region has several disjoint parts: grid values between the bounds lie outside it.}',
+    `\\tablecomments{Intervals are the ${pct} confidence intervals of ${table.parametersOfInterest === 1 ? 'each parameter alone' : `each parameter read as the projection of the joint region of ${table.parametersOfInterest} parameters`}: the values whose profile $\\chi^2$ (minimised over the other parameters) lies within ${threshold} of the minimum (Avni 1976; ${intervalReading(table.parametersOfInterest)}). A best fit is a statement about the model grid, not a measurement of the cloud.${jointComment}}`,
+    ...notes.map(([mark, note]) => `\\tablenotetext{${mark}}{${note}}`),
     '\\end{deluxetable*}',
     '',
   ].join('\n');

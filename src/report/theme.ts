@@ -19,10 +19,25 @@ export const PANEL_ASPECT = 0.8;
 export const SEQUENTIAL_SCHEME = 'viridis' as const;
 /** For chi-square maps: cividis is readable by readers with any colour vision deficiency. */
 export const MAP_SCHEME = 'cividis' as const;
-/** Category colours for species tracks: Okabe & Ito (2008) colour-blind-safe palette. */
-export const CATEGORY_COLOURS = ['#000000', '#E69F00', '#56B4E9', '#009E73', '#D55E00', '#0072B2', '#CC79A7', '#F0E442'];
-/** Dash patterns to tell tracks apart in greyscale as well as by colour: seven against eight colours, so pairs repeat only after 56. */
+/**
+ * Category colours for quantities (species tracks, residuals, ice panels).
+ * Chosen (from Okabe & Ito's black, blue, vermillion and bluish green, the
+ * rest by a greedy search of the sRGB grid) so that every colour keeps a
+ * contrast of at least 3:1 against white, the WCAG 2.1 minimum for graphical
+ * objects (success criterion 1.4.11), and every pair stays apart by at least
+ * Delta E*ab 20 (CIE 1976) for normal vision and as deuteranopes and
+ * protanopes see them (Machado, Oliveira & Fernandes 2009, severity 1):
+ * test/report/palette.test.ts checks both. Ten colours; a figure with more
+ * quantities repeats them, told apart by CATEGORY_DASHES.
+ */
+export const CATEGORY_COLOURS = ['#000000', '#0072B2', '#D55E00', '#009E73', '#0000EE', '#880000', '#4466EE', '#444444', '#660066', '#AA88AA'];
+/** Dash patterns to tell lines apart in greyscale: assigned per panel, so that a panel's lines differ for up to seven quantities. */
 export const CATEGORY_DASHES = [[1, 0], [4, 2], [1, 2], [6, 2, 1, 2], [2, 2], [8, 3], [3, 1, 1, 1]];
+/** Minimum contrast of a category colour against the white background (WCAG 2.1, SC 1.4.11: 3:1 for graphical objects). */
+export const MIN_CONTRAST_ON_WHITE = 3;
+/** Marker shapes of observed values, by kind, and their legend labels. */
+export const OBSERVATION_SHAPES = { detection: 'circle', upper: 'triangle-down', lower: 'triangle-up' } as const;
+export const OBSERVATION_NAMES = { detection: 'detection', upper: 'upper limit', lower: 'lower limit' } as const;
 
 export interface FigureSize {
   /** Total width of the figure, pixels (= points). */

@@ -88,8 +88,9 @@ export interface FigureFile {
   kind: string;
   title: string;
   sightline?: string;
-  /** Absolute paths: the Vega-Lite spec and each rendered format. */
+  /** Absolute paths: the Vega-Lite spec, the caption (title and caption as text) and each rendered format. */
   spec: string;
+  caption: string;
   rendered: Partial<Record<FigureFormat, string>>;
 }
 

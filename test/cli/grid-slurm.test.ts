@@ -54,9 +54,11 @@ describe('the grid as a Slurm job array', () => {
     needReference(ctx, SLURM, unavailable);
     const dir = scratch();
     const file = writePipeline(dir, GRID);
-    const written = run(process.execPath, [BIN, 'slurm', file, '--shards', String(SHARDS), '--cpus', '1', '--time', '10'], dir);
+    // Memory and a further directive pass through to the script, and the real sbatch accepts them.
+    const written = run(process.execPath, [BIN, 'slurm', file, '--shards', String(SHARDS), '--cpus', '1', '--time', '10', '--mem', '200M', '--sbatch=--comment=hoarfrost-test'], dir);
     expect(written.code, written.stderr).toBe(0);
     const script = join(dir, 'out', 'slurm', 'grid-array.sh');
+    expect(readFileSync(script, 'utf8')).toMatch(/^#SBATCH --mem=200M\n#SBATCH --comment=hoarfrost-test$/m);
 
     const submitted = run('sbatch', ['--parsable', script], dir);
     expect(submitted.code, submitted.stderr).toBe(0);

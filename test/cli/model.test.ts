@@ -73,6 +73,12 @@ describe('hoarfrost model', () => {
     const svg = readFileSync(join(dir, 'res', 'abundances.svg'), 'utf8');
     expect(svg).toMatch(/^<svg/);
     expect(svg).toContain('H2O(s)');
+    // The title names the conditions with Unicode subscripts, not TeX-like A_V.
+    expect(svg).toContain('Aᵥ = ');
+    expect(svg).not.toContain('A_V');
+    // PNG and PDF beside the SVG: their signatures (PNG spec section 5.2; PDF 1.7, ISO 32000-1, section 7.5.2).
+    expect(readFileSync(join(dir, 'res', 'abundances.png')).subarray(0, 8)).toEqual(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]));
+    expect(readFileSync(join(dir, 'res', 'abundances.pdf')).subarray(0, 5).toString('latin1')).toBe('%PDF-');
     const spec = JSON.parse(readFileSync(join(dir, 'res', 'abundances.vl.json'), 'utf8'));
     expect(spec.encoding.x.scale.type).toBe('log');
     expect(spec.encoding.y.scale.type).toBe('log');

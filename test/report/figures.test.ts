@@ -11,6 +11,7 @@ import { Ajv, type ValidateFunction } from 'ajv';
 import { XMLValidator } from 'fast-xml-parser';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { buildFigures } from '../../src/report/figures/index.ts';
+import { logAxis } from '../../src/report/figures/axes.ts';
 import type { BuiltFigure } from '../../src/report/figures/builder.ts';
 import * as vega from 'vega';
 import { blockSize, pixelColours } from '../../src/report/raster.ts';
@@ -26,8 +27,14 @@ const EXPECTED_TITLES: Record<string, string[]> = {
   tracks: ['Chemical age (yr)', 'Ratio to H2O(s)', 'X relative to H'],
   fit_vs_av: ['Visual extinction (mag)', 'Density (cm⁻³)', 'Chemical age (yr)'],
   profiles: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Δχ²'],
-  sky_map: ['Pixel x', 'Pixel y'],
+  sky_map: ['Right ascension (deg)', 'Declination (deg)'],
+  residuals: ['Sightline', 'Quantity', 'Residual (σ)'],
+  ice_vs_av: ['Visual extinction (mag)', 'Ratio to H2O(s)'],
+  sky_positions: ['Right ascension (deg)', 'Declination (deg)'],
+  parameters: ['Density (cm⁻³)', 'Chemical age (yr)', 'Gas temperature (K)', 'Sightline (in order of visual extinction)'],
 };
+/** Figures of survey-wide kinds span both columns of a page (7.1 in = 511 pt, with room for legends); the rest one column. */
+const FULL_WIDTH_KINDS = new Set(['residuals', 'ice_vs_av']);
 
 /** Text content of an SVG's <text> elements, entities decoded. */
 function svgTexts(svg: string): string[] {
@@ -50,7 +57,7 @@ describe('figure builders', () => {
 
   it('draws every kind for a table and a map', () => {
     const kinds = new Set(figures.map((f) => f.kind));
-    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'profiles', 'sky_map', 'tracks']);
+    expect([...kinds].sort()).toEqual(['chi2_map', 'fit_vs_av', 'ice_vs_av', 'parameters', 'profiles', 'residuals', 'sky_map', 'sky_positions', 'tracks']);
     // Per-sightline kinds: one figure per sightline of the table (4) plus the one chosen map pixel.
     expect(figures.filter((f) => f.kind === 'chi2_map')).toHaveLength(5);
     expect(figures.filter((f) => f.kind === 'sky_map').map((f) => f.name)).toEqual(['sky_map_best_age_yr', 'sky_map_best_density', 'sky_map_best_chi2']);
@@ -59,7 +66,7 @@ describe('figure builders', () => {
   it('gives every figure a safe, unique file name even for hostile sightline names', () => {
     const names = figures.map((f) => f.name);
     for (const n of names) expect(n).toMatch(/^[A-Za-z0-9_-][A-Za-z0-9._-]*$/);
-    expect(new Set(names.slice(0, 13)).size).toBe(13);
+    expect(new Set(names.slice(0, 19)).size).toBe(19);
   });
 
   it('validates every spec against the Vega-Lite JSON schema', () => {
@@ -86,22 +93,42 @@ describe('figure builders', () => {
       for (const title of EXPECTED_TITLES[f.kind]) expect(texts, `${f.name} lacks '${title}'`).toContain(title);
       // A figure for one printed column: 3.4 in = 245 pt, with a little room for legends.
       expect(out.width).toBeGreaterThan(200);
-      expect(out.width).toBeLessThan(330);
+      expect(out.width, f.name).toBeLessThan(FULL_WIDTH_KINDS.has(f.kind) ? 620 : 330);
     }
-    expect(seen.size).toBe(5);
+    expect(seen.size).toBe(9);
+  });
+
+  it('puts no title inside a figure file: the title and caption name the sightline and the best fit in words', () => {
+    for (const f of figures) {
+      expect(JSON.stringify(f.spec), f.name).not.toMatch(/"title":\{"text"/);
+      expect('title' in f.spec, f.name).toBe(false);
+    }
+    const f = figures.find((x) => x.kind === 'tracks' && x.sightline === HOSTILE_NAMES[0])!;
+    expect(f.title).toContain(HOSTILE_NAMES[0]);
+    expect(f.title).toMatch(/n_H = [0-9.×⁰-⁹]+ cm⁻³, T = 10 K, age [0-9.×⁰-⁹]+ yr/);
+    expect(f.title).not.toMatch(/model [a-z0-9]{8}/);
   });
 
   it('shows a hostile sightline name as text in the SVG, escaped, with no element made of it', async () => {
-    const f = figures.find((x) => x.kind === 'tracks' && x.sightline === HOSTILE_NAMES[0]);
-    expect(f).toBeDefined();
-    const out = await renderSvg(f!.spec);
+    const g = figures.find((x) => x.kind === 'residuals')!;
+    const out = await renderSvg(g.spec);
     expect(out.svg).not.toContain('<script');
     expect(out.svg).toContain('&lt;script&gt;alert(1)&lt;/script&gt;');
-    expect(svgTexts(out.svg)).toContain(HOSTILE_NAMES[0]);
-    const g = figures.find((x) => x.kind === 'chi2_map' && x.sightline === HOSTILE_NAMES[1]);
-    const out2 = await renderSvg(g!.spec);
-    expect(svgTexts(out2.svg)).toContain(HOSTILE_NAMES[1]);
-    expect(XMLValidator.validate(out2.svg)).toBe(true);
+    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(HOSTILE_NAMES));
+    expect(XMLValidator.validate(out.svg)).toBe(true);
+  });
+
+  it('colours each residual by its sigma and labels it in dex, limits by a triangle', () => {
+    const g = figures.find((x) => x.kind === 'residuals')!;
+    const rows = (g.spec as { data: { values: { sightline: string; quantity: string; sigma: number; label: string; kind: string }[] } }).data.values;
+    const input = syntheticInput();
+    const fit = input.fit.fits[0];
+    for (const r of fit.residuals) {
+      const row = rows.find((x) => x.sightline === fit.sightline && x.quantity === r.label)!;
+      expect(Math.abs(row.sigma)).toBeCloseTo(Math.sqrt(r.chi2), 12);
+      if (r.kind === 'detection') expect(Number(row.label.replace('−', '-'))).toBeCloseTo(r.residualDex, 1);
+      else expect(row.label).toBe(r.kind === 'upper' ? '▼' : '▲');
+    }
   });
 
   it('writes a PNG with text (bundled fonts) and a vector PDF with DejaVu embedded', async () => {
@@ -151,7 +178,7 @@ describe('figure builders', () => {
     const out = await renderSvg(density.spec);
     expect(out.warnings).toEqual([]);
     expect(out.svg).toContain('<image');
-    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(['Pixel x', 'Pixel y', 'Density (cm⁻³)']));
+    expect(svgTexts(out.svg)).toEqual(expect.arrayContaining(['Right ascension (deg)', 'Declination (deg)', 'Density (cm⁻³)']));
     // Without the per-pixel rectangles the figure stays small.
     expect(out.svg.length).toBeLessThan(400_000);
   });
@@ -166,5 +193,37 @@ describe('figure builders', () => {
   it('drops only all-gap-zero dash patterns before the PDF', () => {
     expect(solidDashesRemoved('<path stroke-dasharray="1,0" d="M0"/>')).toBe('<path d="M0"/>');
     expect(solidDashesRemoved('<path stroke-dasharray="4,2" d="M0"/>')).toBe('<path stroke-dasharray="4,2" d="M0"/>');
+  });
+});
+
+describe('sky images in world coordinates', () => {
+  it('labels the axes with RA and Dec from the WCS (east to the left), and keeps pixel axes without one', async () => {
+    const input = syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'] } });
+    const fig = buildFigures(input, []).find((f) => f.name === 'sky_map_best_density')!;
+    const texts = svgTexts((await renderSvg(fig.spec)).svg);
+    const numbers = texts.map(Number).filter((v) => Number.isFinite(v));
+    const ra = numbers.filter((v) => v > 80);
+    const dec = numbers.filter((v) => v < 0);
+    expect(ra.length).toBeGreaterThanOrEqual(2);
+    expect(dec.length).toBeGreaterThanOrEqual(2);
+    // Around CRVAL (83.8, -5.4) within the 8 x 6 mrad-sized field.
+    for (const v of ra) expect(Math.abs(v - 83.8)).toBeLessThan(0.006);
+    for (const v of dec) expect(Math.abs(v + 5.4)).toBeLessThan(0.004);
+    // CDELT1 < 0: RA falls from left to right, as on the sky.
+    expect(ra[0]).toBeGreaterThan(ra[ra.length - 1]);
+    const noWcs = syntheticInput({ map: { nx: 8, ny: 6 }, config: { formats: ['svg'] } });
+    noWcs.observations.map = { nx: 8, ny: 6, wcs: {} };
+    const plain = buildFigures(noWcs, []).find((f) => f.name === 'sky_map_best_density')!;
+    expect(svgTexts((await renderSvg(plain.spec)).svg)).toEqual(expect.arrayContaining(['Pixel x', 'Pixel y']));
+  });
+});
+
+describe('log axes of less than two decades', () => {
+  it('labels columns of 10^17 to 10^18 as 2×10¹⁷, not 2e+17, and keeps plain labels for ratios', () => {
+    const axis = logAxis(1.5e17, 7e18);
+    expect(axis.values).toEqual([2e17, 5e17, 1e18, 2e18, 5e18]);
+    expect(axis.labelExpr).toContain(`"${String(2e17)}":"2×10¹⁷"`);
+    expect(axis.labelExpr).toContain(`"${String(1e18)}":"10¹⁸"`);
+    expect(logAxis(0.09, 0.7)).toEqual({ format: '~g' });
   });
 });

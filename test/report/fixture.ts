@@ -4,7 +4,7 @@
  * joint region is the elongated, degenerate shape real fits show; profiles,
  * intervals and tracks are derived from it as the fit stage would.
  */
-import type { FitStageResult, MapFitJson, Profile1D, Profile2D, ProfilesJson, SightlineFit, ParameterInterval } from '../../src/fit/types.ts';
+import type { FitStageResult, QuantityScore, MapFitJson, Profile1D, Profile2D, ProfilesJson, SightlineFit, ParameterInterval } from '../../src/fit/types.ts';
 import type { ObservationSet, ObservedQuantity, Sightline } from '../../src/obs/types.ts';
 import { DEFAULT_REPORT_SECTION, type ReportSection } from '../../src/config/sections/report.ts';
 import type { ModelTrack, ReportInput } from '../../src/report/types.ts';
@@ -113,6 +113,7 @@ export function syntheticInput(options: FixtureOptions = {}): ReportInput {
     const bestValues: Record<string, number> = { density: best.n, age_yr: best.t, gas_temperature: best.T };
     const intervals = LEVELS.flatMap((l) => p1.map((p) => interval(p, bestValues[p.parameter], l)));
     const modelId = `m${k}-${best.n}-${best.T}`;
+    const residuals: QuantityScore[] = [];
     const warnings = intervals.some((i) => i.level === 0.683 && (i.loAtEdge || i.hiAtEdge)) ? [`the 68.3% interval of ${id} reaches the grid edge`] : [];
     fits.push({
       sightline: id,
@@ -124,7 +125,7 @@ export function syntheticInput(options: FixtureOptions = {}): ReportInput {
       counts: { detections: 3, upperLimits: 1, lowerLimits: 0, skipped: 0 },
       fittedParameters: 3,
       heldParameters: {},
-      residuals: [],
+      residuals,
       runnerUps: [],
       candidatesInRegion: 5,
       intervals,
@@ -136,8 +137,15 @@ export function syntheticInput(options: FixtureOptions = {}): ReportInput {
       const obs = trackLog10(j, best.t, best.n) + 0.1 * (j - 1);
       const kind = j === 3 ? 'upper' : j === 2 && k === 1 ? 'lower' : 'detection';
       quantities.push({ sightline: id, ...q, kind, log10: obs, sigmaLoDex: kind === 'detection' ? 0.12 : 0, sigmaHiDex: kind === 'detection' ? 0.1 : 0 });
+      // The best fit's residual as the fit stage scores it (docs/statistics.md): d = model - observed over the width.
+      const model = trackLog10(j, best.t, best.n);
+      const d = model - obs;
+      const width = Math.hypot(kind === 'detection' ? (d < 0 ? 0.12 : 0.1) : 0, 0.3);
+      const violated = (kind === 'upper' && d > 0) || (kind === 'lower' && d < 0);
+      residuals.push({ label: q.label, numerator: q.numerator, denominator: q.denominator, kind, observedLog10: obs, sigmaLoDex: kind === 'detection' ? 0.12 : 0, sigmaHiDex: kind === 'detection' ? 0.1 : 0, modelLog10: model, residualDex: d, sigmaDex: width, chi2: kind === 'detection' || violated ? (d / width) ** 2 : 0, agrees: kind === 'detection' ? Math.abs(d) < 1 : !violated });
     });
-    sightlines.push({ id, av: 4 + 6 * k, avErr: 0.8, columns: {}, source: { file: 'frostmere.csv', row: k + 2 } });
+    // Invented positions in a small field near Dec -30 deg.
+    sightlines.push({ id, av: 4 + 6 * k, avErr: 0.8, ra: 201.3 + 0.05 * k, dec: -30.1 + 0.03 * ((k * 7) % 4), columns: {}, source: { file: 'frostmere.csv', row: k + 2 } });
   });
   const fit: FitStageResult = {
     format: 'hoarfrost-fit/1',

@@ -108,4 +108,40 @@ describeWithReference(CHROMIUM_REFERENCE, 'HTML report in headless Chromium', ()
     // 8 x 6 pixels, one without a fit: 47 cells.
     expect(run.marksPerFigure[sky]).toBeGreaterThanOrEqual(47);
   });
+
+  it('lets no table or figure overflow its container at 1280 px', async () => {
+    for (const report of [table, map]) {
+      const page = await context.newPage();
+      const errors: string[] = [];
+      page.on('console', (m) => {
+        if (m.type() === 'error') errors.push(m.text());
+      });
+      await page.setViewportSize({ width: 1280, height: 900 });
+      await page.goto(pathToFileURL(report.html).href);
+      await page.waitForFunction("document.body.getAttribute('data-ready') !== 'false'", null, { timeout: READY_TIMEOUT_MS });
+      // Boxes measured as laid out: each table inside its scroll box, each figure's SVG inside its figure, each figure inside the page's body.
+      // Run in the page (a string: the test's TypeScript has no DOM types).
+      const overflows = (await page.evaluate(`(() => {
+        const out = [];
+        const body = document.body.getBoundingClientRect();
+        const inside = (a, b) => a.left >= b.left - 0.5 && a.right <= b.right + 0.5;
+        document.querySelectorAll('table').forEach((t, i) => {
+          const box = t.parentElement.getBoundingClientRect();
+          if (!inside(t.getBoundingClientRect(), box) || !inside(t.getBoundingClientRect(), body)) out.push(\`table \${i} (\${t.className}): \${Math.round(t.getBoundingClientRect().width)} px in \${Math.round(box.width)} px\`);
+        });
+        document.querySelectorAll('figure').forEach((f, i) => {
+          const svg = f.querySelector('svg');
+          if (!svg) return out.push(\`figure \${i}: no SVG\`);
+          const r = f.getBoundingClientRect();
+          if (!inside(svg.getBoundingClientRect(), r)) out.push(\`figure \${i}: SVG \${Math.round(svg.getBoundingClientRect().width)} px in \${Math.round(r.width)} px\`);
+          if (!inside(r, body)) out.push(\`figure \${i} leaves the page\`);
+        });
+        if (document.documentElement.scrollWidth > window.innerWidth) out.push(\`page \${document.documentElement.scrollWidth} px wide\`);
+        return out;
+      })()`)) as string[];
+      await page.close();
+      expect(errors).toEqual([]);
+      expect(overflows, report.html).toEqual([]);
+    }
+  });
 });

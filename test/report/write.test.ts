@@ -16,7 +16,7 @@ import { reportSection } from '../../src/config/sections/report.ts';
 import { writeReport } from '../../src/report/index.ts';
 import { carriedCards } from '../../src/report/maps.ts';
 import { outputPath } from '../../src/report/paths.ts';
-import { numberHtml, numberLatex, numberText } from '../../src/report/numbers.ts';
+import { chi2DofText, numberHtml, numberLatex, numberText, pValueText } from '../../src/report/numbers.ts';
 import type { ReportFiles } from '../../src/report/types.ts';
 import { ASTROPY, needReference, PYTHON } from '../support/references.ts';
 import { scratch as scratchFolder } from '../support/scratch.ts';
@@ -69,7 +69,7 @@ describe('writeReport on a table of sightlines', () => {
   });
 
   it('saves each figure as NAME.svg, NAME.png and NAME.pdf beside NAME.vl.json', () => {
-    expect(files.figures).toHaveLength(13);
+    expect(files.figures).toHaveLength(19);
     for (const f of files.figures) {
       const stem = f.spec.replace(/\.vl\.json$/, '');
       expect(f.rendered).toEqual({ svg: `${stem}.svg`, png: `${stem}.png`, pdf: `${stem}.pdf` });
@@ -135,7 +135,8 @@ describe('writeReport on a table of sightlines', () => {
     expect(tex).toContain('\\tablenotetext{b}{Poor fit: $p < 0.1$.}');
     const html = readFileSync(f.html, 'utf8');
     expect(html).toContain('(narrower than the grid step)');
-    expect(html.match(/<td class="poor">/g)).toHaveLength(2);
+    const summary = html.slice(html.indexOf('<section id="summary">'), html.indexOf('</section>', html.indexOf('<section id="summary">')));
+    expect(summary.match(/<td class="poor">/g)).toHaveLength(2);
     expect(csvParse(readFileSync(f.tables.csv, 'utf8'))[0].density_unresolved).toBe('true');
   });
 
@@ -170,6 +171,7 @@ describe('writeReport on a map', () => {
 import json, sys, math
 from astropy.io import fits
 from astropy.wcs import WCS
+import astropy.units as u
 out = {}
 for f in sys.argv[1:]:
     with fits.open(f) as h:
@@ -177,7 +179,7 @@ for f in sys.argv[1:]:
         d = h[0].data
         hd = h[0].header
         w = WCS(hd)
-        out[f.split('/')[-1]] = {'shape': list(d.shape), 'bunit': hd.get('BUNIT'), 'object': hd.get('OBJECT'), 'ctype': [hd['CTYPE1'], hd['CTYPE2']],
+        out[f.split('/')[-1]] = {'shape': list(d.shape), 'bunit': hd.get('BUNIT'), 'dimensionless': 'BUNIT' in hd and u.Unit(hd['BUNIT']) == u.dimensionless_unscaled, 'object': hd.get('OBJECT'), 'ctype': [hd['CTYPE1'], hd['CTYPE2']],
             'crpix': [hd['CRPIX1'], hd['CRPIX2']], 'world': [float(v) for v in w.pixel_to_world_values(3.5, 2.5)],
             'corner': None if math.isnan(d[4, 0]) else float(d[4, 0]), 'x5y0': float(d[0, 5])}
 print(json.dumps(out))
@@ -199,6 +201,9 @@ print(json.dumps(out))
     // A header value with markup characters is carried as written: in FITS it is plain text.
     expect(got['best_age_yr.fits'].object).toBe('Frostmere <map> & "50%"');
     expect(got['best_age_yr.fits'].bunit).toBe('yr');
+    // Dimensionless images carry BUNIT too, empty: astropy reads it as dimensionless.
+    expect(got['best_chi2.fits'].bunit).toBe('');
+    expect(got['best_chi2.fits'].dimensionless).toBe(true);
   });
 });
 
@@ -286,5 +291,77 @@ describe('numbers and thresholds', () => {
     expect(numberLatex(0.5)).toBe('0.50');
     expect(numberHtml(3.2e-5)).toBe('3.2×10<sup>−5</sup>');
     expect(numberText(2.5e5)).toBe('2.5×10⁵');
+  });
+});
+
+describe('chi-square and p-values in tables', () => {
+  it('keeps the digits of chi^2 that a dof of 2 needs', () => {
+    expect(chi2DofText(1.0025, 2)).toBe('1.00/2');
+    expect(chi2DofText(23.456, 7)).toBe('23.5/7');
+    expect(chi2DofText(1234.5, 9)).toBe('1235/9');
+  });
+
+  it('never rounds a p-value to 0 or 1', () => {
+    expect(pValueText(0.9966)).toBe('0.997');
+    expect(pValueText(0.99996)).toBe('> 0.9999');
+    expect(pValueText(0.5)).toBe('0.50');
+    expect(pValueText(0.034)).toBe('0.034');
+    expect(pValueText(1.2e-12)).toBe('1.2×10⁻¹²');
+    expect(pValueText(1.2e-12, 'latex')).toBe('1.2\\times10^{-12}');
+    expect(pValueText(0.99996, 'html')).toBe('&gt; 0.9999');
+  });
+
+  it('defines only the table notes a row uses, and lists joint fits in the LaTeX table', async () => {
+    const input = syntheticInput({ joint: true, config: { formats: ['svg'], figures: ['fit_vs_av'] } });
+    input.fit.poorFitP = 1e-6;
+    for (const f of input.fit.fits) for (const iv of f.intervals) Object.assign(iv, { unresolved: false });
+    const files = await writeReport(input, join(scratch(), 'r'));
+    const tex = readFileSync(files.tables.latex, 'utf8');
+    for (const mark of ['a', 'b', 'c']) {
+      expect(tex.includes(`\\tablenotetext{${mark}}`), mark).toBe(tex.includes(`\\tablenotemark{${mark}}`));
+    }
+    expect(tex).not.toContain('\\tablenotetext{b}');
+    const body = tex.slice(tex.indexOf('\\startdata'), tex.indexOf('\\enddata'));
+    expect(body).toContain('\\cutinhead{Joint fits');
+    const joint = input.fit.joint[0];
+    const row = body.split('\n').find((l) => l.startsWith('\\textless{}b\\textgreater{}core'))!;
+    expect(row).toBeDefined();
+    // Shared age with its interval; density and temperature are fitted per member: no single value.
+    expect(row).toContain(`$${numberLatex(joint.sharedBest.age_yr)}$ ($${numberLatex(3e4)}$--$${numberLatex(3e5)}$)`);
+    expect(row.match(/\\nodata/g)).toHaveLength(3);
+    expect(row).toContain(chi2DofText(joint.chi2, joint.dof));
+    const html = readFileSync(files.html, 'utf8');
+    // Held parameters by their names, with units.
+    expect(html).toContain('Held fixed: Cosmic-ray ionisation rate 1.3×10⁻¹⁷ s⁻¹.');
+    expect(html).not.toContain('cr_ionisation_rate =');
+  });
+});
+
+describe('chi^2 by quantity in the HTML', () => {
+  it("marks the quantity with the largest share of each sightline's chi^2, and the shares sum to the fit's chi^2", async () => {
+    const input = syntheticInput({ config: { formats: ['svg'], figures: ['residuals'] } });
+    const files = await writeReport(input, join(scratch(), 'r'));
+    const html = readFileSync(files.html, 'utf8');
+    const section = html.slice(html.indexOf('<section id="chi2-shares">'), html.indexOf('</section>', html.indexOf('<section id="chi2-shares">')));
+    expect(section).toContain('What drives each fit');
+    const rows = [...section.matchAll(/<tr><th scope="row">([^<]*)<\/th>(.*?)<\/tr>/g)].filter((m) => m[1] !== 'All sightlines');
+    expect(rows).toHaveLength(input.fit.fits.length);
+    rows.forEach((m, i) => {
+      const fit = input.fit.fits[i];
+      const cells = [...m[2].matchAll(/<td([^>]*)>([^<]*)<\/td>/g)].slice(0, fit.residuals.length);
+      const top = fit.residuals.reduce((a, r) => (r.chi2 > a.chi2 ? r : a));
+      const bold = cells.findIndex((c) => c[1].includes('drives'));
+      expect(fit.residuals[bold].label).toBe(top.label);
+      const sum = cells.reduce((a, c) => a + Number(c[2].replace(/[▼▲ ]/g, '')), 0);
+      expect(sum).toBeCloseTo(fit.residuals.reduce((a, r) => a + r.chi2, 0), 1);
+    });
+  });
+});
+
+describe('subscripts in HTML captions', () => {
+  it('writes n_H and A_V with <sub> and leaves other underscores alone', async () => {
+    const { subscripts } = await import('../../src/report/html.ts');
+    expect(subscripts('best fit n_H = 3 cm⁻³, model A_V = 5 mag')).toBe('best fit n<sub>H</sub> = 3 cm⁻³, model A<sub>V</sub> = 5 mag');
+    expect(subscripts('50%_&amp;_#1 and T_Tauri')).toBe('50%_&amp;_#1 and T_Tauri');
   });
 });

@@ -17,6 +17,7 @@ import { throwProblems, UserError } from '../../config/errors.ts';
 import type { Pipeline } from '../../config/pipeline.ts';
 import type { ModelResult } from '../../model/types.ts';
 import { logAxis } from '../../report/figures/axes.ts';
+import { numberText } from '../../report/numbers.ts';
 import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig } from '../../report/theme.ts';
 
 /** Species drawn when --species is not given, those of them the network has (the ices and gas a dark-cloud study looks at first). */
@@ -28,6 +29,8 @@ const WATER_ICE = 'H2O(s)';
 const ICE_RATIO_SPECIES = ['CO(s)', 'CO2(s)', 'CH3OH(s)', 'NH3(s)', 'CH4(s)'];
 /** Species listed in the terminal summary. */
 const SUMMARY_COUNT = 8;
+/** Resolution of the quick-look PNG, dots per inch (journals ask 300 for raster art: common practice). */
+const MODEL_PNG_DPI = 300;
 
 interface ModelOptions {
   set?: string[];
@@ -109,11 +112,14 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   };
   writeOutput(join(outDir, 'abundances.json'), JSON.stringify(json, null, 1) + '\n');
 
-  const spec = figureSpec(result, reached, figureSpecies, `${network.name}: n_H = ${conditions.density} cm⁻³, T = ${conditions.gas_temperature} K, A_V = ${conditions.visual_extinction} mag`);
-  const { renderSvg } = await import('../../report/render.ts');
+  // A quick-look figure keeps its conditions in its title; subscripts as Unicode (n_H has no subscript capital, so n(H); DejaVu has U+1D65 for A with subscript v).
+  const spec = figureSpec(result, reached, figureSpecies, `${network.name}: n(H) = ${numberText(conditions.density)} cm⁻³, T = ${numberText(conditions.gas_temperature)} K, Aᵥ = ${numberText(conditions.visual_extinction)} mag`);
+  const { renderSvg, svgToPdf, svgToPng } = await import('../../report/render.ts');
   const rendered = await renderSvg(spec);
   writeOutput(join(outDir, 'abundances.vl.json'), JSON.stringify(spec, null, 1) + '\n');
   writeOutput(join(outDir, 'abundances.svg'), rendered.svg);
+  writeOutput(join(outDir, 'abundances.png'), svgToPng(rendered.svg, MODEL_PNG_DPI));
+  writeOutput(join(outDir, 'abundances.pdf'), await svgToPdf(rendered, `Model abundances of ${network.name}`));
 
   ctx.stdout.write(summary(result, reached, network.name, outDir, emittedNote, initialNotes));
   ctx.setExitCode(result.status === 'ok' ? 0 : 1);
@@ -214,7 +220,7 @@ export function chooseSpecies(list: string | undefined, names: string[]): string
   return wanted;
 }
 
-function writeOutput(path: string, text: string): void {
+function writeOutput(path: string, text: string | Buffer): void {
   try {
     writeOutputFile(path, text);
   } catch (e) {
@@ -259,7 +265,7 @@ function figureSpec(result: ModelResult, rows: number, species: string[], title:
   const yHi = values.reduce((m, v) => Math.max(m, v.abundance), FIGURE_FLOOR * 10);
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: title, subtitle: `abundances below ${FIGURE_FLOOR} relative to H not drawn` },
+    title: { text: title, subtitle: `abundances below ${numberText(FIGURE_FLOOR)} relative to H not drawn` },
     width: 300,
     height: 220,
     data: { values },
@@ -296,6 +302,6 @@ function summary(result: ModelResult, rows: number, networkName: string, outDir:
   for (const note of initialNotes) lines.push(`note: ${note}`);
   for (const note of result.clampNotes) lines.push(`note: ${note}`);
   for (const note of result.skippedNotes ?? []) lines.push(`left out: ${note}`);
-  lines.push(`wrote ${outDir}/abundances.csv, abundances.json, abundances.svg, abundances.vl.json${emitted ? `; system: ${emitted}` : ''}`);
+  lines.push(`wrote ${outDir}/abundances.csv, abundances.json, abundances.svg, .png, .pdf, abundances.vl.json${emitted ? `; system: ${emitted}` : ''}`);
   return lines.join('\n') + '\n';
 }

@@ -1,5 +1,5 @@
 /**
- * `hoarfrost slurm PIPELINE --shards N [--partition P] [--time T] [--cpus C]`:
+ * `hoarfrost slurm PIPELINE --shards N [--partition P] [--time T] [--cpus C] [--account A] [--mem M] [--qos Q] [--sbatch=--name=value ...]`:
  * write an sbatch job-array script that runs one grid shard per array task
  * (OUT/slurm/grid-array.sh), and say how to submit and merge it.
  */
@@ -29,12 +29,17 @@ export function register(program: Command, ctx: CommandContext): void {
     .option('--partition <name>', 'Slurm partition')
     .option('--time <limit>', 'time limit per task (Slurm form: minutes, HH:MM:SS or D-HH:MM:SS)')
     .option('--cpus <n>', `CPUs per task, one worker thread each (default ${DEFAULT_CPUS})`, parseCount('--cpus'))
-    .action(async (file: string, opts: { shards: number; partition?: string; time?: string; cpus?: number }) => {
+    .option('--account <name>', 'account charged for the job')
+    .option('--mem <size>', 'memory per task, Slurm form (4G, 4000M)')
+    .option('--qos <name>', 'quality of service')
+    .option('--sbatch <option>', 'a further sbatch option as --name=value, written as an #SBATCH line (repeatable)', (v: string, prev: string[] = []) => [...prev, v])
+    .action(async (file: string, opts: { shards: number; partition?: string; time?: string; cpus?: number; account?: string; mem?: string; qos?: string; sbatch?: string[] }) => {
       const { loadPipeline } = await import('../../config/pipeline.ts');
       const { standaloneGridPlan } = await import('../../pipeline/default-stages.ts');
       const { slurmScript, checkSlurmOptions, HOARFROST_BIN } = await import('../../grid/slurm.ts');
       const cpus = opts.cpus ?? DEFAULT_CPUS;
-      checkSlurmOptions({ shards: opts.shards, cpus, time: opts.time, partition: opts.partition });
+      const batch = { account: opts.account, mem: opts.mem, qos: opts.qos, extra: opts.sbatch };
+      checkSlurmOptions({ shards: opts.shards, cpus, time: opts.time, partition: opts.partition, ...batch });
       const pipeline = loadPipeline(file);
       // Expanding the grid here catches a bad pipeline before anything is queued.
       const plan = await standaloneGridPlan(pipeline);
@@ -45,7 +50,7 @@ export function register(program: Command, ctx: CommandContext): void {
       const slurmDir = join(outDir, 'slurm');
       mkdirSync(slurmDir, { recursive: true });
       const scriptFile = join(slurmDir, 'grid-array.sh');
-      writeOutput(scriptFile, slurmScript({ pipelineFile: pipeline.file, outDir, name: pipeline.config.name, shards: opts.shards, partition: opts.partition, time: opts.time, cpus }), { mode: 0o755 });
+      writeOutput(scriptFile, slurmScript({ pipelineFile: pipeline.file, outDir, name: pipeline.config.name, shards: opts.shards, partition: opts.partition, time: opts.time, cpus, ...batch }), { mode: 0o755 });
       const perShard = Math.ceil(plan.points.length / opts.shards);
       ctx.stdout.write(
         [

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { outputNameProblem } from '../output-name.ts';
 
 /** Figure kinds the report can draw (src/report/figures/). */
-export const FIGURE_KINDS = ['chi2_map', 'tracks', 'fit_vs_av', 'profiles', 'sky_map', 'posterior', 'sensitivity'] as const;
+export const FIGURE_KINDS = ['chi2_map', 'tracks', 'fit_vs_av', 'profiles', 'sky_map', 'posterior', 'sensitivity', 'residuals', 'ice_vs_av', 'parameters', 'sky_positions'] as const;
 export type FigureKind = (typeof FIGURE_KINDS)[number];
 
 export const figureFormat = z.enum(['svg', 'png', 'pdf']);

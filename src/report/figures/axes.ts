@@ -2,7 +2,7 @@
  * Axis titles with units, log-or-linear choice and decade labels shared by
  * the figure builders.
  */
-import { decadeText } from '../numbers.ts';
+import { decadeText, numberText } from '../numbers.ts';
 
 /** Axis properties a log axis gets (merged into a Vega-Lite axis). */
 export interface DecadeAxis {
@@ -14,27 +14,47 @@ export interface DecadeAxis {
 /** A quantity spanning at least this ratio (max/min) gets a log axis: one decade. */
 const LOG_AXIS_MIN_RATIO = 10;
 
-/** Axis titles of the condition names (units as design.md fixes them). */
-const PARAMETER_TITLES: Record<string, string> = {
-  density: 'Density (cm⁻³)',
-  age_yr: 'Chemical age (yr)',
-  gas_temperature: 'Gas temperature (K)',
-  dust_temperature: 'Dust temperature (K)',
-  visual_extinction: 'Model extinction (mag)',
-  cr_ionisation_rate: 'Cosmic-ray ionisation rate (s⁻¹)',
-  uv_field: 'UV field (G0, Habing)',
-  diffusion_ratio: 'Diffusion-to-binding energy ratio',
-  grain_radius: 'Grain radius (µm)',
-  dust_to_gas: 'Dust-to-gas mass ratio',
-  reactive_desorption: 'Reactive desorption fraction',
+/**
+ * Human name and unit of every condition name (units as design.md fixes
+ * them), for axis titles (`Gas temperature (K)`) and for values in text
+ * (`gas temperature 10 K`).
+ */
+const PARAMETER_NAMES: Record<string, { name: string; unit: string; valueUnit?: string }> = {
+  density: { name: 'Density', unit: 'cm⁻³' },
+  age_yr: { name: 'Chemical age', unit: 'yr' },
+  gas_temperature: { name: 'Gas temperature', unit: 'K' },
+  dust_temperature: { name: 'Dust temperature', unit: 'K' },
+  visual_extinction: { name: 'Model extinction', unit: 'mag' },
+  cr_ionisation_rate: { name: 'Cosmic-ray ionisation rate', unit: 's⁻¹' },
+  uv_field: { name: 'UV field', unit: 'G0, Habing', valueUnit: 'G0' },
+  diffusion_ratio: { name: 'Diffusion-to-binding energy ratio', unit: '' },
+  grain_radius: { name: 'Grain radius', unit: 'µm' },
+  dust_to_gas: { name: 'Dust-to-gas mass ratio', unit: '' },
+  reactive_desorption: { name: 'Reactive desorption fraction', unit: '' },
+  grain_density: { name: 'Grain material density', unit: 'g cm⁻³' },
+  site_density: { name: 'Surface site density', unit: 'cm⁻²' },
+  photodesorption_yield: { name: 'Photodesorption yield', unit: 'per photon' },
 };
 
 export const AV_TITLE = 'Visual extinction (mag)';
 export const DELTA_CHI2_TITLE = 'Δχ²';
 export const CHI2_TITLE = 'χ²';
 
+/** Axis title: `Gas temperature (K)`; an unknown name as written. */
 export function parameterTitle(name: string): string {
-  return PARAMETER_TITLES[name] ?? name;
+  const p = PARAMETER_NAMES[name];
+  if (!p) return name;
+  return p.unit ? `${p.name} (${p.unit})` : p.name;
+}
+
+/** A value in running text: `Gas temperature 10 K`, `Grain radius 0.1 µm`. */
+export function parameterValueText(name: string, value: number): string {
+  const p = PARAMETER_NAMES[name];
+  const unit = p ? (p.valueUnit ?? p.unit) : '';
+  // Up to three significant figures, trailing zeros dropped: a held value is exact as given (`0.1 µm`, not `0.100`).
+  const [mantissa, power] = numberText(value, 3).split('×');
+  const text = (mantissa.includes('.') ? mantissa.replace(/\.?0+$/, '') : mantissa) + (power ? `×${power}` : '');
+  return `${p?.name ?? name} ${text}${unit ? ` ${unit}` : ''}`;
 }
 
 export type ScaleKind = 'log' | 'linear';
@@ -75,7 +95,7 @@ export function cellEdges(kind: ScaleKind, values: readonly number[]): number[] 
 export function logAxis(lo: number, hi: number): DecadeAxis {
   const kLo = Math.ceil(Math.log10(lo) - 1e-9);
   const kHi = Math.floor(Math.log10(hi) + 1e-9);
-  if (kHi - kLo < 1) return { format: '~g' };
+  if (kHi - kLo < 1) return lo >= PLAIN_LABEL_MAX || hi < PLAIN_LABEL_MIN ? steppedLogAxis(lo, hi) : { format: '~g' };
   const step = Math.max(1, Math.ceil((kHi - kLo + 1) / MAX_DECADE_TICKS));
   const values: number[] = [];
   const labels: Record<string, string> = {};
@@ -84,6 +104,25 @@ export function logAxis(lo: number, hi: number): DecadeAxis {
     const v = Number(`1e${k}`);
     values.push(v);
     labels[String(v)] = decadeText(k);
+  }
+  return { values, labelExpr: `${JSON.stringify(labels)}[datum.value]` };
+}
+
+/** Outside this range vega's default labels read 2e+18: such axes get 1, 2, 5 x 10ⁿ ticks labelled 2×10¹⁸. */
+const PLAIN_LABEL_MIN = 0.01;
+const PLAIN_LABEL_MAX = 1000;
+const LOG_STEPS = [1, 2, 5];
+
+function steppedLogAxis(lo: number, hi: number): DecadeAxis {
+  const values: number[] = [];
+  const labels: Record<string, string> = {};
+  for (let k = Math.floor(Math.log10(lo)) - 1; k <= Math.ceil(Math.log10(hi)); k++) {
+    for (const m of LOG_STEPS) {
+      const v = Number(`${m}e${k}`);
+      if (v < lo || v > hi) continue;
+      values.push(v);
+      labels[String(v)] = m === 1 ? decadeText(k) : `${m}×${decadeText(k)}`;
+    }
   }
   return { values, labelExpr: `${JSON.stringify(labels)}[datum.value]` };
 }

@@ -75,7 +75,6 @@ export function buildChi2MapSpec(ctx: FigureContext, fit: SightlineFit, pairIn: 
   const maxDelta = Math.max(1, ...cells.map((c) => c.dchi2));
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: `minimum χ² = ${Number(fit.best.chi2.toPrecision(3))} for ${fit.dof} dof` },
     width: plotWidth,
     height: Math.round(plotWidth * MAP_ASPECT),
     config: figureConfig(),
@@ -173,7 +172,7 @@ export const chi2MapFigure: FigureBuilder = {
         name: sightlineFigureName(request, indexOf(ctx, id), request.sightlines.length, slug(id)),
         kind: 'chi2_map',
         title: `χ² map of ${id}`,
-        caption: `Δχ² over ${plainName(xName)} and ${plainName(yName)} for ${id} (minimised over every other parameter), with the joint regions of the two parameters (${ctx.levels.map((l) => `${levelLabel(l)}: Δχ² ≤ ${deltaChi2Threshold(l, PAIR_PARAMETERS, ctx.input.fit.regionLevels ?? ctx.input.fit.levels).toFixed(2)}`).join(', ')}) and the best fit (cross).`,
+        caption: `Δχ² over ${plainName(xName)} and ${plainName(yName)} for ${id} (minimised over every other parameter), with the joint regions of the two parameters (${ctx.levels.map((l) => `${levelLabel(l)}: Δχ² ≤ ${deltaChi2Threshold(l, PAIR_PARAMETERS, ctx.input.fit.regionLevels ?? ctx.input.fit.levels).toFixed(2)}`).join(', ')}) and the best fit (cross; minimum χ² = ${Number(fit.best.chi2.toPrecision(3))} for ${fit.dof} degree${fit.dof === 1 ? '' : 's'} of freedom).`,
         sightline: id,
         spec: buildChi2MapSpec(ctx, fit, pair, transposed),
       });

@@ -12,8 +12,12 @@ import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from '.
 import { chi2MapFigure } from './chi2-map.ts';
 import { fitVsAvFigure } from './fit-vs-av.ts';
 import { posteriorFigure } from './posterior.ts';
+import { iceVsAvFigure } from './ice-vs-av.ts';
+import { parametersFigure } from './parameters.ts';
 import { profilesFigure } from './profiles.ts';
+import { residualsFigure } from './residuals.ts';
 import { skyMapFigure } from './sky-map.ts';
+import { skyPositionsFigure } from './sky-positions.ts';
 import { tracksFigure } from './tracks.ts';
 import { sensitivityFigure } from './sensitivity.ts';
 
@@ -25,11 +29,15 @@ export const FIGURE_BUILDERS: Record<FigureKind, FigureBuilder> = {
   sky_map: skyMapFigure,
   posterior: posteriorFigure,
   sensitivity: sensitivityFigure,
+  residuals: residualsFigure,
+  ice_vs_av: iceVsAvFigure,
+  parameters: parametersFigure,
+  sky_positions: skyPositionsFigure,
 };
 
 /** Kinds drawn when the pipeline lists none, in this order (sky maps only for map observations). */
 const DEFAULT_KINDS: Record<'table' | 'map', FigureKind[]> = {
-  table: ['fit_vs_av', 'chi2_map', 'profiles', 'posterior', 'tracks', 'sensitivity'],
+  table: ['residuals', 'ice_vs_av', 'fit_vs_av', 'parameters', 'sky_positions', 'chi2_map', 'profiles', 'posterior', 'tracks', 'sensitivity'],
   map: ['sky_map', 'fit_vs_av'],
 };
 /** Per-sightline kinds, drawn by default for a map only at the pixels listed in `report.sightlines`. */

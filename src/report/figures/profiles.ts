@@ -35,7 +35,6 @@ export function buildProfilesSpec(ctx: FigureContext, fit: SightlineFit, profile
   const levelNames = thresholds.map((t) => t.level);
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: 'χ² profiles (minimised over the other parameters)' },
     config: figureConfig(),
     columns,
     spacing: PANEL_SPACING,

@@ -9,6 +9,8 @@ import { figureConfig, figureSize, MAP_SCHEME, SEQUENTIAL_SCHEME } from '../them
 import { pixelColours, mapImageDataUrl } from '../raster.ts';
 import { CHI2_TITLE, logAxis, scaleKind, type ScaleKind } from './axes.ts';
 import type { BuiltFigure, FigureBuilder, FigureContext, FigureRequest } from './builder.ts';
+import { DEC_TITLE, RA_TITLE } from './sky-positions.ts';
+import { pixelToWorld, readTanWcs } from '../wcs.ts';
 
 /** Maps with more pixels than this are drawn as one raster image. */
 const RASTER_MIN_PIXELS = 64 * 64;
@@ -27,6 +29,38 @@ export const SKY_IMAGES: SkyImage[] = [
   { image: 'best_density', title: 'Best-fit density', legend: 'Density (cm⁻³)', scheme: SEQUENTIAL_SCHEME },
   { image: 'best_chi2', title: 'Best-fit χ²', legend: CHI2_TITLE, scheme: MAP_SCHEME },
 ];
+
+/** Labelled ticks along an axis of the image. */
+const WORLD_TICKS = 4;
+
+/**
+ * Axes in world coordinates when the observed maps carry a TAN WCS in RA and
+ * Dec: ticks at pixel positions labelled with RA along the middle row and
+ * Dec along the middle column (src/report/wcs.ts); pixel axes otherwise.
+ */
+export function skyAxes(ctx: FigureContext, map: MapFitJson): { x: { title: string; axis: object }; y: { title: string; axis: object }; world: boolean } {
+  const pixel = { x: { title: 'Pixel x', axis: { grid: false } }, y: { title: 'Pixel y', axis: { grid: false } }, world: false };
+  const header = ctx.input.observations.map?.wcs;
+  if (!header) return pixel;
+  const w = readTanWcs(header);
+  if (typeof w === 'string') return pixel;
+  const ticks = (n: number) => Array.from({ length: WORLD_TICKS }, (_, k) => Math.round(((n - 1) * (k + 0.5)) / WORLD_TICKS));
+  const xs = ticks(map.nx);
+  const ys = ticks(map.ny);
+  const midX = (map.nx - 1) / 2;
+  const midY = (map.ny - 1) / 2;
+  // Enough decimals to tell neighbouring ticks apart.
+  const step = Math.max(Math.abs(w.cdelt[0]), Math.abs(w.cdelt[1])) * Math.max(1, (map.nx - 1) / WORLD_TICKS);
+  const decimals = Math.min(6, Math.max(1, Math.ceil(-Math.log10(step)) + 1));
+  const labels = (values: number[], world: (v: number) => number) => Object.fromEntries(values.map((v) => [String(v), world(v).toFixed(decimals)]));
+  const xLabels = labels(xs, (v) => pixelToWorld(w, v, midY)[0]);
+  const yLabels = labels(ys, (v) => pixelToWorld(w, midX, v)[1]);
+  return {
+    x: { title: RA_TITLE, axis: { grid: false, values: xs, labelExpr: `${JSON.stringify(xLabels)}[datum.value]` } },
+    y: { title: DEC_TITLE, axis: { grid: false, values: ys, labelExpr: `${JSON.stringify(yLabels)}[datum.value]` } },
+    world: true,
+  };
+}
 
 export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyImage): TopLevelSpec {
   const { plotWidth } = figureSize(ctx.input.config.column_width_in, true);
@@ -52,16 +86,15 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
   if (map.nx * map.ny > RASTER_MIN_PIXELS && rows.length > 0) return rasterSpec(ctx, map, image, values, kind, [lo, hi], plotWidth, height);
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
     width: plotWidth,
     height,
     config: figureConfig(),
     data: { values: rows },
     mark: { type: 'rect', tooltip: true, clip: true },
     encoding: {
-      x: { field: 'x', type: 'quantitative', title: 'Pixel x', axis: { grid: false }, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } },
+      x: { field: 'x', type: 'quantitative', ...skyAxes(ctx, map).x, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } },
       x2: { field: 'x2' },
-      y: { field: 'y', type: 'quantitative', title: 'Pixel y', axis: { grid: false }, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } },
+      y: { field: 'y', type: 'quantitative', ...skyAxes(ctx, map).y, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } },
       y2: { field: 'y2' },
       color: {
         field: 'value',
@@ -86,11 +119,11 @@ export function buildSkyMapSpec(ctx: FigureContext, map: MapFitJson, image: SkyI
  */
 function rasterSpec(ctx: FigureContext, map: MapFitJson, image: SkyImage, values: readonly (number | null)[], kind: ScaleKind, domain: [number, number], width: number, height: number): TopLevelSpec {
   const url = mapImageDataUrl(pixelColours(values, kind, domain, image.scheme), map.nx, map.ny);
-  const x = { field: 'x', type: 'quantitative' as const, title: 'Pixel x', axis: { grid: false }, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } };
-  const y = { field: 'y', type: 'quantitative' as const, title: 'Pixel y', axis: { grid: false }, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } };
+  const axes = skyAxes(ctx, map);
+  const x = { field: 'x', type: 'quantitative' as const, ...axes.x, scale: { domain: [-0.5, map.nx - 0.5], nice: false, zero: false } };
+  const y = { field: 'y', type: 'quantitative' as const, ...axes.y, scale: { domain: [-0.5, map.ny - 0.5], nice: false, zero: false } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: image.title, subtitle: `${map.fittedPixels} of ${map.nx * map.ny} pixels fitted` },
     width,
     height,
     config: figureConfig(),
@@ -122,7 +155,7 @@ function rasterSpec(ctx: FigureContext, map: MapFitJson, image: SkyImage, values
 
 export const skyMapFigure: FigureBuilder = {
   kind: 'sky_map',
-  description: 'sky images of the best age, density and χ² in pixel coordinates',
+  description: 'sky images of the best age, density and χ², in world coordinates where the map has a WCS',
   perSightline: false,
   unavailable(ctx) {
     return ctx.input.map ? undefined : `the observations (${ctx.input.observations.file}) are a table of sightlines, not a map`;
@@ -134,7 +167,7 @@ export const skyMapFigure: FigureBuilder = {
       name: `${request.name}_${image.image}`,
       kind: 'sky_map' as const,
       title: image.title,
-      caption: `${image.title} of every map pixel, in pixel coordinates (x right, y up, as in the FITS images); blank pixels have no fit.`,
+      caption: `${image.title} of every map pixel, ${skyAxes(ctx, map).world ? 'on the pixel grid of the FITS images with RA (along the middle row) and Dec (along the middle column) from their TAN WCS' : 'in pixel coordinates (x right, y up, as in the FITS images)'}; blank pixels have no fit (${map.fittedPixels} of ${map.nx * map.ny} pixels fitted).`,
       spec: buildSkyMapSpec(ctx, map, image),
     }));
   },

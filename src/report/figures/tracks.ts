@@ -10,14 +10,14 @@ import { levelStatement, statedLevel } from '../../fit/regions.ts';
 import type { SightlineFit } from '../../fit/types.ts';
 import type { ObservedQuantity } from '../../obs/types.ts';
 import { slug } from '../escape.ts';
-import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig, figureSize } from '../theme.ts';
+import { CATEGORY_COLOURS, CATEGORY_DASHES, figureConfig, figureSize, OBSERVATION_NAMES, OBSERVATION_SHAPES } from '../theme.ts';
 import type { ModelTrack } from '../types.ts';
 import { numberText } from '../numbers.ts';
 import { logAxis, paddedDomain, parameterTitle } from './axes.ts';
 import { sightlineFigureName, type BuiltFigure, type FigureBuilder, type FigureContext, type FigureRequest } from './builder.ts';
 
-/** Observations of different quantities are spread over this many dex in time around the best age. */
-const OBSERVATION_SPREAD_DEX = 0.15;
+/** Observations of the quantities of one panel are spread this many pixels apart in time around the best age, so that no two symbols overlap. */
+const OBSERVATION_STEP_PX = 9;
 /** Abundances and ratios get a panel each; stacked panels are this much of a single panel's height, at least MIN_PANEL_HEIGHT. */
 const STACKED_PANEL_SCALE = 0.8;
 const MIN_PANEL_HEIGHT = 100;
@@ -26,15 +26,11 @@ const PANEL_SPACING = 8;
 const Y_MARGIN_BELOW_DEX = 2;
 const Y_MARGIN_ABOVE_DEX = 1;
 const RUNNER_UP_OPACITY = 0.35;
-const KIND_SHAPES: Record<ObservedQuantity['kind'], string> = { detection: 'circle', upper: 'triangle-down', lower: 'triangle-up' };
-const KIND_NAMES: Record<ObservedQuantity['kind'], string> = { detection: 'detection', upper: 'upper limit', lower: 'lower limit' };
-
-/** Model ids are content hashes: the first characters identify one in a figure. */
-const SHORT_ID_LENGTH = 12;
-
-function shortId(id: string): string {
-  return id.length > SHORT_ID_LENGTH ? `${id.slice(0, SHORT_ID_LENGTH)}…` : id;
-}
+/** Symbol area, px², and the width of the caps of the error bars, px: caps wider than the symbol keep a 0.1 dex bar visible. */
+const SYMBOL_SIZE = 24;
+const CAP_WIDTH_PX = 9;
+/** Triangles look smaller than circles of the same area. */
+const LIMIT_SYMBOL_SIZE = 40;
 
 function wanted(label: string, numerator: string, species: readonly string[]): boolean {
   return species.length === 0 || species.includes(label) || species.includes(numerator);
@@ -71,6 +67,18 @@ function denominatorOf(label: string, observed: readonly ObservedQuantity[]): st
   return slash >= 0 ? label.slice(slash + 1) : '';
 }
 
+/** What a sightline's best fit is, in words: density, temperature, model A_V, age (a model hash says nothing to a reader). */
+export function bestFitText(fit: SightlineFit): string {
+  const p = fit.best.parameters;
+  const parts = [
+    p.density !== undefined ? `n_H = ${numberText(p.density)} cm⁻³` : undefined,
+    p.gas_temperature !== undefined ? `T = ${numberText(p.gas_temperature)} K` : undefined,
+    p.visual_extinction !== undefined ? `model A_V = ${numberText(p.visual_extinction)} mag` : undefined,
+    `age ${numberText(fit.best.ageYr)} yr`,
+  ];
+  return parts.filter((x) => x !== undefined).join(', ');
+}
+
 export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: ModelTrack[], observed: ObservedQuantity[], labels: string[]): TopLevelSpec {
   const { plotWidth, plotHeight } = figureSize(ctx.input.config.column_width_in, true);
   const bestAge = fit.best.ageYr;
@@ -90,28 +98,39 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
       if (t > 0 && Number.isFinite(tr.band!.lo[i]) && Number.isFinite(tr.band!.hi[i])) bandRows.push({ t, lo: 10 ** tr.band!.lo[i], hi: 10 ** tr.band!.hi[i], quantity: tr.label });
     });
   }
+  const times = lineRows.map((r) => r.t);
+  const xDomain = paddedDomain('log', times.length > 0 ? [...times, bestAge] : [bestAge], 0);
+  const dexPerPx = (Math.log10(xDomain[1]) - Math.log10(xDomain[0])) / plotWidth;
+  const groups = [...new Set(labels.map((l) => denominatorOf(l, observed)))].sort();
+  const groupOf = new Map(labels.map((l) => [l, denominatorOf(l, observed)] as const));
+  // Within a panel, each quantity its own dash and its own place beside the best age.
+  const placeInGroup = new Map<string, { k: number; n: number }>();
+  for (const g of groups) {
+    const members = labels.filter((l) => groupOf.get(l) === g);
+    members.forEach((l, k) => placeInGroup.set(l, { k, n: members.length }));
+  }
   const obsRows = observed.map((q) => {
-    const k = labels.indexOf(q.label);
-    const shift = labels.length > 1 ? OBSERVATION_SPREAD_DEX * (k / (labels.length - 1) - 0.5) : 0;
+    const { k, n } = placeInGroup.get(q.label) ?? { k: 0, n: 1 };
+    const shift = (k - (n - 1) / 2) * OBSERVATION_STEP_PX * dexPerPx;
     return {
       t: bestAge * 10 ** shift,
       value: 10 ** q.log10,
       lo: 10 ** (q.log10 - q.sigmaLoDex),
       hi: 10 ** (q.log10 + q.sigmaHiDex),
       quantity: q.label,
-      kind: KIND_NAMES[q.kind],
+      kind: OBSERVATION_NAMES[q.kind],
       detected: q.kind === 'detection',
     };
   });
-  const times = lineRows.map((r) => r.t).concat(obsRows.map((r) => r.t));
-  const xDomain = paddedDomain('log', times.length > 0 ? times : [bestAge], 0);
   const colour = { domain: labels, range: labels.map((_, i) => CATEGORY_COLOURS[i % CATEGORY_COLOURS.length]) };
-  const dashes = { domain: labels, range: labels.map((_, i) => CATEGORY_DASHES[i % CATEGORY_DASHES.length]) };
+  const dashes = { domain: labels, range: labels.map((l) => CATEGORY_DASHES[(placeInGroup.get(l)?.k ?? 0) % CATEGORY_DASHES.length]) };
   const legend = { orient: 'bottom' as const, columns: 2, symbolType: 'stroke', symbolOpacity: 1 };
-  const groups = [...new Set(labels.map((l) => denominatorOf(l, observed)))].sort();
+  const shapeScale = { domain: Object.values(OBSERVATION_NAMES), range: Object.values(OBSERVATION_SHAPES) };
+  // Above the plot, in one row: beside the quantity legend it would make the figure wider than a column.
+  const shapeLegend = { orient: 'top' as const, direction: 'horizontal' as const, columns: 3, symbolFillColor: '#ffffff', symbolStrokeColor: '#000000', symbolStrokeWidth: 1, symbolSize: 40, title: null, columnPadding: 6 };
   const height = groups.length > 1 ? Math.max(MIN_PANEL_HEIGHT, Math.round(plotHeight * STACKED_PANEL_SCALE)) : plotHeight;
   const panels = groups.map((denominator, g) => {
-    const inGroup = new Set(labels.filter((l) => denominatorOf(l, observed) === denominator));
+    const inGroup = new Set(labels.filter((l) => groupOf.get(l) === denominator));
     const lines = lineRows.filter((r) => inGroup.has(r.quantity));
     const points = obsRows.filter((r) => inGroup.has(r.quantity));
     const obsLog = observed.filter((q) => inGroup.has(q.label)).flatMap((q) => [q.log10 - q.sigmaLoDex, q.log10 + q.sigmaHiDex]);
@@ -125,6 +144,13 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
       axis: { ...logAxis(xDomain[0], xDomain[1]), ...(last ? {} : { labels: false }) },
     };
     const y = { field: 'value', type: 'quantitative' as const, title: yTitle([{ denominator: denominator || undefined }]), scale: { type: 'log' as const, domain: yDomain, nice: false }, axis: logAxis(yDomain[0], yDomain[1]) };
+    const colourEnc = { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend };
+    const shapeEnc = { field: 'kind', type: 'nominal' as const, title: 'Observed', scale: shapeScale, legend: shapeLegend };
+    const tooltip = [
+      { field: 'quantity', type: 'nominal' as const, title: 'quantity' },
+      { field: 'kind', type: 'nominal' as const, title: 'observed' },
+      { field: 'value', type: 'quantitative' as const, title: 'value', format: '.3~g' },
+    ];
     return {
       width: plotWidth,
       height,
@@ -154,38 +180,33 @@ export function buildTracksSpec(ctx: FigureContext, fit: SightlineFit, tracks: M
           encoding: {
             x,
             y,
-            color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend },
+            color: colourEnc,
             // Same field and title as the colour: vega-lite merges the two into one legend of dashed, coloured lines.
             strokeDash: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: dashes, legend },
             detail: { field: 'model', type: 'nominal' as const },
           },
         })),
         {
-          data: { values: points.filter((r) => r.detected) },
-          mark: { type: 'rule' as const, strokeWidth: 1, clip: true },
-          encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend } },
+          // Limits: filled triangles in the quantity's colour.
+          data: { values: points.filter((r) => !r.detected) },
+          mark: { type: 'point' as const, filled: true, size: LIMIT_SYMBOL_SIZE, stroke: '#ffffff', strokeWidth: 0.5, opacity: 1, tooltip: true, clip: true },
+          encoding: { x, y, color: colourEnc, shape: shapeEnc, tooltip },
         },
         {
-          data: { values: points },
-          mark: { type: 'point' as const, filled: true, size: 30, stroke: '#000000', strokeWidth: 0.5, opacity: 1, tooltip: true, clip: true },
-          encoding: {
-            x,
-            y,
-            color: { field: 'quantity', type: 'nominal' as const, title: 'Quantity', scale: colour, legend },
-            // Shapes are explained in the caption: a second legend would make the figure wider than a column.
-            shape: { field: 'kind', type: 'nominal' as const, title: 'Observed', scale: { domain: Object.values(KIND_NAMES), range: Object.values(KIND_SHAPES) }, legend: null },
-            tooltip: [
-              { field: 'quantity', type: 'nominal' as const, title: 'quantity' },
-              { field: 'kind', type: 'nominal' as const, title: 'observed' },
-              { field: 'value', type: 'quantitative' as const, title: 'value', format: '.3~g' },
-            ],
-          },
+          // Detections: open symbols, so that the error bar drawn over them shows even when it is shorter than the symbol.
+          data: { values: points.filter((r) => r.detected) },
+          mark: { type: 'point' as const, filled: false, fill: '#ffffff', size: SYMBOL_SIZE, strokeWidth: 1.3, opacity: 1, tooltip: true, clip: true },
+          encoding: { x, y, color: colourEnc, shape: shapeEnc, tooltip },
+        },
+        {
+          data: { values: points.filter((r) => r.detected) },
+          mark: { type: 'errorbar' as const, ticks: { size: CAP_WIDTH_PX, thickness: 1.2 }, thickness: 1.2, clip: true },
+          encoding: { x, y: { ...y, field: 'lo' }, y2: { field: 'hi' }, color: colourEnc },
         },
       ],
     };
   });
-  const title = { text: fit.sightline, subtitle: `best fit at ${numberText(bestAge)} yr (model ${shortId(fit.best.modelId)})` };
-  const head = { $schema: 'https://vega.github.io/schema/vega-lite/v6.json', title, config: figureConfig() } as const;
+  const head = { $schema: 'https://vega.github.io/schema/vega-lite/v6.json', config: figureConfig() } as const;
   return panels.length === 1 ? { ...head, ...panels[0] } : { ...head, spacing: PANEL_SPACING, vconcat: panels };
 }
 
@@ -224,8 +245,8 @@ export const tracksFigure: FigureBuilder = {
       out.push({
         name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
         kind: 'tracks',
-        title: `Model tracks for ${id}`,
-        caption: `Abundances or ratios of the best-fit model for ${id} against time (lines), with the observed values at the best-fit age: detections with 1σ error bars, limits as triangles; the shaded band is the ${levelStatement(statedLevel(ctx.levels[0], ctx.input.fit.levels, 1), 'Δχ²')} age interval.${bandCaption(tracks)}`,
+        title: `Model tracks for ${id}: best fit ${bestFitText(fit)}`,
+        caption: `Abundances or ratios of the best-fit model for ${id} (${bestFitText(fit)}) against time (lines), with the observed values at the best-fit age (dotted line), spread sideways so that none hides another: detections as open circles with 1σ error bars, upper limits as downward and lower limits as upward triangles; the shaded band is the ${levelStatement(statedLevel(ctx.levels[0], ctx.input.fit.levels, 1), 'Δχ²')} age interval.${bandCaption(tracks)}`,
         sightline: id,
         spec: buildTracksSpec(ctx, fit, tracks, observed, labels),
       });
