@@ -35,6 +35,7 @@ conditions:
   dust_temperature: 10
 times: { start_yr: 1.0e4, end_yr: 3.0e5, count: 3 }
 fit:
+  refine: 1
   quantities:
     - { species: H2O(s), as: abundance }
     - { species: CO(s), as: ratio }
