@@ -1,0 +1,45 @@
+/**
+ * Track parameters as grid axes (issue 12, item 4): a list or a range in the
+ * physical_track section multiplies the grid's points, each point runs its
+ * own track, and its id and model hash tell the values apart.
+ */
+import { describe, expect, it } from 'vitest';
+import { loadPipeline } from '../../src/config/pipeline.ts';
+import { expandGrid, gridSpecFromPipeline } from '../../src/grid/expand.ts';
+import { planGrid } from '../../src/grid/plan.ts';
+import { caught, scratch, writePipeline } from './helpers.ts';
+
+const pipeline = (body: string) => loadPipeline(writePipeline(scratch(), body));
+
+describe('physical-track parameters on grid axes', () => {
+  it('a retardation axis of 2 values gives twice the models, each with its own track, id and hash', () => {
+    const fixed = planGrid(pipeline('conditions:\n  density: [1.0e3, 1.0e4]\nphysical_track: { kind: free-fall, final_density: 1.0e6, retardation: 0.5 }\n'));
+    const axis = planGrid(pipeline('conditions:\n  density: [1.0e3, 1.0e4]\nphysical_track: { kind: free-fall, final_density: 1.0e6, retardation: [0.5, 1] }\n'));
+    expect(fixed.points).toHaveLength(2);
+    expect(axis.points).toHaveLength(4);
+    expect(axis.grid.trackAxes).toEqual([{ name: 'retardation', values: [0.5, 1] }]);
+    // Conditions outermost, the track axis fastest.
+    expect(axis.points.map((p) => [p.conditions.density, p.trackParameters?.retardation])).toEqual([[1e3, 0.5], [1e3, 1], [1e4, 0.5], [1e4, 1]]);
+    expect(axis.points.map((p) => (p.track?.kind === 'free-fall' ? p.track.retardation : undefined))).toEqual([0.5, 1, 0.5, 1]);
+    expect(new Set(axis.points.map((p) => p.id)).size).toBe(4);
+    expect(new Set(axis.points.map((p) => p.hash)).size).toBe(4);
+    // A point with retardation 0.5 on the axis is the same model as the pipeline with 0.5 fixed: same hash, so a store reuses it.
+    expect(axis.points[0].hash).toBe(fixed.points[0].hash);
+    expect(axis.points[2].hash).toBe(fixed.points[1].hash);
+    // Without track axes, points carry no track of their own and keep their ids.
+    expect(fixed.points.every((p) => p.track === undefined && p.trackParameters === undefined)).toBe(true);
+  });
+
+  it('takes a range for the final density and checks each value', () => {
+    const g = expandGrid(gridSpecFromPipeline(pipeline('conditions:\n  density: 1.0e4\nphysical_track: { kind: free-fall, final_density: { from: 1.0e5, to: 1.0e7, count: 3 } }\n')));
+    expect(g.points.map((p) => p.trackParameters?.final_density)).toEqual([1e5, 1e6, 1e7]);
+    const e = caught(() => expandGrid(gridSpecFromPipeline(pipeline('conditions:\n  density: 1.0e4\nphysical_track: { kind: free-fall, final_density: 1.0e6, retardation: [0.5, 2] }\n'))));
+    expect(e.message).toMatch(/retardation must be at most 1, found 2/);
+    expect(e.message).toMatch(/physical_track\.retardation/);
+  });
+
+  it('refuses a point whose collapse would start at or above its own final density, naming both', () => {
+    const e = caught(() => planGrid(pipeline('conditions:\n  density: [1.0e4, 1.0e5]\nphysical_track: { kind: free-fall, final_density: [1.0e5, 1.0e6] }\n')));
+    expect(e.message).toMatch(/final_density 100000 cm\^-3, but the grid starts a model at density 100000/);
+  });
+});
