@@ -27,6 +27,11 @@ const PARAMETER_TITLES: Record<string, string> = {
   grain_radius: 'Grain radius (µm)',
   dust_to_gas: 'Dust-to-gas mass ratio',
   reactive_desorption: 'Reactive desorption fraction',
+  // Physical-track parameters on grid axes (src/config/sections/track.ts, TRACK_PARAMETERS).
+  final_density: 'Final density of the collapse (cm⁻³)',
+  retardation: 'Collapse retardation factor B',
+  final_temperature: 'Final warm-up temperature (K)',
+  duration_yr: 'Warm-up duration (yr)',
 };
 
 export const AV_TITLE = 'Visual extinction (mag)';
