@@ -17,9 +17,12 @@ import { termKey } from '../fit/model-quantities.ts';
 import { log10Abundance, logCovariance, logSpread } from '../fit/model-spread.ts';
 import { chanceCoefficient, rankReactions } from '../fit/sensitivity.ts';
 import type { FitStageResult, QuantityScore, SightlineFit } from '../fit/types.ts';
-import { isConditionName, type PhysicalConditions } from '../config/conditions.ts';
-import type { GridPlan } from '../grid/plan.ts';
-import { readRealizations, realizationStoreFile, runRealizations } from '../grid/realizations.ts';
+import { isConditionName } from '../config/conditions.ts';
+import type { TrackParameterName } from '../config/sections/track.ts';
+import type { TrackParameters } from '../grid/expand.ts';
+import type { GridPlan, PlannedPoint } from '../grid/plan.ts';
+import { readRealizations, realizationStoreFile, runRealizations, type RealizationBase } from '../grid/realizations.ts';
+import { physicalTrackOf } from '../model/setup.ts';
 import type { ModelTrack, SightlineSensitivity } from '../report/types.ts';
 import type { GridRunResult } from '../grid/run.ts';
 
@@ -99,19 +102,23 @@ function chi2Of(rows: readonly QuantityScore[], model: readonly number[]): numbe
  * with the interpolated parameters of the fit, so that the realizations are
  * models at the best-fit conditions themselves.
  */
-function bestFitConditions(f: SightlineFit, conditionsOf: ReadonlyMap<string, PhysicalConditions>, pipeline: Pipeline): PhysicalConditions {
-  const own = conditionsOf.get(f.best.modelId);
-  if (own) return own;
-  const corner = f.best.modelId.startsWith('~') ? conditionsOf.get(f.best.modelId.slice(1).replace(/\+[\d.]*$/, '')) : undefined;
+function bestFitBase(f: SightlineFit, pointOf: ReadonlyMap<string, PlannedPoint>, pipeline: Pipeline): RealizationBase {
+  const own = pointOf.get(f.best.modelId);
+  if (own) return { id: own.id, conditions: own.conditions, ...(own.track ? { track: own.track, trackParameters: own.trackParameters } : {}) };
+  const corner = f.best.modelId.startsWith('~') ? pointOf.get(f.best.modelId.slice(1).replace(/\+[\d.]*$/, '')) : undefined;
   if (!corner) {
     throw new UserError(
       `realizations: the best fit of ${f.sightline} (${f.best.modelId}) is not one model of the grid (a column summed over layers has one model per layer); realizations run at single models. Remove the realizations section, or fit single-point sightlines.`,
       { file: pipeline.file, line: pipeline.yaml.lineOf(['realizations']), field: 'realizations' },
     );
   }
-  const conditions = { ...corner };
+  const conditions = { ...corner.conditions };
   for (const [name, value] of Object.entries(f.best.parameters)) if (isConditionName(name)) conditions[name] = value;
-  return conditions;
+  if (!corner.trackParameters) return { id: f.best.modelId, conditions };
+  // Track parameters on grid axes are interpolated like the conditions: the realizations run on the best fit's own track.
+  const trackParameters: TrackParameters = { ...corner.trackParameters };
+  for (const name of Object.keys(trackParameters) as TrackParameterName[]) if (f.best.parameters[name] !== undefined) trackParameters[name] = f.best.parameters[name];
+  return { id: f.best.modelId, conditions, track: physicalTrackOf(pipeline.config.physical_track, trackParameters), trackParameters };
 }
 
 export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: FitStageResult, section: RealizationsSection, options: { workers?: number; progress(line: string): void }): Promise<SpreadAtBestFits> {
@@ -121,8 +128,8 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     if (!f) throw new UserError(`realizations.sightlines names '${id}', which has no fit; name fitted sightlines (${fit.fits.slice(0, 8).map((x) => x.sightline).join(', ')}).`, { file: pipeline.file, line: pipeline.yaml.lineOf(['realizations', 'sightlines']), field: 'realizations.sightlines' });
     return f;
   });
-  const conditionsOf = new Map(plan.points.map((p) => [p.id, p.conditions]));
-  const bases = [...new Map(fits.map((f) => [f.best.modelId, bestFitConditions(f, conditionsOf, pipeline)])).entries()].map(([id, conditions]) => ({ id, conditions }));
+  const pointOf = new Map(plan.points.map((p) => [p.id, p]));
+  const bases = [...new Map(fits.map((f) => [f.best.modelId, bestFitBase(f, pointOf, pipeline)])).values()];
   const settings = { count: section.count, seed: section.seed };
   const run = await runRealizations(pipeline, plan, bases, settings, {
     workers: options.workers,

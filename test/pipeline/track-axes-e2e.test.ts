@@ -37,7 +37,7 @@ beforeAll(async () => {
   for (const f of ['tiny-network.yaml', 'tiny-obs.csv', 'tiny-obs.columns.yaml']) cpSync(join(FIXTURES, f), join(dir, f));
   const base = readFileSync(join(FIXTURES, 'tiny-pipeline.yaml'), 'utf8');
   // The tiny grid's 9 models (3 densities x 3 sightline A_V bins) each collapse to 1e5 cm^-3 at 2 retardation factors.
-  writeFileSync(join(dir, 'p.yaml'), base.replace('conditions:', 'physical_track: { kind: free-fall, final_density: 1.0e5, retardation: [0.3, 1] }\nconditions:'));
+  writeFileSync(join(dir, 'p.yaml'), base.replace('conditions:', 'physical_track: { kind: free-fall, final_density: 1.0e5, retardation: [0.3, 1] }\nconditions:') + 'realizations: { count: 2, seed: 1 }\n');
   const o = sink();
   const e = sink();
   code = await executeRun({ pipelineFile: join(dir, 'p.yaml'), commandLine: ['hoarfrost', 'run', 'p.yaml'], stdout: o.stream, stderr: e.stream, workers: 1 });
@@ -83,6 +83,22 @@ describe('a retardation-factor axis, end to end', () => {
     }
     const intervals = csvParse(readFileSync(join(dir, 'out/fit/intervals.csv'), 'utf8'));
     expect(intervals.some((r) => r.parameter === 'retardation')).toBe(true);
+  });
+
+  it("runs each best fit's rate realizations on its own track: the fitted retardation, not the axis's first value", () => {
+    const best = csvParse(readFileSync(join(dir, 'out/fit/best_fits.csv'), 'utf8'));
+    const store = ModelStore.open(join(dir, 'out/store/realizations.sqlite'), { readonly: true });
+    try {
+      const rows = [...store.finishedRows(['retardation'])];
+      expect(rows.length).toBe(best.length * 2);
+      for (const b of best) {
+        const mine = rows.filter((r) => String(r[0]).startsWith(`${b.model_id}~r`));
+        expect(mine).toHaveLength(2);
+        for (const r of mine) expect(r.at(-1)).toBeCloseTo(Number(b.retardation), 12);
+      }
+    } finally {
+      store.close();
+    }
   });
 
   it('names the axis with its title in the profiles figure and in the report', () => {
