@@ -4,7 +4,11 @@
  * own track, and its id and model hash tell the values apart.
  */
 import { describe, expect, it } from 'vitest';
+import { CONDITION_NAMES, CONDITIONS } from '../../src/config/conditions.ts';
 import { loadPipeline } from '../../src/config/pipeline.ts';
+import type { CandidateTable } from '../../src/fit/types.ts';
+import { layeredCandidates } from '../../src/grid/layered-candidates.ts';
+import { cellAv } from '../../src/grid/layers.ts';
 import { expandGrid, gridSpecFromPipeline } from '../../src/grid/expand.ts';
 import { planGrid } from '../../src/grid/plan.ts';
 import { caught, scratch, writePipeline } from './helpers.ts';
@@ -41,5 +45,38 @@ describe('physical-track parameters on grid axes', () => {
   it('refuses a point whose collapse would start at or above its own final density, naming both', () => {
     const e = caught(() => planGrid(pipeline('conditions:\n  density: [1.0e4, 1.0e5]\nphysical_track: { kind: free-fall, final_density: [1.0e5, 1.0e6] }\n')));
     expect(e.message).toMatch(/final_density 100000 cm\^-3, but the grid starts a model at density 100000/);
+  });
+});
+
+describe('layered columns over a track axis', () => {
+  it("gives the columns of each retardation factor their own id (they shared one: the column's id ignored the track)", () => {
+    const step = 0.5;
+    const cells = [0, 1, 2, 3].map((k) => cellAv(k, step));
+    const names = [...CONDITION_NAMES, 'retardation'];
+    const parameters: number[] = [];
+    const modelIds: string[] = [];
+    for (const b of [0.3, 1]) {
+      for (const av of cells) {
+        for (const name of CONDITION_NAMES) parameters.push(name === 'visual_extinction' ? av : CONDITIONS[name].default);
+        parameters.push(b);
+        modelIds.push(`p${modelIds.length}`);
+      }
+    }
+    const table: CandidateTable = {
+      parameterNames: names,
+      nModels: 8,
+      nTimes: 1,
+      nSpecies: 1,
+      parameters: Float64Array.from(parameters),
+      modelIds,
+      timesYr: Float64Array.of(1e5),
+      species: ['CO'],
+      abundances: Float64Array.from({ length: 8 }, (_, m) => (m < 4 ? 1e-5 : 2e-5)),
+    };
+    const { table: t } = layeredCandidates(table, { geometry: { kind: 'slab' }, step }, [4]);
+    expect(t.nModels).toBe(2);
+    expect(new Set(t.modelIds).size).toBe(2);
+    // Each column sums its own retardation's layers (constant x: the column-averaged abundance is x).
+    expect(Array.from(t.abundances)).toEqual([1e-5, 2e-5]);
   });
 });
