@@ -60,6 +60,19 @@ export function physicalTrackOf(section: PhysicalTrackSection | undefined, value
   return { kind: 'warm-up', finalTemperature: v('final_temperature', section.final_temperature), durationYr: v('duration_yr', section.duration_yr), exponent: section.shape === 'linear' ? 1 : section.exponent! };
 }
 
+/** Notes for a single model (`hoarfrost model`, `hoarfrost spread`) of a pipeline whose track has grid axes: the value it takes of each. */
+export function trackAxisNotes(section: PhysicalTrackSection | undefined): string[] {
+  if (!section) return [];
+  const notes: string[] = [];
+  for (const [name, spec] of Object.entries(section)) {
+    if (typeof spec !== 'object' || spec === null) continue;
+    const s = spec as Exclude<TrackValueSpec, number>;
+    const values = Array.isArray(s) ? s.join(', ') : `${s.from} to ${s.to}, ${s.count} values`;
+    notes.push(`physical_track.${name} is a grid axis (${values}); this single model takes its first value, ${Array.isArray(s) ? s[0] : s.from}`);
+  }
+  return notes;
+}
+
 export interface SetupOverrides {
   massActionOnly?: boolean;
   /** Turn H2 self-shielding off whatever the pipeline says (`hoarfrost model --no-self-shielding`). */

@@ -3,6 +3,8 @@
  * physical_track section multiplies the grid's points, each point runs its
  * own track, and its id and model hash tell the values apart.
  */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { CONDITION_NAMES, CONDITIONS } from '../../src/config/conditions.ts';
 import { loadPipeline } from '../../src/config/pipeline.ts';
@@ -11,6 +13,7 @@ import { layeredCandidates } from '../../src/grid/layered-candidates.ts';
 import { cellAv } from '../../src/grid/layers.ts';
 import { expandGrid, gridSpecFromPipeline } from '../../src/grid/expand.ts';
 import { planGrid } from '../../src/grid/plan.ts';
+import { expectNoStack, runCli } from '../support/cli.ts';
 import { caught, scratch, writePipeline } from './helpers.ts';
 
 const pipeline = (body: string) => loadPipeline(writePipeline(scratch(), body));
@@ -78,5 +81,18 @@ describe('layered columns over a track axis', () => {
     expect(new Set(t.modelIds).size).toBe(2);
     // Each column sums its own retardation's layers (constant x: the column-averaged abundance is x).
     expect(Array.from(t.abundances)).toEqual([1e-5, 2e-5]);
+  });
+});
+
+describe('a single model of a pipeline whose track has axes', () => {
+  it('`hoarfrost model` says which value of the axis it takes', () => {
+    const dir = scratch();
+    const file = writePipeline(dir, 'output: out\nconditions:\n  density: 1.0e4\nphysical_track: { kind: free-fall, final_density: 1.0e6, retardation: [0.3, 1] }\n');
+    const r = runCli(['model', file], dir);
+    expectNoStack(r.stderr);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/physical_track\.retardation is a grid axis \(0\.3, 1\); this single model takes its first value, 0\.3/);
+    const json = JSON.parse(readFileSync(join(dir, 'out/model/abundances.json'), 'utf8')) as { notes: string[] };
+    expect(json.notes.join('\n')).toMatch(/retardation is a grid axis/);
   });
 });
