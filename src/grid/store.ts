@@ -2,10 +2,11 @@
  * The model store: one SQLite file (better-sqlite3) per grid run or shard.
  *
  * Tables:
- *   meta(key, value)            grid hash, species, output times, shard, encoding
+ *   meta(key, value)            grid hash, species, output times, shard, encoding, track axes
  *   grid_points(id, idx, hash)  the points of the current grid (or shard) and their model hashes
  *   models(...)                 one row per computed model: the id, its content hash, status,
- *                               failure reason, every condition as a REAL column, conservation
+ *                               failure reason, every condition as a REAL column, the track
+ *                               parameters on grid axes (track_<name>, NULL otherwise), conservation
  *                               drift, solver statistics, wall time and the abundances BLOB
  *
  * Abundances are stored as Float64, little-endian, row-major [time][species]

@@ -96,3 +96,11 @@ describe('a single model of a pipeline whose track has axes', () => {
     expect(json.notes.join('\n')).toMatch(/retardation is a grid axis/);
   });
 });
+
+describe('a warm-up with its duration on a grid axis', () => {
+  it('gives each point a ramp of its own duration and final temperature fixed', () => {
+    const plan = planGrid(pipeline('conditions:\n  gas_temperature: 10\nphysical_track: { kind: warm-up, final_temperature: 200, duration_yr: [1.0e4, 1.0e5, 1.0e6] }\n'));
+    expect(plan.points.map((p) => p.track)).toEqual([1e4, 1e5, 1e6].map((durationYr) => ({ kind: 'warm-up', finalTemperature: 200, durationYr, exponent: 1 })));
+    expect(new Set(plan.points.map((p) => p.hash)).size).toBe(3);
+  });
+});
