@@ -27,13 +27,15 @@ export function loadCandidates(storeFile: string, species: string[]): CandidateT
     }
     const columns = Int32Array.from(species, (s) => where.get(s)!);
     const nSpecies = species.length;
-    const nParams = CONDITION_NAMES.length;
+    // Track parameters on grid axes are parameters of the fit like the conditions, after them.
+    const parameterNames: string[] = [...CONDITION_NAMES, ...meta.trackAxes];
+    const nParams = parameterNames.length;
     const n = store.finishedCount();
     const parameters = new Float64Array(n * nParams);
     const abundances = new Float64Array(n * nTimes * nSpecies);
     const modelIds = new Array<string>(n);
     let k = 0;
-    for (const row of store.finishedRows()) {
+    for (const row of store.finishedRows(meta.trackAxes)) {
       const blob = row[3] as Buffer;
       if (row[1] !== nTimes || row[2] !== nAll || blob.byteLength !== nTimes * nAll * BYTES_PER_VALUE) {
         throw new UserError(`model ${String(row[0])} has ${String(row[1])} times x ${String(row[2])} species, the grid ${nTimes} x ${nAll}: the store is inconsistent. Rerun \`hoarfrost grid\` to recompute it.`, { file: storeFile });
@@ -49,7 +51,7 @@ export function loadCandidates(storeFile: string, species: string[]): CandidateT
       k++;
     }
     return {
-      parameterNames: [...CONDITION_NAMES],
+      parameterNames,
       nModels: k,
       nTimes,
       nSpecies,

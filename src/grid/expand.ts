@@ -21,6 +21,7 @@ import type { Pipeline } from '../config/pipeline.ts';
 import type { ConditionAxisSpec, ConditionsSection, ExcludeSection } from '../config/sections/conditions.ts';
 import { DEFAULT_MODEL_AV_FRACTION } from '../config/sections/observations.ts';
 import { maxGridPoints } from '../config/limits.ts';
+import { checkTrackValue, isTrackParameterName, type PhysicalTrackSection, type TrackParameterName } from '../config/sections/track.ts';
 import { binSightlineAv, DEFAULT_SIGHTLINE_AV_STEP } from './sightlines.ts';
 import { DEFAULT_LAYER_STEP, layerAxisValues, MAX_IMPACT_PARAMETER, type LayerGeometry } from './layers.ts';
 
@@ -37,6 +38,16 @@ export interface GridPoint {
   /** Deterministic id from the condition values alone: `p` + 16 hex digits of sha256. */
   id: string;
   conditions: PhysicalConditions;
+  /** The values of the physical track's parameters that are grid axes (absent when none is). */
+  trackParameters?: TrackParameters;
+}
+
+export type TrackParameters = Partial<Record<TrackParameterName, number>>;
+
+/** A physical-track parameter that is a grid axis (a list or a range in the physical_track section). */
+export interface TrackAxis {
+  name: TrackParameterName;
+  values: number[];
 }
 
 export type AxisKind = 'default' | 'fixed' | 'list' | 'range' | 'sightlines' | 'tie' | 'layers';
@@ -63,6 +74,8 @@ export interface ExpandedGrid {
   axes: AxisSummary[];
   /** Conditions that take more than one value over the grid. */
   varied: ConditionName[];
+  /** Track parameters that are grid axes, in the section's order; each point carries its values. */
+  trackAxes: TrackAxis[];
   /** Points of the product left out by `exclude`. */
   excluded: number;
   /** 0-based indices of exclusion rules that matched no point (likely a mistake). */
@@ -72,6 +85,8 @@ export interface ExpandedGrid {
 export interface GridSpec {
   conditions: ConditionsSection;
   exclude: ExcludeSection;
+  /** The physical track, whose parameters may be axes. */
+  track?: PhysicalTrackSection;
   /** Observed line-of-sight A_V of each sightline, for `{ tie: sightlines }`. */
   sightlineAv?: readonly number[];
   /** Model-cloud A_V as a fraction of the observed A_V. */
@@ -84,6 +99,7 @@ export function gridSpecFromPipeline(pipeline: Pipeline, sightlineAv?: readonly 
   return {
     conditions: pipeline.config.conditions,
     exclude: pipeline.config.exclude,
+    track: pipeline.config.physical_track,
     sightlineAv,
     modelAvFraction: pipeline.config.observations?.model_av_fraction ?? DEFAULT_MODEL_AV_FRACTION,
     locate: (path) => ({ file: pipeline.file, line: pipeline.yaml.lineOf(path), field: path.join('.') }),
@@ -141,9 +157,11 @@ export function rangeValues(r: RangeSpec): number[] {
   return values;
 }
 
-export function pointId(conditions: PhysicalConditions): string {
+/** The point's id: its conditions and, when the track has axes, their values (points without track axes keep the ids they always had). */
+export function pointId(conditions: PhysicalConditions, track?: TrackParameters): string {
   const h = createHash('sha256').update(POINT_ID_TAG);
   for (const name of CONDITION_NAMES) h.update(`\n${name}=${String(conditions[name])}`);
+  if (track) for (const [name, v] of Object.entries(track).sort(([a], [b]) => (a < b ? -1 : 1))) h.update(`\ntrack.${name}=${String(v)}`);
   return 'p' + h.digest('hex').slice(0, 16);
 }
 
@@ -267,11 +285,15 @@ export function expandGrid(spec: GridSpec): ExpandedGrid {
 
   const tieOrder = orderTies(ties, (name, cycle) => fail(['conditions', name, 'tie'], `the ties ${cycle.join(' -> ')} form a loop; one of them needs a value.`));
   checkExcludeNames(spec, fail);
+  const trackAxes = expandTrackAxes(spec.track, fail, maxPoints);
   throwProblems(problems, `${problems.length} problems in the grid conditions:`);
 
   const productAxes = axes.filter((a) => a.kind !== 'tie');
   let total = 1;
   for (const a of productAxes) total *= a.values.length;
+  let trackCombinations = 1;
+  for (const a of trackAxes) trackCombinations *= a.values.length;
+  total *= trackCombinations;
   if (total > maxPoints) {
     throw new UserError(`the grid would have ${total} points, more than the ${maxPoints} allowed (HOARFROST_MAX_GRID_POINTS raises the limit). Coarsen an axis or split the study into several pipelines.`, spec.locate(['conditions']));
   }
@@ -280,7 +302,7 @@ export function expandGrid(spec: GridSpec): ExpandedGrid {
   const matched = new Array<boolean>(spec.exclude.length).fill(false);
   let excluded = 0;
   const counters = new Array<number>(productAxes.length).fill(0);
-  for (let n = 0; n < total; n++) {
+  for (let n = 0; n < total / trackCombinations; n++) {
     const c = {} as PhysicalConditions;
     for (let k = 0; k < productAxes.length; k++) c[productAxes[k].name] = productAxes[k].values[counters[k]];
     for (const name of tieOrder) {
@@ -294,7 +316,7 @@ export function expandGrid(spec: GridSpec): ExpandedGrid {
       matched[rule] = true;
       excluded++;
     } else {
-      points.push({ index: points.length, id: pointId(c), conditions: c });
+      for (const track of trackCombinationsOf(trackAxes)) points.push({ index: points.length, id: pointId(c, track), conditions: c, ...(track ? { trackParameters: track } : {}) });
     }
     for (let k = productAxes.length - 1; k >= 0; k--) {
       if (++counters[k] < productAxes[k].values.length) break;
@@ -307,7 +329,51 @@ export function expandGrid(spec: GridSpec): ExpandedGrid {
   checkDistinctIds(points, spec);
   const varied = CONDITION_NAMES.filter((name) => points.some((p) => p.conditions[name] !== points[0].conditions[name]));
   const unusedRules = matched.flatMap((m, i) => (m ? [] : [i]));
-  return { points, axes, varied, excluded, unusedRules };
+  return { points, axes, varied, trackAxes, excluded, unusedRules };
+}
+
+/** The track parameters written as a list or a range: checked, with their values. */
+function expandTrackAxes(track: PhysicalTrackSection | undefined, fail: (path: (string | number)[], message: string) => void, maxPoints: number): TrackAxis[] {
+  const out: TrackAxis[] = [];
+  if (!track) return out;
+  for (const [name, a] of Object.entries(track)) {
+    if (!isTrackParameterName(name)) continue;
+    const path = ['physical_track', name];
+    let values: number[];
+    if (typeof a === 'number') values = [a];
+    else if (Array.isArray(a)) {
+      if (a.length === 0) {
+        fail(path, `the list of values is empty. Give at least one value, or a single number.`);
+        continue;
+      }
+      if (a.some((v, i) => a.findIndex((w) => nearlyEqual(v, w)) < i)) {
+        fail(path, `a value appears twice in the list; each grid value must be distinct.`);
+        continue;
+      }
+      values = a;
+    } else {
+      if (!(a.from < a.to) || a.count < 2 || (a.scale === 'log' && a.from <= 0) || a.count > maxPoints) {
+        fail(path, `a range needs from < to, a count from 2 to ${maxPoints}${a.scale === 'log' ? ' and from > 0 (or scale: linear)' : ''}; found from ${a.from}, to ${a.to}, count ${a.count}.`);
+        continue;
+      }
+      values = rangeValues(a);
+    }
+    const bad = values.map((v) => checkTrackValue(name, v)).find((m) => m !== undefined);
+    if (bad) {
+      fail(path, `${bad}.`);
+      continue;
+    }
+    if (typeof a !== 'number') out.push({ name, values });
+  }
+  return out;
+}
+
+/** Every combination of the track axes' values (the last axis fastest), or one undefined when there are none. */
+function trackCombinationsOf(axes: readonly TrackAxis[]): (TrackParameters | undefined)[] {
+  if (axes.length === 0) return [undefined];
+  let combos: TrackParameters[] = [{}];
+  for (const a of axes) combos = combos.flatMap((c) => a.values.map((v) => ({ ...c, [a.name]: v })));
+  return combos;
 }
 
 /** Ties in an order where each target is resolved before the ties to it; reports loops. */

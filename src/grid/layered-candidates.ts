@@ -10,8 +10,9 @@
  */
 import type { PhysicalConditions } from '../config/conditions.ts';
 import { UserError } from '../config/errors.ts';
+import { isTrackParameterName } from '../config/sections/track.ts';
 import type { CandidateTable } from '../fit/types.ts';
-import { pointId, type LayeredColumns } from './expand.ts';
+import { pointId, type LayeredColumns, type TrackParameters } from './expand.ts';
 import { cellAv, sightlineLayers } from './layers.ts';
 
 const AV = 'visual_extinction';
@@ -63,12 +64,15 @@ export function layeredCandidates(table: CandidateTable, columns: LayeredColumns
         return;
       }
       const conditions = {} as Record<string, number>;
+      const track: TrackParameters = {};
       table.parameterNames.forEach((name, p) => {
         const v = p === avParam ? losAv : table.parameters[g.first * np + p];
         parameters.push(v);
-        conditions[name] = v;
+        if (isTrackParameterName(name)) track[name] = v;
+        else conditions[name] = v;
       });
-      modelIds.push(COLUMN_ID_PREFIX + pointId(conditions as unknown as PhysicalConditions).slice(1));
+      // Track parameters on grid axes enter the id as they do a point's (src/grid/expand.ts).
+      modelIds.push(COLUMN_ID_PREFIX + pointId(conditions as unknown as PhysicalConditions, Object.keys(track).length > 0 ? track : undefined).slice(1));
       rows.push(found);
       weights.push(w);
     });

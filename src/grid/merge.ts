@@ -9,7 +9,7 @@ import { basename, dirname, join } from 'node:path';
 import { throwProblems, UserError } from '../config/errors.ts';
 import { mainStoreFile, type ModelBatchPlan } from './plan.ts';
 import { acquireRunLock } from './run-lock.ts';
-import { ModelStore } from './store.ts';
+import { ModelStore, trackAxesOf } from './store.ts';
 
 const SHARD_FILE_PATTERN = /^shard-(\d+)-of-(\d+)\.sqlite$/;
 /** How many ids of duplicates and missing points a report lists by name. */
@@ -112,6 +112,7 @@ export function mergeShards(plan: ModelBatchPlan, shardFiles: string[] = findSha
       shard: '',
       toolVersion: plan.shared.toolVersion,
       networkHash: plan.shared.networkHash,
+      trackAxes: trackAxesOf(plan.points),
     });
     const existing = store.existing();
     let alreadyPresent = 0;

@@ -10,7 +10,8 @@ import type { RateDraw } from '../chem/uncertainty.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import { UserError } from '../config/errors.ts';
 import { TOOL_VERSION } from '../config/version.ts';
-import { buildModelSetup, type ModelSetup } from '../model/setup.ts';
+import type { PhysicalTrack } from '../model/physical-track.ts';
+import { buildModelSetup, physicalTrackOf, type ModelSetup } from '../model/setup.ts';
 import { expandGrid, gridSpecFromPipeline, type ExpandedGrid, type GridPoint } from './expand.ts';
 import { gridHash, modelHash, sharedInputsHash, type SharedModelInputs } from './hash.ts';
 import { inShard, type Shard } from './shard.ts';
@@ -20,6 +21,8 @@ export interface PlannedPoint extends GridPoint {
   hash: string;
   /** A Monte Carlo realization of the rate coefficients (src/grid/realizations.ts). */
   rateDraw?: RateDraw;
+  /** The point's own physical track, when track parameters are grid axes: hashed and run in place of the setup's. */
+  track?: PhysicalTrack;
 }
 
 export interface GridPlan {
@@ -58,7 +61,12 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
   const shared: SharedModelInputs = { networkHash: network.contentHash, options, toolVersion: TOOL_VERSION };
   const sharedHash = sharedInputsHash(shared);
   checkTrack(pipeline, setup, grid);
-  const points = grid.points.map((p) => ({ ...p, hash: modelHash(sharedHash, p.conditions) }));
+  const points = grid.points.map((p): PlannedPoint => {
+    if (!p.trackParameters) return { ...p, hash: modelHash(sharedHash, p.conditions) };
+    // A track parameter on a grid axis: the point's own track enters its hash as the options' track, as a rate draw does.
+    const track = physicalTrackOf(pipeline.config.physical_track, p.trackParameters)!;
+    return { ...p, track, hash: modelHash(sharedInputsHash({ ...shared, options: { ...options, track } }), p.conditions) };
+  });
   return {
     pipeline,
     grid,
@@ -75,12 +83,15 @@ export function planGrid(pipeline: Pipeline, sightlineAv?: readonly number[]): G
 
 /** A collapse must end above where it starts: every grid point's density (its start density) below the final density. */
 function checkTrack(pipeline: Pipeline, setup: ModelSetup, grid: ExpandedGrid): void {
-  const track = setup.options.track;
-  if (track?.kind !== 'free-fall') return;
-  const highest = Math.max(...grid.points.map((p) => p.conditions.density));
-  if (highest >= track.finalDensity) {
+  const section = pipeline.config.physical_track;
+  if (section?.kind !== 'free-fall') return;
+  const fixedFinal = (setup.options.track as { finalDensity: number }).finalDensity;
+  // Each point's collapse starts at its density and ends at its own final density (an axis, or the one value).
+  const bad = grid.points.find((p) => p.conditions.density >= (p.trackParameters?.final_density ?? fixedFinal));
+  if (bad) {
+    const final = bad.trackParameters?.final_density ?? fixedFinal;
     throw new UserError(
-      `the collapse ends at final_density ${track.finalDensity} cm^-3, but the grid starts models at densities up to ${highest} cm^-3: the density of a grid point is where its collapse starts. Raise final_density above every start density, or narrow the density axis.`,
+      `the collapse ends at final_density ${final} cm^-3, but the grid starts a model at density ${bad.conditions.density} cm^-3: the density of a grid point is where its collapse starts. Raise final_density above every start density, or narrow the density axis.`,
       { file: pipeline.file, line: pipeline.yaml.lineOf(['physical_track', 'final_density']), field: 'physical_track.final_density' },
     );
   }

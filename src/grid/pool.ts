@@ -17,6 +17,7 @@ import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { PhysicalConditions } from '../config/conditions.ts';
 import type { RateDraw } from '../chem/uncertainty.ts';
+import type { PhysicalTrack } from '../model/physical-track.ts';
 import { UserError } from '../config/errors.ts';
 import type { ModelResult } from '../model/types.ts';
 import type { FromWorker, ToWorker, WorkerInit } from './worker-protocol.ts';
@@ -53,6 +54,8 @@ export interface PoolTask {
   conditions: PhysicalConditions;
   /** A Monte Carlo realization of the rate coefficients (src/grid/realizations.ts); absent for a grid model. */
   rateDraw?: RateDraw;
+  /** The point's own physical track (track parameters on grid axes). */
+  track?: PhysicalTrack;
 }
 
 export type PoolOutcome =
@@ -205,7 +208,7 @@ export class ModelPool {
     }
     const task = this.queue[this.next++];
     slot.task = task;
-    slot.worker.postMessage({ type: 'run', id: task.id, conditions: task.conditions, rateDraw: task.rateDraw } satisfies ToWorker);
+    slot.worker.postMessage({ type: 'run', id: task.id, conditions: task.conditions, rateDraw: task.rateDraw, track: task.track } satisfies ToWorker);
   }
 
   private checkFinished(): void {

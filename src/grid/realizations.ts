@@ -18,6 +18,8 @@ import { UserError } from '../config/errors.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import type { RateDraw } from '../chem/uncertainty.ts';
 import { gridHash, modelHash, sharedInputsHash } from './hash.ts';
+import type { PhysicalTrack } from '../model/physical-track.ts';
+import type { TrackParameters } from './expand.ts';
 import type { ModelBatchPlan, PlannedPoint } from './plan.ts';
 import { runGrid, type GridRunResult, type RunGridOptions } from './run.ts';
 import type { Shard } from './shard.ts';
@@ -27,6 +29,9 @@ import { decodeAbundances, ModelStore } from './store.ts';
 export interface RealizationBase {
   id: string;
   conditions: PhysicalConditions;
+  /** The base model's own track and its values, when track parameters are grid axes (src/grid/plan.ts). */
+  track?: PhysicalTrack;
+  trackParameters?: TrackParameters;
 }
 
 export interface RealizationSettings {
@@ -49,8 +54,9 @@ export function planRealizations(plan: ModelBatchPlan, bases: readonly Realizati
   for (const base of bases) {
     for (let r = 0; r < settings.count; r++) {
       const rateDraw: RateDraw = { seed: settings.seed, realization: r };
-      const hash = modelHash(sharedInputsHash({ ...plan.shared, options: { ...plan.shared.options, rateDraw } }), base.conditions);
-      points.push({ index: points.length, id: realizationId(base.id, r), conditions: base.conditions, hash, rateDraw });
+      const own = base.track ? { track: base.track, trackParameters: base.trackParameters } : {};
+      const hash = modelHash(sharedInputsHash({ ...plan.shared, options: { ...plan.shared.options, rateDraw, ...(base.track ? { track: base.track } : {}) } }), base.conditions);
+      points.push({ index: points.length, id: realizationId(base.id, r), conditions: base.conditions, hash, rateDraw, ...own });
     }
   }
   return { ...plan, points, gridHash: gridHash(points) };

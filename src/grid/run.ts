@@ -15,7 +15,7 @@ import type { ModelResult } from '../model/types.ts';
 import { mainStoreFile, planGrid, shardPoints, shardStoreFile, type ModelBatchPlan, type PlannedPoint } from './plan.ts';
 import { defaultWorkerCount, ModelPool, type PoolOutcome } from './pool.ts';
 import { shardLabel, type Shard } from './shard.ts';
-import { ModelStore, type StoredModel } from './store.ts';
+import { ModelStore, trackAxesOf, type StoredModel } from './store.ts';
 import { failureReason } from './status.ts';
 import { acquireRunLock } from './run-lock.ts';
 
@@ -109,6 +109,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       shard: options.shard ? shardLabel(options.shard) : '',
       toolVersion: plan.shared.toolVersion,
       networkHash: plan.shared.networkHash,
+      trackAxes: trackAxesOf(share),
     });
     const existing = store.existing();
     const todo: PlannedPoint[] = [];
@@ -166,7 +167,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
       if (options.drainSignal?.aborted) pool.drain();
       if (options.abortSignal?.aborted) pool.abort();
       outcome = await pool.run(
-        todo.map((p) => ({ id: p.id, conditions: p.conditions, ...(p.rateDraw ? { rateDraw: p.rateDraw } : {}) })),
+        todo.map((p) => ({ id: p.id, conditions: p.conditions, ...(p.rateDraw ? { rateDraw: p.rateDraw } : {}), ...(p.track ? { track: p.track } : {}) })),
         (o) => {
           const point = byId.get(o.task.id)!;
           const stored = toStored(point, o, plan.species, expectedLength);
@@ -228,7 +229,7 @@ export async function runGrid(pipeline: Pipeline, options: RunGridOptions = {}):
 }
 
 function toStored(point: PlannedPoint, o: PoolOutcome, species: readonly string[], expectedLength: number): StoredModel {
-  const base = { id: point.id, hash: point.hash, conditions: point.conditions };
+  const base = { id: point.id, hash: point.hash, conditions: point.conditions, ...(point.trackParameters ? { trackParameters: point.trackParameters } : {}) };
   if (o.kind === 'error') return { ...base, status: 'failed', failure: o.message };
   const r: ModelResult = o.result;
   const common = {

@@ -2,10 +2,11 @@
  * The model store: one SQLite file (better-sqlite3) per grid run or shard.
  *
  * Tables:
- *   meta(key, value)            grid hash, species, output times, shard, encoding
+ *   meta(key, value)            grid hash, species, output times, shard, encoding, track axes
  *   grid_points(id, idx, hash)  the points of the current grid (or shard) and their model hashes
  *   models(...)                 one row per computed model: the id, its content hash, status,
- *                               failure reason, every condition as a REAL column, conservation
+ *                               failure reason, every condition as a REAL column, the track
+ *                               parameters on grid axes (track_<name>, NULL otherwise), conservation
  *                               drift, solver statistics, wall time and the abundances BLOB
  *
  * Abundances are stored as Float64, little-endian, row-major [time][species]
@@ -25,6 +26,7 @@ import { dirname } from 'node:path';
 import Database from 'better-sqlite3';
 import { CONDITION_NAMES, type PhysicalConditions } from '../config/conditions.ts';
 import { UserError } from '../config/errors.ts';
+import { TRACK_PARAMETER_NAMES, type TrackParameterName } from '../config/sections/track.ts';
 import type { ModelStats } from '../model/types.ts';
 
 export const STORE_FORMAT = '1';
@@ -39,6 +41,8 @@ export interface StoredModel {
   id: string;
   hash: string;
   conditions: PhysicalConditions;
+  /** Values of the physical track's parameters that are grid axes. */
+  trackParameters?: Partial<Record<TrackParameterName, number>>;
   status: ModelStatus;
   failure?: string;
   conservationDrift?: number;
@@ -59,6 +63,8 @@ export interface GridMembership {
   shard: string;
   toolVersion: string;
   networkHash: string;
+  /** Track parameters that are grid axes. */
+  trackAxes?: readonly TrackParameterName[];
 }
 
 export interface StoreMeta {
@@ -69,6 +75,20 @@ export interface StoreMeta {
   shard: string;
   toolVersion: string;
   networkHash: string;
+  /** Track parameters that are grid axes (stored as track_<name> columns); empty for stores made before. */
+  trackAxes: TrackParameterName[];
+}
+
+/** The track parameters on grid axes of a list of points: those the points carry. */
+export function trackAxesOf(points: readonly { trackParameters?: Partial<Record<TrackParameterName, number>> }[]): TrackParameterName[] {
+  const names = new Set<TrackParameterName>();
+  for (const p of points) for (const n of Object.keys(p.trackParameters ?? {})) names.add(n as TrackParameterName);
+  return TRACK_PARAMETER_NAMES.filter((n) => names.has(n));
+}
+
+/** The store column of a track parameter. */
+export function trackColumn(name: TrackParameterName): string {
+  return `track_${name}`;
 }
 
 export interface ExistingModel {
@@ -164,6 +184,8 @@ export class ModelStore {
     const present = new Set((db.prepare('PRAGMA table_info(models)').all() as { name: string }[]).map((r) => r.name));
     // Condition columns are added by name, so a store made before a condition existed gains it.
     for (const name of CONDITION_NAMES) if (!present.has(name)) db.exec(`ALTER TABLE models ADD COLUMN ${name} REAL`);
+    // Track parameters on grid axes, named track_<parameter>; NULL where the parameter is not an axis.
+    for (const name of TRACK_PARAMETER_NAMES) if (!present.has(trackColumn(name))) db.exec(`ALTER TABLE models ADD COLUMN ${trackColumn(name)} REAL`);
     const format = this.metaValue('format');
     if (format === undefined) this.db.prepare('INSERT INTO meta (key, value) VALUES (?, ?)').run('format', STORE_FORMAT);
     else if (format !== STORE_FORMAT) throw new UserError(`the model store has format ${format}, this tool writes format ${STORE_FORMAT}. Move it aside and rerun the grid.`, { file: this.file });
@@ -191,6 +213,7 @@ export class ModelStore {
       setMeta.run('shard', m.shard);
       setMeta.run('tool_version', m.toolVersion);
       setMeta.run('network_hash', m.networkHash);
+      setMeta.run('track_axes', JSON.stringify(m.trackAxes ?? []));
       this.db.exec('DELETE FROM grid_points');
       for (const p of m.points) addPoint.run(p.id, p.index, p.hash);
     })();
@@ -208,6 +231,7 @@ export class ModelStore {
       shard: m.get('shard') ?? '',
       toolVersion: m.get('tool_version') ?? '',
       networkHash: m.get('network_hash') ?? '',
+      trackAxes: (JSON.parse(m.get('track_axes') ?? '[]') as string[]).filter((n): n is TrackParameterName => (TRACK_PARAMETER_NAMES as string[]).includes(n)),
     };
   }
 
@@ -223,7 +247,7 @@ export class ModelStore {
   write(models: readonly StoredModel[], run: string): void {
     if (models.length === 0) return;
     if (!this.insert) {
-      const cols = ['id', 'hash', 'status', 'failure', 'conservation_drift', 'conservation_worst', ...STAT_COLUMNS, 'wall_ms', 'clamp_notes', 'n_times', 'n_species', 'abundances', 'run', 'computed_at', ...CONDITION_NAMES];
+      const cols = ['id', 'hash', 'status', 'failure', 'conservation_drift', 'conservation_worst', ...STAT_COLUMNS, 'wall_ms', 'clamp_notes', 'n_times', 'n_species', 'abundances', 'run', 'computed_at', ...CONDITION_NAMES, ...TRACK_PARAMETER_NAMES.map(trackColumn)];
       this.insert = this.db.prepare(`INSERT OR REPLACE INTO models (${cols.join(', ')}) VALUES (${cols.map(() => '?').join(', ')})`);
     }
     const meta = this.meta();
@@ -249,6 +273,7 @@ export class ModelStore {
           run,
           now,
           ...CONDITION_NAMES.map((n) => m.conditions[n]),
+          ...TRACK_PARAMETER_NAMES.map((n) => m.trackParameters?.[n] ?? null),
         );
       }
     })();
@@ -279,11 +304,11 @@ export class ModelStore {
   /**
    * The finished models of the store's grid in grid order, as raw rows:
    * id, n_times, n_species, abundances BLOB, then every condition in
-   * CONDITION_NAMES order (no object per row: the fit's query reads many).
+   * CONDITION_NAMES order, then the given track parameters (no object per row: the fit's query reads many).
    */
-  finishedRows(): Iterable<unknown[]> {
+  finishedRows(trackAxes: readonly TrackParameterName[] = []): Iterable<unknown[]> {
     return this.db
-      .prepare(`SELECT m.id, m.n_times, m.n_species, m.abundances, ${CONDITION_NAMES.map((c) => `m.${c}`).join(', ')}
+      .prepare(`SELECT m.id, m.n_times, m.n_species, m.abundances, ${[...CONDITION_NAMES, ...trackAxes.map(trackColumn)].map((c) => `m.${c}`).join(', ')}
         FROM grid_points g JOIN models m ON m.id = g.id AND m.hash = g.hash WHERE m.status = 'ok' ORDER BY g.idx`)
       .raw(true)
       .iterate() as Iterable<unknown[]>;

@@ -7,6 +7,7 @@
 import { parentPort, workerData } from 'node:worker_threads';
 import type { PhysicalConditions } from '../config/conditions.ts';
 import type { RateDraw } from '../chem/uncertainty.ts';
+import type { PhysicalTrack } from '../model/physical-track.ts';
 import type { ModelOptions, ModelResult } from '../model/types.ts';
 
 /** The model setup as it crosses to a worker: the network by file (loaded again there) and the options as they are. */
@@ -17,7 +18,8 @@ export interface WorkerInit {
   options: ModelOptions;
 }
 
-export type ToWorker = { type: 'run'; id: string; conditions: PhysicalConditions; rateDraw?: RateDraw };
+/** `track`: the point's own physical track, when track parameters are grid axes (it replaces the shared options' track). */
+export type ToWorker = { type: 'run'; id: string; conditions: PhysicalConditions; rateDraw?: RateDraw; track?: PhysicalTrack };
 
 export type FromWorker =
   | { type: 'ready'; species: string[] }
@@ -28,7 +30,7 @@ export type FromWorker =
 export interface ModelRunner {
   species: string[];
   /** One model; with a draw, one Monte Carlo realization of its rate coefficients. */
-  run(conditions: PhysicalConditions, rateDraw?: RateDraw): ModelResult;
+  run(conditions: PhysicalConditions, rateDraw?: RateDraw, track?: PhysicalTrack): ModelResult;
 }
 
 /** Build the runner from the shared inputs; may throw (a bad network), which ends the grid. */
@@ -55,7 +57,7 @@ export function serveModelTasks(factory: ModelRunnerFactory): void {
     if (msg.type !== 'run') return;
     let result: ModelResult;
     try {
-      result = runner.run(msg.conditions, msg.rateDraw);
+      result = runner.run(msg.conditions, msg.rateDraw, msg.track);
     } catch (e) {
       const err = e as Error;
       port.postMessage({ type: 'threw', id: msg.id, message: err?.message ?? String(e), userError: isUserErrorName(err) } satisfies FromWorker);

@@ -12,6 +12,6 @@ serveModelTasks((init) => {
   }
   return {
     species: outputSpeciesNames(network, init.options.grain),
-    run: (conditions, rateDraw) => runModel(modelInput({ network, options: rateDraw ? { ...init.options, rateDraw } : init.options }, conditions)),
+    run: (conditions, rateDraw, track) => runModel(modelInput({ network, options: rateDraw || track ? { ...init.options, ...(rateDraw ? { rateDraw } : {}), ...(track ? { track } : {}) } : init.options }, conditions)),
   };
 });

@@ -12,7 +12,7 @@ import { modelNetwork } from '../chem/mantle.ts';
 import type { GrainOptions, PhysicalConditions } from '../config/conditions.ts';
 import type { Pipeline } from '../config/pipeline.ts';
 import type { FirstStageSpec } from '../config/sections/initial.ts';
-import type { PhysicalTrackSection } from '../config/sections/track.ts';
+import type { PhysicalTrackSection, TrackParameterName, TrackValueSpec } from '../config/sections/track.ts';
 import { runFirstStage, type FirstStageResult } from './first-stage.ts';
 import type { PhysicalTrack } from './physical-track.ts';
 import { loadInitialComposition } from './initial.ts';
@@ -52,10 +52,25 @@ export function grainOptionsOf(section: Pipeline['config']['grain']): GrainOptio
 }
 
 /** The pipeline's physical_track section as the model's track. */
-export function physicalTrackOf(section: PhysicalTrackSection | undefined): PhysicalTrack | undefined {
+export function physicalTrackOf(section: PhysicalTrackSection | undefined, values: Partial<Record<TrackParameterName, number>> = {}): PhysicalTrack | undefined {
   if (!section) return undefined;
-  if (section.kind === 'free-fall') return { kind: 'free-fall', finalDensity: section.final_density, retardation: section.retardation, avGrowth: section.av_growth };
-  return { kind: 'warm-up', finalTemperature: section.final_temperature, durationYr: section.duration_yr, exponent: section.shape === 'linear' ? 1 : section.exponent! };
+  // A parameter that is a grid axis takes the point's value; without one (a single model), the axis's first value.
+  const v = (name: TrackParameterName, spec: TrackValueSpec): number => values[name] ?? (typeof spec === 'number' ? spec : Array.isArray(spec) ? spec[0] : spec.from);
+  if (section.kind === 'free-fall') return { kind: 'free-fall', finalDensity: v('final_density', section.final_density), retardation: v('retardation', section.retardation), avGrowth: section.av_growth };
+  return { kind: 'warm-up', finalTemperature: v('final_temperature', section.final_temperature), durationYr: v('duration_yr', section.duration_yr), exponent: section.shape === 'linear' ? 1 : section.exponent! };
+}
+
+/** Notes for a single model (`hoarfrost model`, `hoarfrost spread`) of a pipeline whose track has grid axes: the value it takes of each. */
+export function trackAxisNotes(section: PhysicalTrackSection | undefined): string[] {
+  if (!section) return [];
+  const notes: string[] = [];
+  for (const [name, spec] of Object.entries(section)) {
+    if (typeof spec !== 'object' || spec === null) continue;
+    const s = spec as Exclude<TrackValueSpec, number>;
+    const values = Array.isArray(s) ? s.join(', ') : `${s.from} to ${s.to}, ${s.count} values`;
+    notes.push(`physical_track.${name} is a grid axis (${values}); this single model takes its first value, ${Array.isArray(s) ? s[0] : s.from}`);
+  }
+  return notes;
 }
 
 export interface SetupOverrides {

@@ -4,6 +4,7 @@
  * physical track (docs/cloud-structure.md). One sentence each, in fit.json and the report.
  */
 import type { Pipeline } from '../config/pipeline.ts';
+import type { TrackValueSpec } from '../config/sections/track.ts';
 import { layeredColumns } from '../grid/expand.ts';
 
 export function modelCautions(pipeline: Pipeline): string[] {
@@ -24,12 +25,19 @@ export function modelCautions(pipeline: Pipeline): string[] {
   const t = c.physical_track;
   if (t?.kind === 'free-fall') {
     out.push(
-      `Densities follow a free-fall collapse (retardation ${t.retardation}) from each model's density to ${t.final_density} cm^-3${t.av_growth ? ', with A_V growing as (n_H/n_0)^(2/3)' : ''}: the density in the outputs is the start density and the age the time since the collapse began (docs/cloud-structure.md section 3).`,
+      `Densities follow a free-fall collapse (retardation ${trackValueText(t.retardation)}) from each model's density to ${trackValueText(t.final_density)} cm^-3${t.av_growth ? ', with A_V growing as (n_H/n_0)^(2/3)' : ''}: the density in the outputs is the start density and the age the time since the collapse began (docs/cloud-structure.md section 3).`,
     );
   } else if (t?.kind === 'warm-up') {
     out.push(
-      `Gas and dust warm up (${t.shape}${t.exponent ? `, exponent ${t.exponent}` : ''}) from each model's temperatures to ${t.final_temperature} K over ${t.duration_yr} yr: the temperatures in the outputs are the start values and the age the time since the warm-up began (docs/cloud-structure.md section 3).`,
+      `Gas and dust warm up (${t.shape}${t.exponent ? `, exponent ${t.exponent}` : ''}) from each model's temperatures to ${trackValueText(t.final_temperature)} K over ${trackValueText(t.duration_yr)} yr: the temperatures in the outputs are the start values and the age the time since the warm-up began (docs/cloud-structure.md section 3).`,
     );
   }
   return out;
+}
+
+/** A track parameter as the cautions name it: its value, or the grid axis it runs over. */
+function trackValueText(v: TrackValueSpec): string {
+  if (typeof v === 'number') return String(v);
+  if (Array.isArray(v)) return `each of ${v.join(', ')} (a grid axis)`;
+  return `${v.from} to ${v.to} in ${v.count} steps (a grid axis)`;
 }

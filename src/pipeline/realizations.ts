@@ -18,8 +18,8 @@ import { termKey } from '../fit/model-quantities.ts';
 import { log10Abundance, logCovariance, logSpread, type RealizationLogs } from '../fit/model-spread.ts';
 import { chanceCoefficient, rankReactions } from '../fit/sensitivity.ts';
 import type { FitStageResult, QuantityScore } from '../fit/types.ts';
-import type { GridPlan } from '../grid/plan.ts';
-import { readRealizations, realizationStoreFile, runRealizations } from '../grid/realizations.ts';
+import type { GridPlan, PlannedPoint } from '../grid/plan.ts';
+import { readRealizations, realizationStoreFile, runRealizations, type RealizationBase } from '../grid/realizations.ts';
 import type { ModelTrack, SightlineSensitivity } from '../report/types.ts';
 import type { GridRunResult } from '../grid/run.ts';
 
@@ -102,10 +102,20 @@ export async function spreadAtBestFits(pipeline: Pipeline, plan: GridPlan, fit: 
     if (!f) throw new UserError(`realizations.sightlines names '${id}', which has no fit; name fitted sightlines (${fit.fits.slice(0, 8).map((x) => x.sightline).join(', ')}).`, { file: pipeline.file, line: pipeline.yaml.lineOf(['realizations', 'sightlines']), field: 'realizations.sightlines' });
     return f;
   });
-  const conditionsOf = new Map(plan.points.map((p) => [p.id, p.conditions]));
+  const pointOf = new Map(plan.points.map((p) => [p.id, p]));
   // A best fit between grid values (the fit's refined mesh, id `~...`) has no model of its own: its realizations run at the nearest grid model.
-  const nodeOf = new Map(fits.map((f) => [f.sightline, conditionsOf.has(f.best.modelId) ? f.best.modelId : nearestGridModel(plan, f.best.parameters)]));
-  const bases = [...new Set(nodeOf.values())].map((id) => ({ id, conditions: conditionsOf.get(id)! }));
+  // A column summed over layers is many models: realizations run at single models only.
+  for (const f of fits) {
+    if (pointOf.has(f.best.modelId) || f.best.modelId.startsWith('~')) continue;
+    throw new UserError(
+      `realizations: the best fit of ${f.sightline} (${f.best.modelId}) is not one model of the grid (a column summed over layers has one model per layer); realizations run at single models. Remove the realizations section, or fit single-point sightlines.`,
+      { file: pipeline.file, line: pipeline.yaml.lineOf(['realizations']), field: 'realizations' },
+    );
+  }
+  const nodeOf = new Map(fits.map((f) => [f.sightline, pointOf.has(f.best.modelId) ? f.best.modelId : nearestGridModel(plan, f.best.parameters)]));
+  // Each base with its own track when track parameters are grid axes (the setup's track would be the axis's first value).
+  const baseOf = (p: PlannedPoint): RealizationBase => ({ id: p.id, conditions: p.conditions, ...(p.track ? { track: p.track, trackParameters: p.trackParameters } : {}) });
+  const bases = [...new Set(nodeOf.values())].map((id) => baseOf(pointOf.get(id)!));
   const settings = { count: section.count, seed: section.seed };
   const run = await runRealizations(pipeline, plan, bases, settings, {
     workers: options.workers,
@@ -185,7 +195,7 @@ export function nearestGridModel(plan: GridPlan, parameters: Readonly<Record<str
   let best: string | undefined;
   let bestDistance = Infinity;
   for (const p of plan.points) {
-    const conditions = p.conditions as unknown as Record<string, number>;
+    const conditions = { ...(p.conditions as unknown as Record<string, number>), ...(p.trackParameters ?? {}) } as Record<string, number>;
     let d = 0;
     for (const [name, value] of Object.entries(parameters)) {
       const g = conditions[name];

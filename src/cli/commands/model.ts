@@ -62,6 +62,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const { compile } = await import('../../chem/system.ts');
   const { YEAR_SECONDS } = await import('../../chem/constants.ts');
   const { buildModelSetup, modelInput, runModel, initialState } = await import('../../model/run.ts');
+  const { trackAxisNotes } = await import('../../model/setup.ts');
 
   const pipeline = loadPipeline(file);
   const cfg = pipeline.config;
@@ -69,7 +70,7 @@ async function runModelCommand(file: string, opts: ModelOptions, ctx: CommandCon
   const setup = buildModelSetup(pipeline, { massActionOnly: opts.massActionOnly, noSelfShielding: opts.selfShielding === false });
   const { network } = setup;
   const { modelNetwork, outputSpeciesNames } = await import('../../chem/mantle.ts');
-  const initialNotes = setup.notes;
+  const initialNotes = [...setup.notes, ...trackAxisNotes(cfg.physical_track)];
   const input = modelInput(setup, conditions);
   const figureSpecies = chooseSpecies(opts.species, outputSpeciesNames(network, input.grain));
   const outDir = opts.out ? resolve(opts.out) : join(pipeline.resolvePath(cfg.output), 'model');

@@ -94,6 +94,7 @@ async function runSpreadCommand(file: string, opts: SpreadOptions, ctx: CommandC
   const pipeline = loadPipeline(file);
   const conditions = resolveConditions(pipeline, opts.set ?? []);
   const setup = buildModelSetup(pipeline);
+  for (const note of (await import('../../model/setup.ts')).trackAxisNotes(pipeline.config.physical_track)) ctx.stderr.write(`note: ${note}\n`);
   const { network } = setup;
   const plan = setupBatchPlan(pipeline, setup);
   const figureSpecies = chooseSpecies(opts.species, plan.species);

@@ -20,7 +20,8 @@
  */
 import { z } from 'zod';
 
-const range = z
+/** A range of values, as grid axes (conditions, track parameters) take it. */
+export const rangeAxis = z
   .object({
     from: z.number(),
     to: z.number(),
@@ -54,7 +55,7 @@ const layers = z
   })
   .strict();
 
-export const conditionAxis = z.union([z.number(), z.array(z.number()), range, tie, layers], {
+export const conditionAxis = z.union([z.number(), z.array(z.number()), rangeAxis, tie, layers], {
   error: 'expected a finite number, a list of numbers, a range { from, to, count }, a tie { tie: NAME } or, for visual_extinction, layers { layers: slab }',
 });
 export const conditionsSection = z.record(z.string(), conditionAxis);

@@ -34,6 +34,11 @@ const PARAMETER_NAMES: Record<string, { name: string; unit: string; valueUnit?: 
   grain_density: { name: 'Grain material density', unit: 'g cm⁻³' },
   site_density: { name: 'Surface site density', unit: 'cm⁻²' },
   photodesorption_yield: { name: 'Photodesorption yield', unit: 'per photon' },
+  // Physical-track parameters on grid axes (src/config/sections/track.ts, TRACK_PARAMETERS).
+  final_density: { name: 'Final density of the collapse', unit: 'cm⁻³' },
+  retardation: { name: 'Collapse retardation factor B', unit: '' },
+  final_temperature: { name: 'Final warm-up temperature', unit: 'K' },
+  duration_yr: { name: 'Warm-up duration', unit: 'yr' },
 };
 
 export const AV_TITLE = 'Visual extinction (mag)';
