@@ -17,7 +17,7 @@ import { massActionNetwork, robertson } from '../test/solve/problems.ts';
 import { DEFAULT_GRAIN_OPTIONS, defaultConditions, type GrainOptions } from '../src/config/conditions.ts';
 import { loadNetwork } from '../src/chem/network.ts';
 import { YEAR_SECONDS as YEAR } from '../src/chem/constants.ts';
-import { compile } from '../src/chem/system.ts';
+import { compile, type CompileOptions } from '../src/chem/system.ts';
 import { initialState, loadInitialComposition } from '../src/model/run.ts';
 import { DENSE_MAX_N, SparseNewtonMatrix } from '../src/solve/newton-matrix.ts';
 
@@ -147,10 +147,19 @@ export const PROBLEMS: [string, () => BenchCase][] = [
         ', grain: mantle, ice_photolysis, three_body, eley_rideal, photodissociation_induced',
       ),
   ],
+  [
+    'default network, every ice switch, mass-action part',
+    () =>
+      darkCloud(
+        { ...DEFAULT_GRAIN_OPTIONS, mantle: true, icePhotolysis: true, threeBody: true, eleyRideal: true, photodissociationInduced: true },
+        ', the system of the row above with massActionOnly (what --emit-system writes), for the issue 17 ratio',
+        { massActionOnly: true },
+      ),
+  ],
 ];
 
 /** The default network in a dark cloud with the given grain options. */
-function darkCloud(grain: GrainOptions, noteTail: string): BenchCase {
+function darkCloud(grain: GrainOptions, noteTail: string, compileOptions: CompileOptions = {}): BenchCase {
   const network = loadNetwork(new URL('../config/networks/dark-cloud.yaml', import.meta.url).pathname);
   const conditions = {
     ...defaultConditions(),
@@ -159,7 +168,7 @@ function darkCloud(grain: GrainOptions, noteTail: string): BenchCase {
     dust_temperature: 10,
     visual_extinction: 10,
   };
-  const problem = compile(network, conditions, grain, {});
+  const problem = compile(network, conditions, grain, compileOptions);
   const y0 = initialState({ network, grain, initial: loadInitialComposition('low-metal', '.', network) });
   return {
     problem,

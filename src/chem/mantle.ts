@@ -132,8 +132,9 @@ export function fillOutputs(columns: OutputColumns, y: ArrayLike<number>, out: F
  * The surface-mantle transfer as one non-mass-action term (rates in the module
  * comment). Its rate depends on F, the sum of every other term's contribution
  * to the surface rows, so it must be evaluated after all of them: the
- * compiler adds it last, and F comes from the others' rhs evaluated into a
- * scratch array.
+ * compiler adds it last, and F comes from the others' rhs, which the
+ * compiler keeps for the last state it was asked at (the step's prediction
+ * serves beginStep, the first Newton iterate and a Jacobian taken there).
  *
  * Its Jacobian is exact and has two parts. Each transfer rate is a share a_i
  * of F (a_i = x_s(i)/Lambda growing, x_m(i)/max(x_surf, x_mant) eroding), so
@@ -157,7 +158,6 @@ export class IceTransfer implements NonMassActionTerm {
   readonly u: Float64Array;
   readonly w: Float64Array;
   private readonly k: number;
-  private readonly scratch: Float64Array;
   /** Per species, positions of (surface, surface), (mantle, surface), (surface, mantle), (mantle, mantle). */
   private positions: Int32Array = new Int32Array(0);
   private rowPtr: Int32Array = new Int32Array(0);
@@ -166,14 +166,15 @@ export class IceTransfer implements NonMassActionTerm {
 
   /**
    * @param layersAbundance Lambda = L x_ML, the abundance of the surface's monolayers
-   * @param othersRhs the rhs of every other term (the system's, less this one)
+   * @param others the rhs of every other term (the system's, less this one) at y;
+   *   the array it returns is read before the next call and never written
    */
   constructor(
     private readonly surface: Int32Array,
     private readonly mantle: Int32Array,
     private readonly layersAbundance: number,
     n: number,
-    private readonly othersRhs: (y: Float64Array, dydt: Float64Array) => void,
+    private readonly others: (y: Float64Array) => Float64Array,
     private readonly roundOff: (y: Float64Array) => number = () => 0,
   ) {
     this.k = surface.length;
@@ -184,7 +185,6 @@ export class IceTransfer implements NonMassActionTerm {
     });
     this.u = new Float64Array(n);
     this.w = new Float64Array(n);
-    this.scratch = new Float64Array(n);
   }
 
   bind(positions: Int32Array): void {
@@ -229,15 +229,14 @@ export class IceTransfer implements NonMassActionTerm {
    * by more than the error test allows.
    */
   beginStep(y: Float64Array): boolean {
-    this.othersRhs(y, this.scratch);
-    const f = this.surfaceRate(this.scratch);
-    const band = this.roundOff(y);
-    // Within the round-off of F its sign carries no information: the form in hand stays.
-    if (this.branch !== 'free' && Math.abs(f) <= band) return false;
+    const f = this.surfaceRate(this.others(y));
     const branch = f >= 0 ? 'growth' : 'erosion';
-    const changed = branch !== this.branch;
+    if (branch === this.branch) return false;
+    // Within the round-off of F its sign carries no information: the form in hand stays.
+    // The band (one more pass over the terms) is needed only when the sign asks for a change.
+    if (this.branch !== 'free' && Math.abs(f) <= this.roundOff(y)) return false;
     this.branch = branch;
-    return changed;
+    return true;
   }
 
   /** Growth (surface -> mantle at F x_s / Lambda) or erosion (mantle -> surface at |F| x_m / max(x_mant, x_surf)). */
@@ -269,8 +268,7 @@ export class IceTransfer implements NonMassActionTerm {
 
   addJacobian(y: Float64Array, values: Float64Array): void {
     const { u, w, rowPtr, colIdx, positions: pos } = this;
-    this.othersRhs(y, this.scratch);
-    const f = this.surfaceRate(this.scratch);
+    const f = this.surfaceRate(this.others(y));
     // w = dF/dx: the surface rows of the other terms' Jacobian, before this term writes.
     w.fill(0);
     u.fill(0);

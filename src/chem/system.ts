@@ -287,6 +287,16 @@ class H2SelfShielding extends OneSpeciesTerm {
   }
 }
 
+/** True when a and b hold the same doubles bit for bit (+0 and -0 differ; NaN never matches). */
+function sameBits(a: Float64Array, b: Float64Array): boolean {
+  for (let i = 0; i < b.length; i++) {
+    const x = a[i];
+    const z = b[i];
+    if (x !== z || (x === 0 && 1 / x !== 1 / z)) return false;
+  }
+  return true;
+}
+
 /** Compile a network for fixed conditions (see the module comment). */
 export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions, grain: GrainOptions, options: CompileOptions = {}): CompiledSystem {
   // With the mantle on, every ice species has its mantle twin (appended when the file lists none).
@@ -400,7 +410,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   let transfer: IceTransfer | undefined;
   if (pairs && pairs.surface.length > 0) {
     const layers = grain.surfaceLayers * rateSet.grain.monolayerAbundance;
-    transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y, dydt) => othersRhs(y, dydt), (y) => surfaceRoundOff(y));
+    transfer = new IceTransfer(pairs.surface, pairs.mantle, layers, n, (y) => othersAt(y), (y) => surfaceRoundOff(y));
     omitted.push(`${transfer.name}: the transfer rate is the net surface growth of every other process times a share of the surface or mantle, a ratio of sums of abundances (docs/ice-mantle.md)`);
     if (options.massActionOnly) transfer = undefined;
     else {
@@ -477,6 +487,23 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
     for (let g = 0; g < othersCount; g++) nonMassAction[g].addRhs(y, dydt);
   };
 
+  // The others' rhs at the last state it was evaluated at. With the transfer,
+  // beginStep reads it at the step's prediction, and the first Newton iterate
+  // and a Jacobian taken at the prediction are at the same state: each reuses
+  // it in place of a full pass over the terms. The state is compared bit for
+  // bit (the sign of a zero too), so the values are those a fresh pass gives.
+  const othersCache = new Float64Array(n);
+  const othersCacheY = new Float64Array(n);
+  let othersCacheValid = false;
+  const othersAt = (y: Float64Array): Float64Array => {
+    if (othersCacheValid && sameBits(y, othersCacheY)) return othersCache;
+    othersCacheValid = false;
+    othersRhs(y, othersCache);
+    othersCacheY.set(y);
+    othersCacheValid = true;
+    return othersCache;
+  };
+
   // The round-off bound of F, the sum the transfer reads from the surface rows
   // (docs/ice-mantle.md, "The band"). othersRhs adds every contribution
   // c to its row in turn and the transfer then adds the rows, so the computed
@@ -531,8 +558,12 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
   };
 
   const rhs = (_t: number, y: Float64Array, dydt: Float64Array): void => {
-    othersRhs(y, dydt);
-    if (transfer) transfer.addRhs(y, dydt);
+    if (!transfer) {
+      othersRhs(y, dydt);
+      return;
+    }
+    dydt.set(othersAt(y));
+    transfer.addRhs(y, dydt);
   };
 
   const jacobian = (_t: number, y: Float64Array, values: Float64Array): void => {
@@ -565,6 +596,7 @@ export function compile(twoPhaseNetwork: Network, conditions: PhysicalConditions
       throw new Error('the reactions of the network changed form with the conditions; a model cannot follow them in one system');
     }
     fillCoefficients(set.rates, next.density);
+    othersCacheValid = false;
     specialTerms(set, next.density).forEach((term, q) => {
       term.bind(boundPositions[q]);
       nonMassAction[q] = term;

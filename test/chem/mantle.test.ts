@@ -138,10 +138,7 @@ describe('surface-mantle transfer form held through the round-off of F (docs/ice
   // round-off bound of F is given. Lambda = 1, so the growth form moves F x_s and the erosion form F x_m / max(x_s, x_m).
   let f = 0;
   const band = 1e-3;
-  const term = new IceTransfer(Int32Array.of(0), Int32Array.of(1), 1, 2, (_y, dydt) => {
-    dydt.fill(0);
-    dydt[0] = f;
-  }, () => band);
+  const term = new IceTransfer(Int32Array.of(0), Int32Array.of(1), 1, 2, () => Float64Array.of(f, 0), () => band);
   const y = Float64Array.of(0.5, 2);
   const transferred = (): number => {
     const dydt = Float64Array.of(f, 0);

@@ -18,12 +18,14 @@ describe('retarget', () => {
       const from = { ...defaultConditions(), density: 1e3, visual_extinction: 2, gas_temperature: 10, dust_temperature: 10 };
       const to = { ...from, density: 3.7e4, visual_extinction: 7.5, gas_temperature: 14, dust_temperature: 12 };
       const moved = compile(network, from, grain);
+      // A state with every species present, so that every term contributes.
+      const y = Float64Array.from({ length: moved.n }, (_, i) => 1e-8 * (1 + ((i * 7919) % 13)));
+      // Evaluated at y before the move too: what the system keeps of the last state must not outlive the old rates.
+      moved.rhs(0, y, new Float64Array(moved.n));
       moved.retarget(to);
       const fresh = compile(network, to, grain);
       expect(moved.n).toBe(fresh.n);
       expect(Array.from(moved.pattern.colIdx)).toEqual(Array.from(fresh.pattern.colIdx));
-      // A state with every species present, so that every term contributes.
-      const y = Float64Array.from({ length: moved.n }, (_, i) => 1e-8 * (1 + ((i * 7919) % 13)));
       const a = new Float64Array(moved.n);
       const b = new Float64Array(moved.n);
       moved.rhs(0, y, a);
