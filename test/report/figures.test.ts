@@ -43,6 +43,19 @@ function svgTexts(svg: string): string[] {
   );
 }
 
+describe('default figure kinds', () => {
+  it('a survey without sky positions draws no sky figure and does not warn that it is missing', () => {
+    const input = syntheticInput();
+    const unplaced = { ...input, observations: { ...input.observations, sightlines: input.observations.sightlines.map(({ ra: _ra, dec: _dec, ...s }) => s) } };
+    const warnings: string[] = [];
+    const figs = buildFigures(unplaced, warnings);
+    expect(figs.some((f) => f.kind === 'sky_positions')).toBe(false);
+    expect(warnings).toEqual([]);
+    // With positions the same input draws it.
+    expect(buildFigures(input, []).some((f) => f.kind === 'sky_positions')).toBe(true);
+  });
+});
+
 describe('figure builders', () => {
   let figures: BuiltFigure[];
   let validate: ValidateFunction;

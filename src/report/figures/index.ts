@@ -96,6 +96,8 @@ export function resolveRequests(input: ReportInput, ctx: FigureContext): FigureR
         .filter((kind) => kind !== 'posterior' || input.fit.fits.some((f) => f.posterior !== undefined))
         // The sensitivity figure is a default only of a run with realizations; without them it is not missed.
         .filter((kind) => kind !== 'sensitivity' || input.sensitivity !== undefined)
+        // Sightlines without positions (no RA/Dec column) have no sky figure to miss.
+        .filter((kind) => kind !== 'sky_positions' || input.observations.sightlines.some((s) => s.ra !== undefined && s.dec !== undefined))
         .map((kind) => ({ cfg: { kind }, field: 'report.figures', explicit: false }));
   const requests: FigureRequest[] = [];
   const names = new Map<string, string>();
