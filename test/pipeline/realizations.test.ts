@@ -123,6 +123,11 @@ describe('realizations at the best fits in a pipeline run', () => {
     expect(html).toMatch(/What the fit of/);
     const trackSpec = readFileSync(join(out, 'report/figures', readFileSync(join(out, 'report/index.html'), 'utf8').match(/figures\/(tracks[^"]*?)\.vl\.json/)![1] + '.vl.json'), 'utf8');
     expect(trackSpec).toMatch(/"type": "area"/);
+    // The sensitivity figure, like every report figure, has its title and caption outside the file.
+    const sensitivityName = readFileSync(join(out, 'report/index.html'), 'utf8').match(/figures\/(sensitivity[^"]*?)\.vl\.json/)![1];
+    const sensitivitySpec = JSON.parse(readFileSync(join(out, 'report/figures', `${sensitivityName}.vl.json`), 'utf8')) as Record<string, unknown>;
+    expect('title' in sensitivitySpec).toBe(false);
+    expect(readFileSync(join(out, 'report/figures', `${sensitivityName}.caption.txt`), 'utf8')).toMatch(/Monte Carlo realizations/);
     // Best fits between grid values get the nearest grid model's band, centred on their track, and the caption says so.
     if (fit.fits.some((f) => f.best.modelId.startsWith('~'))) expect(html).toMatch(/the range of the nearest grid model, centred on the track/);
     expect(existsSync(join(out, 'store/realizations.sqlite'))).toBe(true);

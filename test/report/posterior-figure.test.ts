@@ -29,6 +29,8 @@ describe('posterior figure', () => {
     expect(figs).toHaveLength(1);
     expect(figs[0].caption).toMatch(/priors uniform in log10 density and uniform in log10 age_yr/);
     expect(figs[0].caption).toMatch(/68\.3% and 95\.4%/);
+    // Like every report figure: no title inside the file; its title and caption are outside.
+    expect('title' in figs[0].spec).toBe(false);
     const svg = await renderSvg(figs[0].spec);
     expect(svg.warnings).toEqual([]);
     expect(svg.svg).toContain('probability per cell');

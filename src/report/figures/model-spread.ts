@@ -64,11 +64,12 @@ export interface SensitivityBar {
  * correlation coefficient (-1 to 1), with dashed lines at the coefficient
  * chance alone reaches when it is known.
  */
-export function sensitivityBarsSpec(bars: readonly SensitivityBar[], title: string, subtitle: string, valueName: string, chance?: number | null): TopLevelSpec {
+/** `title` undefined: no title inside the figure (the report's figures carry their title and caption outside). */
+export function sensitivityBarsSpec(bars: readonly SensitivityBar[], title: string | undefined, subtitle: string, valueName: string, chance?: number | null): TopLevelSpec {
   const x = { field: 'coefficient', type: 'quantitative' as const, title: `Correlation of log k with ${valueName}`, scale: { domain: [-1, 1] } };
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: title, subtitle },
+    ...(title !== undefined ? { title: { text: title, subtitle } } : {}),
     width: 240,
     height: { step: 14 },
     layer: [

@@ -3,7 +3,7 @@
  * section 8): the marginal posterior of density and of age (probability per
  * grid cell) and their joint 2-D marginal with the highest-density credible
  * regions as contours. The priors (uniform in log10 of each parameter) are
- * stated in the subtitle and the caption.
+ * stated in the caption.
  */
 import type { TopLevelSpec } from 'vega-lite';
 import type { PosteriorSummary, SightlineFit } from '../../fit/types.ts';
@@ -128,7 +128,6 @@ export function buildPosteriorSpec(ctx: FigureContext, fit: SightlineFit, post: 
   }
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: fit.sightline, subtitle: `posterior; priors ${post.priors.join(', ')}` },
     config: figureConfig(),
     spacing: PANEL_SPACING,
     resolve: { scale: { x: 'independent', y: 'independent', strokeDash: 'independent' }, legend: { strokeDash: 'independent' } },

@@ -26,9 +26,9 @@ export const sensitivityFigure: FigureBuilder = {
         name: sightlineFigureName(request, ctx.input.fit.fits.findIndex((f) => f.sightline === id), request.sightlines.length, slug(id)),
         kind: 'sensitivity',
         title: `What the fit of ${id} hangs on`,
-        caption: `The ${s.top.length} reactions whose rate coefficient correlates most with the chi² of the best fit of ${id} (at ${numberText(s.ageYr)} yr) over ${s.realizations} Monte Carlo realizations of the rate coefficients (${method} coefficient${chance}); a positive coefficient means a larger rate coefficient worsens the fit. All coefficients, and those of every fitted quantity, are in fit/sensitivity.csv.`,
+        caption: `The ${s.top.length} reactions whose rate coefficient correlates most with the chi² of the best fit of ${id} (at ${numberText(s.ageYr)} yr) over ${s.realizations} Monte Carlo realizations of the rate coefficients (${method} coefficient${chance}${chance ? ', the dashed lines' : ''}); a positive coefficient means a larger rate coefficient worsens the fit. All coefficients, and those of every fitted quantity, are in fit/sensitivity.csv.`,
         sightline: id,
-        spec: sensitivityBarsSpec(s.top, `What the fit of ${id} hangs on`, `${method} coefficient over ${s.realizations} realizations${chance ? ` (dashed: chance level ${s.chanceCoefficient!.toFixed(2)})` : ''}`, 'χ²', s.chanceCoefficient),
+        spec: sensitivityBarsSpec(s.top, undefined, `${method} coefficient over ${s.realizations} realizations${chance ? ` (dashed: chance level ${s.chanceCoefficient!.toFixed(2)})` : ''}`, 'χ²', s.chanceCoefficient),
       });
     }
     return out;
