@@ -16,7 +16,7 @@ import { scoreCandidates } from '../../src/fit/score.ts';
 import { runFitStage } from '../../src/fit/stage.ts';
 import type { ObservedQuantity } from '../../src/obs/types.ts';
 import { needReference, PYTHON, SCIPY } from '../support/references.ts';
-import { analyticAbundances, detection, gaussian, logSpaced, observationSet, seededRandom, SPECIES, syntheticTable } from './synthetic.ts';
+import { analyticAbundances, detection, gaussian, logSpaced, observationSet, seededRandom, SPECIES, syntheticTable, denseChiSquare } from './synthetic.ts';
 
 /** A detection with its error parts, as the observations room derives them: sigma_j per column, ratio references with sign -1. */
 function withParts(id: string, num: string, log10: number, sigmas: Record<string, number>, den?: string): ObservedQuantity {
@@ -25,23 +25,6 @@ function withParts(id: string, num: string, log10: number, sigmas: Record<string
     ...detection(id, num, log10, s, den),
     errorParts: [{ source: num, dex: sigmas[num], sign: 1 as const }, ...(den ? [{ source: den, dex: sigmas[den], sign: -1 as const }] : [])],
   };
-}
-
-/** Dense r^T C^-1 r by Gauss-Jordan elimination, independent of the Cholesky code. */
-function denseChiSquare(c: number[][], r: number[]): number {
-  const n = r.length;
-  const a = c.map((row, i) => [...row, r[i]]);
-  for (let i = 0; i < n; i++) {
-    let p = i;
-    for (let k = i + 1; k < n; k++) if (Math.abs(a[k][i]) > Math.abs(a[p][i])) p = k;
-    [a[i], a[p]] = [a[p], a[i]];
-    for (let k = 0; k < n; k++) {
-      if (k === i) continue;
-      const f = a[k][i] / a[i][i];
-      for (let j = i; j <= n; j++) a[k][j] -= f * a[i][j];
-    }
-  }
-  return r.reduce((s, ri, i) => s + ri * (a[i][n] / a[i][i]), 0);
 }
 
 describe('generalised chi-square', () => {

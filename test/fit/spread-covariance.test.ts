@@ -11,24 +11,7 @@ import { fitSection } from '../../src/config/sections/fit.ts';
 import type { ModelCovariance } from '../../src/fit/covariance.ts';
 import { logCovariance } from '../../src/fit/model-spread.ts';
 import { runFitStage } from '../../src/fit/stage.ts';
-import { detection, gaussian, logSpaced, observationSet, seededRandom, syntheticTable } from './synthetic.ts';
-
-/** Dense r^T C^-1 r by Gauss-Jordan elimination, independent of the Cholesky code. */
-function denseChiSquare(c: number[][], r: number[]): number {
-  const n = r.length;
-  const a = c.map((row, i) => [...row, r[i]]);
-  for (let i = 0; i < n; i++) {
-    let p = i;
-    for (let k = i + 1; k < n; k++) if (Math.abs(a[k][i]) > Math.abs(a[p][i])) p = k;
-    [a[i], a[p]] = [a[p], a[i]];
-    for (let k = 0; k < n; k++) {
-      if (k === i) continue;
-      const f = a[k][i] / a[i][i];
-      for (let j = i; j <= n; j++) a[k][j] -= f * a[i][j];
-    }
-  }
-  return r.reduce((s, ri, i) => s + ri * (a[i][n] / a[i][i]), 0);
-}
+import { detection, gaussian, logSpaced, observationSet, seededRandom, syntheticTable, denseChiSquare } from './synthetic.ts';
 
 /**
  * Realizations of a tiny network solved in closed form: A -> B (k1) and

@@ -117,3 +117,20 @@ export function withoutModels(table: CandidateTable, drop: (parameters: Record<s
   });
   return { ...table, nModels: keep.length, parameters, abundances, modelIds: keep.map((m) => table.modelIds[m]) };
 }
+
+/** Dense r^T C^-1 r by Gauss-Jordan elimination, independent of the Cholesky code. */
+export function denseChiSquare(c: number[][], r: number[]): number {
+  const n = r.length;
+  const a = c.map((row, i) => [...row, r[i]]);
+  for (let i = 0; i < n; i++) {
+    let p = i;
+    for (let k = i + 1; k < n; k++) if (Math.abs(a[k][i]) > Math.abs(a[p][i])) p = k;
+    [a[i], a[p]] = [a[p], a[i]];
+    for (let k = 0; k < n; k++) {
+      if (k === i) continue;
+      const f = a[k][i] / a[i][i];
+      for (let j = i; j <= n; j++) a[k][j] -= f * a[i][j];
+    }
+  }
+  return r.reduce((s, ri, i) => s + ri * (a[i][n] / a[i][i]), 0);
+}
