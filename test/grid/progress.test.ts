@@ -1,13 +1,7 @@
-import { Writable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
 import { formatDuration, progressBar, progressLine, ProgressPrinter } from '../../src/grid/progress.ts';
 import type { GridProgress } from '../../src/grid/run.ts';
-
-function sink(): { stream: Writable; text: () => string } {
-  let text = '';
-  const stream = new Writable({ write: (chunk, _enc, cb) => { text += String(chunk); cb(); } });
-  return { stream, text: () => text };
-}
+import { sink } from '../support/sink.ts';
 
 const at = (done: number, extra: Partial<GridProgress> = {}): GridProgress => ({ done, total: 1000, failed: 3, computed: done, elapsedMs: 60_000, ratePerMinute: 95.2, remainingMs: 371_000, ...extra });
 

@@ -5,23 +5,12 @@
 import { cpSync, existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
-import { Writable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { executeRun, type ExecuteOptions } from '../../src/pipeline/execute.ts';
 import { readLock } from '../../src/pipeline/lock.ts';
+import { sink } from '../support/sink.ts';
 
 const FIXTURES = join(import.meta.dirname, 'fixtures');
-
-function sink(): { stream: Writable; text: () => string } {
-  let text = '';
-  const stream = new Writable({
-    write(chunk, _enc, done) {
-      text += String(chunk);
-      done();
-    },
-  });
-  return { stream, text: () => text };
-}
 
 async function run(pipelineFile: string, extra: Partial<ExecuteOptions> = {}): Promise<{ code: number; out: string }> {
   const out = sink();

@@ -7,25 +7,14 @@
 import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Writable } from 'node:stream';
 import { csvParse } from 'd3-dsv';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadCandidates } from '../../src/grid/candidates.ts';
 import { ModelStore } from '../../src/grid/store.ts';
 import { executeRun } from '../../src/pipeline/execute.ts';
+import { sink } from '../support/sink.ts';
 
 const FIXTURES = join(import.meta.dirname, 'fixtures');
-
-function sink(): { stream: Writable; text: () => string } {
-  let text = '';
-  const stream = new Writable({
-    write(chunk, _enc, done) {
-      text += String(chunk);
-      done();
-    },
-  });
-  return { stream, text: () => text };
-}
 
 let dir: string;
 let code: number;
